@@ -1,0 +1,121 @@
+"""Exception types raised where a bad value enters the model.
+
+Every error names the field, the offending value and what is allowed, so the
+dashboard and the command line can show the message as it is.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Sequence
+
+import numpy as np
+
+__all__ = [
+    "InputFileError",
+    "InputRangeError",
+    "PlantsideError",
+    "ScenarioError",
+    "check_range",
+]
+
+
+class PlantsideError(Exception):
+    """Base class of every error plantside raises on purpose."""
+
+
+class InputRangeError(PlantsideError, ValueError):
+    """A value (scalar or element of an array) outside its allowed range.
+
+    Attributes
+    ----------
+    field : str
+        Name of the quantity, as the caller calls it (e.g. ``"humidity_ratio"``).
+    allowed : str
+        Human-readable allowed range, with unit.
+    indices : tuple of int
+        Flat indices of the invalid elements (empty for a scalar).
+    """
+
+    def __init__(self, field: str, message: str, allowed: str = "", indices: Sequence[int] = ()):
+        self.field = field
+        self.allowed = allowed
+        self.indices = tuple(int(i) for i in indices)
+        super().__init__(message)
+
+
+class InputFileError(PlantsideError, ValueError):
+    """A file (weather CSV, zone-load CSV) that cannot be used as it is.
+
+    Attributes
+    ----------
+    problems : list of str
+        One line per problem, each naming the row number(s) and column.
+    """
+
+    def __init__(self, source: str, problems: Sequence[str]):
+        self.source = source
+        self.problems = list(problems)
+        shown = self.problems[:20]
+        more = len(self.problems) - len(shown)
+        text = f"{source}: " + "; ".join(shown)
+        if more > 0:
+            text += f"; and {more} more problem(s)"
+        super().__init__(text)
+
+
+class ScenarioError(PlantsideError, ValueError):
+    """A scenario file with a missing, mistyped or out-of-range field."""
+
+    def __init__(self, source: str, field: str, message: str):
+        self.source = source
+        self.field = field
+        super().__init__(f"{source}: {field}: {message}")
+
+
+def _describe_indices(bad: np.ndarray, size: int) -> str:
+    idx = np.flatnonzero(bad)
+    first = ", ".join(str(i) for i in idx[:5])
+    tail = ", ..." if idx.size > 5 else ""
+    return f" at {idx.size} of {size} elements (indices {first}{tail})"
+
+
+def check_range(
+    field: str,
+    value,
+    low: float | None = None,
+    high: float | None = None,
+    unit: str = "",
+    *,
+    low_inclusive: bool = True,
+    high_inclusive: bool = True,
+):
+    """Raise :class:`InputRangeError` unless every element of ``value`` lies in range.
+
+    NaN is always invalid. Scalars and arrays are both accepted; for an array
+    the message says how many elements are invalid and which.
+
+    Returns
+    -------
+    numpy.ndarray
+        ``value`` as a float array (0-d for a scalar), for chaining.
+    """
+    arr = np.asarray(value, dtype=float)
+    bad = ~np.isfinite(arr)
+    if low is not None:
+        bad |= (arr < low) if low_inclusive else (arr <= low)
+    if high is not None:
+        bad |= (arr > high) if high_inclusive else (arr >= high)
+    if np.any(bad):
+        lo = "-inf" if low is None else f"{low:g}"
+        hi = "+inf" if high is None else f"{high:g}"
+        allowed = f"{lo} to {hi} {unit}".strip()
+        if arr.ndim == 0:
+            message = f"{field} = {float(arr):g} {unit} is outside the allowed range {allowed}"
+            raise InputRangeError(field, message.replace("  ", " "), allowed)
+        first_bad = float(arr[bad].flat[0])
+        message = (
+            f"{field} outside the allowed range {allowed}"
+            f"{_describe_indices(bad, arr.size)}; first bad value {first_bad:g} {unit}"
+        )
+        raise InputRangeError(field, message.strip(), allowed, np.flatnonzero(bad))
+    return arr

@@ -1,0 +1,325 @@
+"""Unit conversion at the edges: input parsing, display and export.
+
+The core works in SI only (°C, kg/kg, kJ/kg, Pa, m³/s, kW). The functions here
+convert what a plant engineer types or reads in either system. The unit system
+shown to a user is a parameter (:class:`UnitSystem`), never global state.
+
+Factors come from :mod:`plantside.constants` (NIST SP 811; AHRI 550/590 for the ton).
+"""
+
+from __future__ import annotations
+
+from enum import StrEnum
+
+import numpy as np
+
+from .constants import (
+    GRAINS_PER_LB,
+    KJKG_PER_BTULB,
+    KW_PER_TON,
+    M3S_PER_CFM,
+    M_PER_FT,
+    PA_PER_INHG,
+    PA_PER_PSI,
+    W_PER_BTUH,
+)
+from .errors import InputRangeError
+
+__all__ = [
+    "QUANTITIES",
+    "UnitSystem",
+    "btuh_from_kw",
+    "btulb_from_kjkg",
+    "celsius_from_fahrenheit",
+    "cfm_from_m3s",
+    "delta_celsius_from_fahrenheit",
+    "delta_fahrenheit_from_celsius",
+    "fahrenheit_from_celsius",
+    "feet_from_meters",
+    "from_display",
+    "g_per_kg_from_grains_per_lb",
+    "grains_per_lb_from_g_per_kg",
+    "inhg_from_pa",
+    "kjkg_from_btulb",
+    "kw_from_btuh",
+    "kw_from_mbh",
+    "kw_from_tons",
+    "lps_from_m3s",
+    "m3s_from_cfm",
+    "m3s_from_lps",
+    "mbh_from_kw",
+    "meters_from_feet",
+    "pa_from_inhg",
+    "pa_from_psia",
+    "psia_from_pa",
+    "to_display",
+    "tons_from_kw",
+]
+
+
+class UnitSystem(StrEnum):
+    """The unit system a user reads and types: ``"SI"`` or ``"IP"``."""
+
+    SI = "SI"
+    IP = "IP"
+
+    @classmethod
+    def parse(cls, value) -> UnitSystem:
+        """Accept ``"SI"``/``"IP"`` in any case; raise a clear error otherwise."""
+        text = str(value).strip().upper()
+        if text in ("IP", "I-P", "US"):
+            return cls.IP
+        if text == "SI":
+            return cls.SI
+        raise InputRangeError(
+            "unit_system", f"unit_system = {value!r}; allowed 'SI' or 'IP'", "'SI' or 'IP'"
+        )
+
+
+def _f(x):
+    return np.asarray(x, dtype=float)
+
+
+# temperature
+def fahrenheit_from_celsius(celsius):
+    """Temperature [°F] from [°C]."""
+    return _f(celsius) * 1.8 + 32.0
+
+
+def celsius_from_fahrenheit(fahrenheit):
+    """Temperature [°C] from [°F]."""
+    return (_f(fahrenheit) - 32.0) / 1.8
+
+
+def delta_fahrenheit_from_celsius(kelvin_difference):
+    """Temperature difference [°F] from [K]."""
+    return _f(kelvin_difference) * 1.8
+
+
+def delta_celsius_from_fahrenheit(fahrenheit_difference):
+    """Temperature difference [K] from [°F]."""
+    return _f(fahrenheit_difference) / 1.8
+
+
+# power
+def btuh_from_kw(kw):
+    """Heat rate [Btu/h] from [kW]."""
+    return _f(kw) * 1000.0 / W_PER_BTUH
+
+
+def kw_from_btuh(btuh):
+    """Heat rate [kW] from [Btu/h]."""
+    return _f(btuh) * W_PER_BTUH / 1000.0
+
+
+def mbh_from_kw(kw):
+    """Heat rate [MBH, thousands of Btu/h] from [kW]."""
+    return btuh_from_kw(kw) / 1000.0
+
+
+def kw_from_mbh(mbh):
+    """Heat rate [kW] from [MBH]."""
+    return kw_from_btuh(_f(mbh) * 1000.0)
+
+
+def tons_from_kw(kw):
+    """Refrigeration [tons, 12,000 Btu/h] from [kW]."""
+    return _f(kw) / KW_PER_TON
+
+
+def kw_from_tons(tons):
+    """Refrigeration [kW] from [tons]."""
+    return _f(tons) * KW_PER_TON
+
+
+# airflow
+def cfm_from_m3s(m3s):
+    """Airflow [cfm] from [m³/s]."""
+    return _f(m3s) / M3S_PER_CFM
+
+
+def m3s_from_cfm(cfm):
+    """Airflow [m³/s] from [cfm]."""
+    return _f(cfm) * M3S_PER_CFM
+
+
+def lps_from_m3s(m3s):
+    """Airflow [L/s] from [m³/s]."""
+    return _f(m3s) * 1000.0
+
+
+def m3s_from_lps(lps):
+    """Airflow [m³/s] from [L/s]."""
+    return _f(lps) / 1000.0
+
+
+# enthalpy and humidity
+def btulb_from_kjkg(kjkg):
+    """Enthalpy [Btu/lb] from [kJ/kg]. Both scales are referenced here to 0 °C; the IP
+    table convention (0 °F dry air) differs by a constant, see DEVELOPERS.md."""
+    return _f(kjkg) / KJKG_PER_BTULB
+
+
+def kjkg_from_btulb(btulb):
+    """Enthalpy [kJ/kg] from [Btu/lb] (same reference as :func:`btulb_from_kjkg`)."""
+    return _f(btulb) * KJKG_PER_BTULB
+
+
+def grains_per_lb_from_g_per_kg(g_per_kg):
+    """Humidity ratio [grains/lb] from [g/kg]."""
+    return _f(g_per_kg) * GRAINS_PER_LB / 1000.0
+
+
+def g_per_kg_from_grains_per_lb(grains):
+    """Humidity ratio [g/kg] from [grains/lb]."""
+    return _f(grains) * 1000.0 / GRAINS_PER_LB
+
+
+# length and pressure
+def feet_from_meters(m):
+    """Length [ft] from [m]."""
+    return _f(m) / M_PER_FT
+
+
+def meters_from_feet(ft):
+    """Length [m] from [ft]."""
+    return _f(ft) * M_PER_FT
+
+
+def psia_from_pa(pa):
+    """Pressure [psia] from [Pa]."""
+    return _f(pa) / PA_PER_PSI
+
+
+def pa_from_psia(psia):
+    """Pressure [Pa] from [psia]."""
+    return _f(psia) * PA_PER_PSI
+
+
+def inhg_from_pa(pa):
+    """Pressure [inHg] from [Pa]."""
+    return _f(pa) / PA_PER_INHG
+
+
+def pa_from_inhg(inhg):
+    """Pressure [Pa] from [inHg]."""
+    return _f(inhg) * PA_PER_INHG
+
+
+def _identity(x):
+    return _f(x)
+
+
+# quantity -> SI unit, IP unit, SI->display (SI), display->SI (SI), SI->IP, IP->SI.
+# SI display units are chosen for the trade: humidity in g/kg, pressure in kPa, airflow in L/s.
+QUANTITIES = {
+    "temperature": (
+        "°C",
+        "°F",
+        _identity,
+        _identity,
+        fahrenheit_from_celsius,
+        celsius_from_fahrenheit,
+    ),
+    "temperature_difference": (
+        "K",
+        "°F",
+        _identity,
+        _identity,
+        delta_fahrenheit_from_celsius,
+        delta_celsius_from_fahrenheit,
+    ),
+    "power": ("kW", "tons", _identity, _identity, tons_from_kw, kw_from_tons),
+    "heating_power": ("kW", "MBH", _identity, _identity, mbh_from_kw, kw_from_mbh),
+    "energy": (
+        "MWh",
+        "ton·h",
+        lambda kwh: _f(kwh) / 1000.0,
+        lambda mwh: _f(mwh) * 1000.0,
+        tons_from_kw,
+        kw_from_tons,
+    ),
+    "heating_energy": (
+        "MWh",
+        "MMBtu",
+        lambda kwh: _f(kwh) / 1000.0,
+        lambda mwh: _f(mwh) * 1000.0,
+        lambda kwh: btuh_from_kw(kwh) / 1e6,
+        lambda mmbtu: kw_from_btuh(_f(mmbtu) * 1e6),
+    ),
+    "airflow": ("L/s", "cfm", lps_from_m3s, m3s_from_lps, cfm_from_m3s, m3s_from_cfm),
+    "enthalpy": ("kJ/kg", "Btu/lb", _identity, _identity, btulb_from_kjkg, kjkg_from_btulb),
+    "humidity_ratio": (
+        "g/kg",
+        "gr/lb",
+        lambda w: _f(w) * 1000.0,
+        lambda g: _f(g) / 1000.0,
+        lambda w: grains_per_lb_from_g_per_kg(_f(w) * 1000.0),
+        lambda gr: g_per_kg_from_grains_per_lb(gr) / 1000.0,
+    ),
+    "length": ("m", "ft", _identity, _identity, feet_from_meters, meters_from_feet),
+    "pressure": (
+        "kPa",
+        "inHg",
+        lambda pa: _f(pa) / 1000.0,
+        lambda kpa: _f(kpa) * 1000.0,
+        inhg_from_pa,
+        pa_from_inhg,
+    ),
+    "mass_flow": (
+        "kg/s",
+        "lb/h",
+        _identity,
+        _identity,
+        lambda kgs: _f(kgs) * 3600.0 / 0.45359237,
+        lambda lbh: _f(lbh) * 0.45359237 / 3600.0,
+    ),
+}
+
+
+def _lookup(quantity):
+    try:
+        return QUANTITIES[quantity]
+    except KeyError:
+        allowed = ", ".join(sorted(QUANTITIES))
+        raise InputRangeError(
+            "quantity", f"unknown quantity {quantity!r}; allowed: {allowed}", allowed
+        ) from None
+
+
+def unit_label(quantity: str, system) -> str:
+    """Display unit of ``quantity`` in ``system``."""
+    si, ip, *_ = _lookup(quantity)
+    return ip if UnitSystem.parse(system) is UnitSystem.IP else si
+
+
+def to_display(quantity: str, value_si, system):
+    """Convert an SI core value to what the user reads.
+
+    Parameters
+    ----------
+    quantity : str
+        One of :data:`QUANTITIES` (e.g. ``"power"``; its SI core unit is kW, and
+        ``"energy"`` is kWh in the core).
+    value_si : array_like
+        Value in the core's SI unit.
+    system : UnitSystem or str
+        ``"SI"`` or ``"IP"``.
+
+    Returns
+    -------
+    tuple
+        (value in display units as numpy array, unit label).
+    """
+    si, ip, to_si_display, _, to_ip, _ = _lookup(quantity)
+    if UnitSystem.parse(system) is UnitSystem.IP:
+        return to_ip(value_si), ip
+    return to_si_display(value_si), si
+
+
+def from_display(quantity: str, value, system):
+    """Convert what the user typed (display units) to the core's SI unit."""
+    _, _, _, from_si_display, _, from_ip = _lookup(quantity)
+    if UnitSystem.parse(system) is UnitSystem.IP:
+        return from_ip(value)
+    return from_si_display(value)
