@@ -1,0 +1,22 @@
+"""Shared reference states and settings for the test suite."""
+
+import os
+
+import pytest
+from hypothesis import HealthCheck, settings
+
+# Property tests run on a shared 2-core CI machine: no deadline, modest example counts.
+settings.register_profile(
+    "plantside",
+    deadline=None,
+    max_examples=100,
+    suppress_health_check=[HealthCheck.too_slow],
+)
+settings.load_profile(os.environ.get("HYPOTHESIS_PROFILE", "plantside"))
+
+
+@pytest.fixture
+def sea_level_pressure():
+    """Standard atmospheric pressure at sea level [Pa]; ASHRAE Handbook Fundamentals 2017
+    Ch. 1 Table 1."""
+    return 101325.0
