@@ -39,6 +39,7 @@ from .plant_loads import hourly_loads
 
 __all__ = [
     "NO_LOAD_FRACTION_OF_PEAK",
+    "band_edges",
     "band_index_from_ratio",
     "band_table_labels",
     "bands_from_width",
@@ -111,12 +112,18 @@ def band_index_from_ratio(ratio, bands: int) -> np.ndarray:
     return np.searchsorted(edges, np.asarray(ratio, dtype=float), side="left")
 
 
-def band_table_labels(bands: int) -> pd.DataFrame:
-    """Labels and edges [%] of bands 1..bands and of the band above 100 %."""
+def band_edges(bands: int) -> tuple[list[str], np.ndarray, np.ndarray]:
+    """Labels and lower and upper edges [%] of bands 1..bands (without the band above 100 %)."""
     k = np.arange(1, bands + 1)
     lower = (k - 1) * 100.0 / bands
     upper = k * 100.0 / bands
     labels = [f"{lo:g}-{hi:g} %" for lo, hi in zip(lower, upper, strict=True)]
+    return labels, lower, upper
+
+
+def band_table_labels(bands: int) -> pd.DataFrame:
+    """Labels and edges [%] of bands 1..bands and of the band above 100 %."""
+    labels, lower, upper = band_edges(bands)
     return pd.DataFrame(
         {
             "band": [*labels, "above 100 %"],
