@@ -1,6 +1,6 @@
 """Tests of plantside.efficiency: AHRI IPLV and the project-weighted efficiency.
 
-IPLV: AHRI Standard 550/590 (I-P)-2023, section 5.4 (and 551/591 (SI)): weights 1 %, 42 %,
+IPLV: AHRI Standard 550/590 (I-P)-2020, section 5.4 (and 551/591 (SI)): weights 1 %, 42 %,
 45 %, 12 % at 100, 75, 50, 25 % load; IPLV = 0.01A + 0.42B + 0.45C + 0.12D for COP or EER,
 IPLV = 1 / (0.01/A + 0.42/B + 0.45/C + 0.12/D) for kW/ton.
 """
@@ -29,7 +29,7 @@ KW_PER_TON_POINTS = [0.70, 0.58, 0.50, 0.54]
 
 
 def test_published_weights_and_points():
-    # AHRI 550/590 (I-P)-2023 section 5.4: A..D at 100/75/50/25 % with 0.01/0.42/0.45/0.12
+    # AHRI 550/590 (I-P)-2020 section 5.4: A..D at 100/75/50/25 % with 0.01/0.42/0.45/0.12
     assert IPLV_LOAD_POINTS == (1.00, 0.75, 0.50, 0.25)
     assert IPLV_WEIGHTS == (0.01, 0.42, 0.45, 0.12)
     assert sum(IPLV_WEIGHTS) == pytest.approx(1.0)

@@ -2,7 +2,7 @@
 
 IPLV (integrated part-load value)
 ---------------------------------
-AHRI Standard 550/590 (I-P), 2023, and its SI twin AHRI Standard 551/591 (SI),
+AHRI Standard 550/590 (I-P)-2020, and its SI twin AHRI Standard 551/591 (SI)-2020,
 section 5.4 ("Part-load values", the IPLV.IP / IPLV.SI equations), weight a
 chiller's efficiency at 100, 75, 50 and 25 % load with 1, 42, 45 and 12 %:
 
@@ -13,8 +13,9 @@ chiller's efficiency at 100, 75, 50 and 25 % load with 1, 42, 45 and 12 %:
 
 where A, B, C, D are the efficiencies at 100, 75, 50 and 25 % load. The
 two forms agree: the kW/ton IPLV equals 3.517 divided by the COP IPLV of the
-same machine. (Section and form from the standard as we read it; the equation
-numbers differ between editions, so none is quoted.) The standard rates the
+same machine (follows from kW/ton = 3.517 / COP). The section number is from
+memory of the 2020 edition; equation numbers differ between editions, so none
+is quoted. The standard rates the
 part-load points at reduced condenser temperatures (e.g. 85/75/65/65 °F
 entering condenser water for water-cooled machines, from memory), so the four
 efficiencies already include condenser relief at part load.
@@ -64,10 +65,10 @@ Project IPLV
 
 References
 ----------
-[1] AHRI Standard 550/590 (I-P)-2023, Performance Rating of Water-Chilling and
+[1] AHRI Standard 550/590 (I-P)-2020, Performance Rating of Water-Chilling and
     Heat Pump Water-Heating Packages Using the Vapor Compression Cycle,
     section 5.4 (IPLV.IP).
-[2] AHRI Standard 551/591 (SI)-2023, same title, section 5.4 (IPLV.SI).
+[2] AHRI Standard 551/591 (SI)-2020, same title, section 5.4 (IPLV.SI).
 """
 
 from __future__ import annotations
@@ -194,7 +195,7 @@ def integrated_part_load_value(efficiencies, metric: str = "cop", weights=IPLV_W
 
     Notes
     -----
-    AHRI 550/590 (I-P)-2023 section 5.4 [1] (and 551/591 (SI) [2]):
+    AHRI 550/590 (I-P)-2020 section 5.4 [1] (and 551/591 (SI) [2]):
     :math:`IPLV = 0.01A + 0.42B + 0.45C + 0.12D` (COP, EER);
     :math:`IPLV = 1/(0.01/A + 0.42/B + 0.45/C + 0.12/D)` (kW/ton).
     """
