@@ -32,8 +32,10 @@ __all__ = [
     "btulb_from_kjkg",
     "celsius_from_fahrenheit",
     "cfm_from_m3s",
+    "delta_btulb_from_kjkg",
     "delta_celsius_from_fahrenheit",
     "delta_fahrenheit_from_celsius",
+    "delta_kjkg_from_btulb",
     "fahrenheit_from_celsius",
     "feet_from_meters",
     "from_display",
@@ -154,14 +156,36 @@ def m3s_from_lps(lps):
 
 
 # enthalpy and humidity
+#: Offset between the IP enthalpy scale (dry air at 0 °F, liquid water at 32 °F) and the
+#: SI scale (dry air and liquid water at 0 °C) [Btu/lb]: 1.006 kJ/(kg K) x 17.78 K / 2.326.
+#: ASHRAE Handbook Fundamentals 2017 Ch. 1, Eq. 32 in SI and in I-P (h = 0.240 t + W(1061 +
+#: 0.444 t)); the vapour terms coincide, the dry-air terms differ by this constant.
+IP_ENTHALPY_OFFSET_BTULB = 1.006 * (32.0 / 1.8) / KJKG_PER_BTULB
+
+
 def btulb_from_kjkg(kjkg):
-    """Enthalpy [Btu/lb] from [kJ/kg]. Both scales are referenced here to 0 °C; the IP
-    table convention (0 °F dry air) differs by a constant, see DEVELOPERS.md."""
-    return _f(kjkg) / KJKG_PER_BTULB
+    """Moist-air enthalpy [Btu/lb, I-P reference 0 °F] from [kJ/kg, SI reference 0 °C].
+
+    The two scales have different zeros (ASHRAE Handbook Fundamentals 2017 Ch. 1, Eq. 32 in
+    SI and I-P), so a state of 47.3 kJ/kg reads 28.0 Btu/lb, as the I-P tables print it. For a
+    difference of enthalpies use :func:`delta_btulb_from_kjkg`.
+    """
+    return _f(kjkg) / KJKG_PER_BTULB + IP_ENTHALPY_OFFSET_BTULB
 
 
 def kjkg_from_btulb(btulb):
-    """Enthalpy [kJ/kg] from [Btu/lb] (same reference as :func:`btulb_from_kjkg`)."""
+    """Moist-air enthalpy [kJ/kg, SI reference] from [Btu/lb, I-P reference] (inverse of
+    :func:`btulb_from_kjkg`)."""
+    return (_f(btulb) - IP_ENTHALPY_OFFSET_BTULB) * KJKG_PER_BTULB
+
+
+def delta_btulb_from_kjkg(kjkg):
+    """Enthalpy difference [Btu/lb] from [kJ/kg] (exact factor 2.326, NIST SP 811)."""
+    return _f(kjkg) / KJKG_PER_BTULB
+
+
+def delta_kjkg_from_btulb(btulb):
+    """Enthalpy difference [kJ/kg] from [Btu/lb]."""
     return _f(btulb) * KJKG_PER_BTULB
 
 
@@ -249,6 +273,14 @@ QUANTITIES = {
     ),
     "airflow": ("L/s", "cfm", lps_from_m3s, m3s_from_lps, cfm_from_m3s, m3s_from_cfm),
     "enthalpy": ("kJ/kg", "Btu/lb", _identity, _identity, btulb_from_kjkg, kjkg_from_btulb),
+    "enthalpy_difference": (
+        "kJ/kg",
+        "Btu/lb",
+        _identity,
+        _identity,
+        delta_btulb_from_kjkg,
+        delta_kjkg_from_btulb,
+    ),
     "humidity_ratio": (
         "g/kg",
         "gr/lb",
