@@ -1,0 +1,142 @@
+"""Pinned "A" against current "B": one frame, one chart, both scenarios drawn.
+
+A chart frame may carry a ``scenario`` column with the values ``"A"`` (the
+result the engineer pinned) and ``"B"`` (the result of the controls as they
+are now). :func:`combine_scenarios` builds such a frame from two frames of the
+same kind; every builder then draws both, A in the role colours but dashed,
+lighter or hollow, B solid, so colour keeps meaning the quantity and the
+drawing style means the scenario. A frame without the column is drawn as one
+scenario, as it always was.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Mapping
+
+import altair as alt
+import pandas as pd
+
+from ..errors import InputRangeError
+
+__all__ = [
+    "SCENARIOS",
+    "SCENARIO_COLUMN",
+    "SCENARIO_LABELS",
+    "combine_scenarios",
+    "has_scenarios",
+    "scenario_dash",
+    "scenario_opacity",
+    "scenario_shape",
+    "scenarios_in",
+]
+
+#: Column naming the scenario of each row.
+SCENARIO_COLUMN = "scenario"
+#: Allowed scenario values, in drawing order.
+SCENARIOS = ("A", "B")
+#: Legend text of each scenario.
+SCENARIO_LABELS = {"A": "A (pinned)", "B": "B (current)"}
+
+_DASH = {"A": [9, 5], "B": [1, 0]}
+_OPACITY = {"A": 0.45, "B": 0.95}
+_SHAPE = {"A": "diamond", "B": "circle"}
+
+
+def combine_scenarios(frames: Mapping[str, pd.DataFrame]) -> pd.DataFrame:
+    """Stack chart frames of the same kind with a ``scenario`` column.
+
+    Parameters
+    ----------
+    frames : mapping of str to pandas.DataFrame
+        ``{"A": pinned_frame, "B": current_frame}``; either key may be left
+        out. Frames must come from the same frame function in the same unit
+        system (their ``attrs["system"]`` must agree).
+
+    Returns
+    -------
+    pandas.DataFrame
+        The rows of each frame with ``scenario`` set, A first. ``attrs`` are
+        those of the first frame, and ``attrs["scenarios"]`` holds each
+        scenario's own ``attrs`` (e.g. the hours left out of each).
+
+    Raises
+    ------
+    InputRangeError
+        For a key other than "A"/"B", no frames, frames of different unit
+        systems or different columns.
+    """
+    if not frames:
+        raise InputRangeError("frames", "no scenario frames given", "'A' and/or 'B'")
+    unknown = sorted(set(frames) - set(SCENARIOS))
+    if unknown:
+        raise InputRangeError(
+            "scenario", f"scenario {unknown[0]!r} is not allowed", "'A' (pinned) or 'B' (current)"
+        )
+    keys = [key for key in SCENARIOS if key in frames]
+    systems = {frames[key].attrs.get("system") for key in keys}
+    if len(systems) > 1:
+        raise InputRangeError(
+            "system",
+            f"scenario frames are in different unit systems {sorted(map(str, systems))}",
+            "one unit system for A and B",
+        )
+    columns = [tuple(c for c in frames[key].columns if c != SCENARIO_COLUMN) for key in keys]
+    if len(set(columns)) > 1:
+        raise InputRangeError(
+            "frames", "scenario frames have different columns", "frames of the same kind"
+        )
+    parts = [frames[key].assign(**{SCENARIO_COLUMN: key}) for key in keys]
+    combined = pd.concat(parts, ignore_index=True)
+    combined.attrs = dict(frames[keys[0]].attrs)
+    combined.attrs["scenarios"] = {key: dict(frames[key].attrs) for key in keys}
+    return combined
+
+
+def has_scenarios(frame: pd.DataFrame) -> bool:
+    """True when the frame carries a ``scenario`` column."""
+    return SCENARIO_COLUMN in frame.columns
+
+
+def scenarios_in(frame: pd.DataFrame) -> list[str]:
+    """Scenario values present in the frame, in drawing order ([] without the column)."""
+    if not has_scenarios(frame):
+        return []
+    present = set(frame[SCENARIO_COLUMN].unique())
+    return [key for key in SCENARIOS if key in present]
+
+
+def _legend_scale(mapping: dict, frame: pd.DataFrame) -> alt.Scale:
+    present = scenarios_in(frame) or list(SCENARIOS)
+    return alt.Scale(domain=present, range=[mapping[key] for key in present])
+
+
+def _legend(title: str = "Scenario") -> alt.Legend:
+    return alt.Legend(title=title, labelExpr=f"{_label_expression()}", symbolStrokeWidth=3)
+
+
+def _label_expression() -> str:
+    cases = " : ".join(
+        f"datum.value === '{key}' ? '{label}'" for key, label in SCENARIO_LABELS.items()
+    )
+    return f"{cases} : datum.value"
+
+
+def scenario_dash(frame: pd.DataFrame):
+    """``strokeDash`` encoding: A dashed, B solid (for lines and rules)."""
+    return alt.StrokeDash(
+        f"{SCENARIO_COLUMN}:N", scale=_legend_scale(_DASH, frame), legend=_legend()
+    )
+
+
+def scenario_opacity(frame: pd.DataFrame, legend: bool = True):
+    """``opacity`` encoding: A light, B strong (for bars and areas)."""
+    return alt.Opacity(
+        f"{SCENARIO_COLUMN}:N",
+        scale=_legend_scale(_OPACITY, frame),
+        legend=_legend() if legend else None,
+    )
+
+
+def scenario_shape(frame: pd.DataFrame):
+    """``shape`` encoding: A diamonds, B circles (for points)."""
+    return alt.Shape(f"{SCENARIO_COLUMN}:N", scale=_legend_scale(_SHAPE, frame), legend=_legend())

@@ -1,0 +1,279 @@
+"""The chart layer's colours, roles and theme.
+
+Every colour a chart uses is named here by the role it plays, so the same
+quantity looks the same in every chart (coil load is always one blue, zone
+load always one orange) and a reader who has learnt one chart can read the
+next.
+
+Sources of the colours
+----------------------
+The hues are taken from two open, published colour-blind-safe sets; the
+choice of colours and the roles are our own.
+
+[1] M. Okabe and K. Ito, "Color Universal Design (CUD): how to make figures
+    and presentations that are friendly to colorblind people", J*FLY, 2008
+    (the eight-colour set: black, orange, sky blue, bluish green, yellow,
+    blue, vermillion, reddish purple).
+[2] P. Tol, "Colour Schemes", SRON technical note SRON/EPS/TN/09-002,
+    issue 3.2, 2021 (the "muted" qualitative set and the "iridescent"
+    sequential scheme). Hex values from memory, checked for colour-blind
+    separation and ordered lightness in ``tests/test_charts.py``.
+
+Theme
+-----
+:data:`THEME_NAME` is registered with Altair (``alt.theme.enable("plantside")``
+applies it to charts made elsewhere), but the builders do not rely on a global
+switch: :func:`themed` writes the same configuration into each chart, so a
+chart renders identically in the dashboard, in a notebook and through
+vl-convert. Type is sized for a meeting-room projector: 15 px tick labels,
+17 px axis titles, 22 px chart titles, a default plot of 760 x 400 px.
+"""
+
+from __future__ import annotations
+
+import functools
+
+import altair as alt
+
+__all__ = [
+    "BACKGROUND",
+    "CATEGORY_COLOURS",
+    "COIL",
+    "COMPONENT_COLOURS",
+    "DENSITY_SCHEME",
+    "FONT",
+    "GRID",
+    "INK",
+    "INK_SOFT",
+    "MODE_COLOURS",
+    "PLANT",
+    "PROCESS",
+    "REFERENCE",
+    "STAGE",
+    "STANDARD",
+    "THEME_NAME",
+    "ZONE",
+    "mode_colours",
+    "theme_config",
+    "themed",
+]
+
+# --- neutral roles ------------------------------------------------------------------------
+#: Text, axes and the saturation curve: a dark blue-grey, softer than black on a projector.
+INK = "#1d2733"
+#: Secondary text (subtitles, stamps, RH and enthalpy line labels).
+INK_SOFT = "#5b6673"
+#: Grid lines and the psychrometric chart's RH/enthalpy lines.
+GRID = "#d5dae0"
+#: Chart background (white prints and projects best).
+BACKGROUND = "#ffffff"
+
+# --- series roles (Okabe-Ito [1]) ----------------------------------------------------------
+#: Coil load, wherever it appears (Okabe-Ito blue).
+COIL = "#0072B2"
+#: Zone load, wherever it appears (Okabe-Ito orange).
+ZONE = "#E69F00"
+#: Plant (coincident) load (Okabe-Ito black, drawn as INK).
+PLANT = INK
+#: The design process on the psychrometric chart (Okabe-Ito vermillion).
+PROCESS = "#D55E00"
+#: Plant capacity and the current-setting marker (Okabe-Ito vermillion).
+REFERENCE = "#D55E00"
+#: Stage (machine) capacity lines: a mid grey.
+STAGE = "#6b747e"
+#: AHRI 550/590 rating weights beside the building's own (Okabe-Ito reddish purple).
+STANDARD = "#CC79A7"
+
+# --- design breakdown components (Tol muted [2]) ------------------------------------------
+#: One colour per component of the design coil load. Sensible parts are the darker of
+#: each pair and latent parts the lighter, so the pairs read together in grey too.
+COMPONENT_COLOURS = {
+    "Zone sensible": "#882255",  # wine
+    "Zone latent": "#CC6677",  # rose
+    "Ventilation sensible": "#117733",  # green
+    "Ventilation latent": "#44AA99",  # teal
+    "Fan heat": "#DDCC77",  # sand
+    "Economizer / recovery": "#88CCEE",  # cyan: a load taken away
+    "Zone load": ZONE,
+    "Coil load": COIL,
+}
+
+# --- economizer modes (Okabe-Ito [1]) -----------------------------------------------------
+#: Colour of each economizer mode of :data:`plantside.economizer.ECONOMIZER_MODES`, fixed
+#: so a mode keeps its colour from chart to chart and from scenario A to B. Okabe-Ito's
+#: yellow is left out (too light on white for a projector); "off" is grey.
+MODE_COLOURS = {
+    "off": "#3a3f45",
+    "minimum_outdoor_air": "#0072B2",  # blue
+    "free_cooling": "#009E73",  # bluish green
+    "integrated": "#56B4E9",  # sky blue
+    "locked_out": "#D55E00",  # vermillion
+    "heating": "#CC79A7",  # reddish purple
+    "all_outdoor_air": "#E69F00",  # orange
+}
+
+#: Colours for categories with no fixed role (Okabe-Ito order, yellow left out).
+CATEGORY_COLOURS = (
+    "#0072B2",
+    "#E69F00",
+    "#009E73",
+    "#CC79A7",
+    "#D55E00",
+    "#56B4E9",
+    "#000000",
+)
+
+# --- density (Tol iridescent [2], every other step of 23 from the second) ------------------
+#: Sequential colours for hour counts (binned density), light = few hours, dark = many.
+DENSITY_SCHEME = (
+    "#FCF7D5",
+    "#EAF0B5",
+    "#D0E7CA",
+    "#B5DDD8",
+    "#9BD2E1",
+    "#81C4E7",
+    "#7EB2E4",
+    "#9398D2",
+    "#9D7DB2",
+    "#906388",
+    "#684957",
+)
+
+#: Font stack: the first that the renderer has wins. Liberation Sans and DejaVu Sans ship
+#: with most Linux systems, so vl-convert finds one; browsers fall through to their sans-serif.
+FONT = "Liberation Sans, DejaVu Sans, Helvetica, Arial, sans-serif"
+
+#: Name under which the theme is registered with Altair.
+THEME_NAME = "plantside"
+
+#: Default plot size [px]; at export scale 2 the image is wider than 1,600 px.
+WIDTH = 760
+HEIGHT = 400
+#: Space around the chart [px].
+_PADDING = 16
+
+
+def mode_colours(modes) -> dict[str, str]:
+    """Colour of each economizer mode (fixed roles; unknown modes take spare colours).
+
+    Parameters
+    ----------
+    modes : iterable of str
+        Mode names (:data:`plantside.economizer.ECONOMIZER_MODES` values).
+
+    Returns
+    -------
+    dict
+        Mode name -> hex colour.
+    """
+    colours = {}
+    spare = iter(CATEGORY_COLOURS * 4)
+    for mode in modes:
+        colours[mode] = MODE_COLOURS.get(mode) or next(spare)
+    return colours
+
+
+def theme_config() -> dict:
+    """The plantside chart theme as a Vega-Lite top-level dict (``config`` and friends)."""
+    axis = {
+        "labelFontSize": 15,
+        "titleFontSize": 17,
+        "titleFontWeight": "normal",
+        "labelColor": INK,
+        "titleColor": INK,
+        "domainColor": INK_SOFT,
+        "tickColor": INK_SOFT,
+        "gridColor": GRID,
+        "gridWidth": 0.8,
+        "titlePadding": 10,
+        "labelPadding": 4,
+    }
+    return {
+        "background": BACKGROUND,
+        "padding": _PADDING,
+        "config": {
+            "font": FONT,
+            "view": {"continuousWidth": WIDTH, "continuousHeight": HEIGHT, "stroke": None},
+            "axis": axis,
+            "axisBand": {"grid": False},
+            "legend": {
+                "labelFontSize": 15,
+                "titleFontSize": 15,
+                "titleFontWeight": "bold",
+                "labelColor": INK,
+                "titleColor": INK,
+                "symbolSize": 160,
+                "labelLimit": 320,
+                "orient": "right",
+            },
+            "header": {
+                "labelFontSize": 17,
+                "titleFontSize": 17,
+                "labelColor": INK,
+                "titleColor": INK,
+            },
+            "title": {
+                "fontSize": 22,
+                "fontWeight": "bold",
+                "color": INK,
+                "subtitleFontSize": 15,
+                "subtitleColor": INK_SOFT,
+                "anchor": "start",
+                "offset": 14,
+            },
+            "text": {"fontSize": 14, "color": INK},
+            "line": {"strokeWidth": 3},
+            "rule": {"strokeWidth": 2},
+            "point": {"size": 90, "filled": True},
+            "bar": {"stroke": BACKGROUND, "strokeWidth": 0.5},
+            "range": {"category": list(CATEGORY_COLOURS), "ramp": list(DENSITY_SCHEME)},
+            "concat": {"spacing": 40},
+        },
+    }
+
+
+@alt.theme.register(THEME_NAME, enable=False)
+def _plantside_theme() -> alt.theme.ThemeConfig:
+    return alt.theme.ThemeConfig(**theme_config())
+
+
+def themed(chart, *, title: str, subtitle: str | list[str] | None = None):
+    """Give a finished chart its title and the plantside theme, as a top-level chart.
+
+    Parameters
+    ----------
+    chart : altair.Chart, LayerChart, HConcatChart or VConcatChart
+        The chart, not yet configured.
+    title : str
+        Chart title in the trade's words.
+    subtitle : str or list of str, optional
+        One or more subtitle lines (e.g. what the reader should look for).
+
+    Returns
+    -------
+    altair chart
+        The same kind of chart with title, background, padding and config set.
+        It can no longer be layered or concatenated (Altair's rule for
+        configured charts), so build compositions before calling this.
+    """
+    params = {"text": title, "anchor": "start"}
+    if subtitle:
+        params["subtitle"] = subtitle
+    # Set the top-level properties on a copy directly: ``chart.properties()`` would
+    # validate the whole config against the schema on every call (about 35 ms), and
+    # the complete spec is validated in the tests anyway.
+    finished = chart.copy(deep=False)
+    finished.title = alt.TitleParams(**params)
+    finished.background = BACKGROUND
+    finished.padding = _PADDING
+    finished.config = _config()
+    return finished
+
+
+@functools.cache
+def _config_cached() -> alt.Config:
+    return alt.Config.from_dict(theme_config()["config"])
+
+
+def _config() -> alt.Config:
+    return _config_cached().copy(deep=True)
