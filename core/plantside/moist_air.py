@@ -75,6 +75,10 @@ PRESSURE_MIN_PA = 30_000.0
 PRESSURE_MAX_PA = 120_000.0
 #: Relative tolerance when testing a humidity ratio against saturation.
 _SATURATION_SLACK = 1e-9
+#: Largest humidity ratio accepted anywhere [kg/kg], and the vapour pressure that gives
+#: it as a fraction of the total pressure (Eq. 20 of [1] with W = 1).
+HUMIDITY_RATIO_MAX = 1.0
+_PW_MAX_FRACTION = HUMIDITY_RATIO_MAX / (MOLAR_MASS_RATIO + HUMIDITY_RATIO_MAX)
 
 # Coefficients of Eqs. 5 (over ice) and 6 (over water) of [1], from [2].
 _C1, _C2, _C3, _C4, _C5, _C6, _C7 = (
@@ -120,7 +124,9 @@ def _check_pressure(value):
 def _check_not_above(field, value, limit, limit_text, unit):
     """Raise if any element of ``value`` exceeds the element-wise ``limit``."""
     value, limit = np.broadcast_arrays(_as_float(value), _as_float(limit))
-    bad = value > limit * (1 + _SATURATION_SLACK) + 1e-12
+    # The slack scales with |limit| so that a value equal to a negative limit (dew point
+    # or wet bulb equal to a dry bulb below 0 °C) is accepted.
+    bad = value > limit + np.abs(limit) * _SATURATION_SLACK + 1e-12
     if np.any(bad):
         if value.ndim == 0:
             message = (
@@ -190,6 +196,50 @@ def _ln_pws(drybulb):
 
 def _dln_pws_dt(drybulb):
     return _piecewise(drybulb, _dln_pws_dt_ice, _dln_pws_dt_water)
+
+
+def _ln_pws_with_slope(drybulb):
+    """ln pws [ln Pa] and d(ln pws)/dt [1/K] in one pass (for Newton iterations).
+
+    Same Eqs. 5 and 6 of [1] as :func:`_ln_pws` and :func:`_dln_pws_dt`, sharing
+    ln T and 1/T between the value and the slope.
+    """
+    kelvin = drybulb + ZERO_CELSIUS
+    inverse = 1.0 / kelvin
+    log_kelvin = np.log(kelvin)
+    on_ice = drybulb <= TRIPLE_POINT_C
+    any_ice = bool(np.any(on_ice))
+    all_ice = any_ice and bool(np.all(on_ice))
+    if not all_ice:
+        water = (
+            _C8 * inverse
+            + _C9
+            + kelvin * (_C10 + kelvin * (_C11 + kelvin * _C12))
+            + _C13 * log_kelvin
+        )
+        water_slope = (
+            inverse * (_C13 - _C8 * inverse) + _C10 + kelvin * (2 * _C11 + 3 * _C12 * kelvin)
+        )
+        if not any_ice:
+            return water, water_slope
+    ice = (
+        _C1 * inverse
+        + _C2
+        + kelvin * (_C3 + kelvin * (_C4 + kelvin * (_C5 + kelvin * _C6)))
+        + _C7 * log_kelvin
+    )
+    ice_slope = (
+        inverse * (_C7 - _C1 * inverse)
+        + _C3
+        + kelvin * (2 * _C4 + kelvin * (3 * _C5 + 4 * _C6 * kelvin))
+    )
+    if all_ice:
+        return ice, ice_slope
+    return np.where(on_ice, ice, water), np.where(on_ice, ice_slope, water_slope)
+
+
+#: Saturation pressure at 0 °C [Pa] as :func:`saturation_vapor_pressure` gives it (ice form).
+_PWS_0C = float(np.exp(_ln_pws_ice(ZERO_CELSIUS)))
 
 
 def saturation_vapor_pressure_over_ice(drybulb, *, check=True):
@@ -314,7 +364,7 @@ def humidity_ratio_from_vapor_pressure(vapor_pressure, pressure, *, check=True):
     Parameters
     ----------
     vapor_pressure : array_like
-        Partial pressure of water vapour [Pa], 0 up to below ``pressure``.
+        Partial pressure of water vapour [Pa], 0 up to 0.617 ``pressure`` (W = 1 kg/kg).
     pressure : array_like
         Total (station) pressure [Pa].
 
@@ -331,7 +381,9 @@ def humidity_ratio_from_vapor_pressure(vapor_pressure, pressure, *, check=True):
     if check:
         _check_pressure(p)
         check_range("vapor_pressure", pw, 0.0, None, "Pa")
-        _check_not_above("vapor_pressure", pw, 0.5 * p, "half the total pressure", "Pa")
+        _check_not_above(
+            "vapor_pressure", pw, _PW_MAX_FRACTION * p, "the vapour pressure of 1 kg/kg", "Pa"
+        )
     return _out(MOLAR_MASS_RATIO * pw / (p - pw))
 
 
@@ -423,7 +475,18 @@ def humidity_ratio_from_relative_humidity(drybulb, relative_humidity, pressure, 
         _check_drybulb("drybulb", t)
         check_range("relative_humidity", rh, 0.0, 1.0, "(fraction)")
         _check_pressure(p)
-    pw = rh * np.exp(_ln_pws(t))
+    pws = np.exp(_ln_pws(t))
+    if check:
+        # Near or above the boiling point at p, a high relative humidity asks for more
+        # vapour than the air can be said to carry: cap it where W reaches 1 kg/kg.
+        _check_not_above(
+            "relative_humidity",
+            rh,
+            _PW_MAX_FRACTION * p / pws,
+            "the value that gives 1 kg/kg at this dry bulb and pressure (near boiling)",
+            "(fraction)",
+        )
+    pw = rh * pws
     return _out(MOLAR_MASS_RATIO * pw / (p - pw))
 
 
@@ -463,7 +526,7 @@ def humidity_ratio_from_dew_point(dew_point, pressure, *, check=True):
     Parameters
     ----------
     dew_point : array_like
-        Dew-point temperature [°C].
+        Dew-point temperature [°C], up to the dew point of 1 kg/kg at ``pressure``.
     pressure : array_like
         Total pressure [Pa].
 
@@ -482,15 +545,33 @@ def humidity_ratio_from_dew_point(dew_point, pressure, *, check=True):
         _check_drybulb("dew_point", td)
         _check_pressure(p)
     pw = np.exp(_ln_pws(td))
-    if check:
-        _check_not_above("dew_point", pw, 0.5 * p, "the boiling range at this pressure", "Pa")
+    if check and np.any(pw > _PW_MAX_FRACTION * p):
+        highest = dew_point_from_vapor_pressure(_PW_MAX_FRACTION * p, check=False)
+        _check_not_above("dew_point", td, highest, "the dew point of 1 kg/kg", "°C")
     return _out(MOLAR_MASS_RATIO * pw / (p - pw))
+
+
+def _dew_point_first_guess(vapor_pressure):
+    """Closed-form dew point [°C] from vapour pressure [Pa], accurate to about 0.1 K
+    from -20 to 93 °C (about 1 K at -60 °C); a first guess for Newton iterations.
+
+    ASHRAE Handbook Fundamentals 2017, Ch. 1, Eq. 39 (dew point 0 to 93 °C) and Eq. 40
+    (below 0 °C), with alpha = ln pw, pw in kPa.
+    """
+    pw_kpa = np.clip(vapor_pressure, 1e-9, None) / 1000.0
+    alpha = np.log(pw_kpa)
+    above_freezing = 6.54 + alpha * (14.526 + alpha * (0.7389 + alpha * 0.09486))
+    above_freezing = above_freezing + 0.4569 * pw_kpa**0.1984
+    below_freezing = 6.09 + alpha * (12.608 + alpha * 0.4959)
+    guess = np.where(above_freezing >= 0.0, above_freezing, below_freezing)
+    return np.clip(guess, DRYBULB_MIN_C, DRYBULB_MAX_C)
 
 
 def dew_point_from_vapor_pressure(vapor_pressure, *, check=True):
     """Dew point: the temperature at which the saturation pressure equals ``vapor_pressure``.
 
-    Solved by Newton iteration on ln pws for the whole array at once.
+    Solved by Newton iteration on ln pws for the whole array at once, started from the
+    handbook's closed-form approximation (Eqs. 39 and 40 of [1]).
 
     Parameters
     ----------
@@ -504,28 +585,38 @@ def dew_point_from_vapor_pressure(vapor_pressure, *, check=True):
 
     References
     ----------
-    ASHRAE Handbook Fundamentals 2017, Ch. 1, Eq. 37 (pws(td) = pw) with Eqs. 5 and 6.
+    ASHRAE Handbook Fundamentals 2017, Ch. 1, Eq. 37 (pws(td) = pw) with Eqs. 5 and 6;
+    first guess from Eqs. 39 and 40.
     """
     pw = _as_float(vapor_pressure)
     if check:
         low = float(np.exp(_ln_pws(np.asarray(DRYBULB_MIN_C))))
         high = float(np.exp(_ln_pws(np.asarray(DRYBULB_MAX_C))))
         check_range("vapor_pressure", pw, low, high, "Pa")
-    target = np.log(np.clip(pw, 1e-300, None))
-    # Magnus-form first guess over water, then Newton on the exact formulation.
-    gamma = np.log(np.clip(pw, 1e-30, None) / 611.2)
-    td = np.clip(243.12 * gamma / (17.62 - gamma), DRYBULB_MIN_C, DRYBULB_MAX_C)
-    td, target = np.array(td, dtype=float), np.broadcast_to(target, td.shape)
-    flat_td, flat_target = td.reshape(-1), target.reshape(-1)
-    active = np.arange(flat_td.size)
+    td = np.array(_dew_point_first_guess(pw), dtype=float)
+    flat_td = td.reshape(-1)
+    flat_target = np.log(np.clip(pw, 1e-300, None)).reshape(-1)
+    # Whole-array steps while most elements still move, then an active set.
+    active = None
     for _ in range(40):
-        if active.size == 0:
+        x = flat_td if active is None else flat_td[active]
+        target = flat_target if active is None else flat_target[active]
+        ln_pws, slope = _ln_pws_with_slope(x)
+        step = (ln_pws - target) / slope
+        x_new = np.clip(x - step, DRYBULB_MIN_C, DRYBULB_MAX_C)
+        # ln pws is increasing and concave with |f''/(2 f')| = about 1/T < 0.006 /K, so
+        # after a Newton step s the error left is below 0.006 s^2: a step under 1e-3 K
+        # leaves less than 1e-8 K.
+        moving = np.abs(step) >= 1e-3
+        if active is None:
+            flat_td[:] = x_new
+            left = np.flatnonzero(moving)
+            active = None if left.size > flat_td.size // 2 else left
+        else:
+            flat_td[active] = x_new
+            active = active[moving]
+        if active is not None and active.size == 0:
             break
-        x = flat_td[active]
-        step = (_ln_pws(x) - flat_target[active]) / _dln_pws_dt(x)
-        flat_td[active] = np.clip(x - step, DRYBULB_MIN_C, DRYBULB_MAX_C)
-        # Quadratic convergence: after a step under 1e-5 K the error left is ~1e-10 K.
-        active = active[np.abs(step) >= 1e-5]
     return _out(td)
 
 
@@ -561,7 +652,13 @@ def _humidity_ratio_from_wet_bulb(t, twb, p, *, with_slope=False):
 
     With ``with_slope`` also return dW/dtwb [kg/kg/K] for Newton iterations.
     """
-    pws = np.minimum(np.exp(_ln_pws(twb)), 0.999 * p)
+    if with_slope:
+        ln_pws, dln_pws = _ln_pws_with_slope(twb)
+    else:
+        ln_pws = _ln_pws(twb)
+    # The cap only binds above the boiling point at ``p``; the wet-bulb solver keeps its
+    # bracket below the temperature where pws = 0.9 p, so the slope below stays exact.
+    pws = np.minimum(np.exp(ln_pws), 0.999 * p)
     ws_star = MOLAR_MASS_RATIO * pws / (p - pws)
     # The water form holds at and above 0 °C (Eq. 33), the ice form below (Eq. 35).
     water = twb >= 0.0
@@ -578,7 +675,7 @@ def _humidity_ratio_from_wet_bulb(t, twb, p, *, with_slope=False):
     w = numerator / denominator
     if not with_slope:
         return w
-    dws = MOLAR_MASS_RATIO * p * pws * _dln_pws_dt(twb) / (p - pws) ** 2
+    dws = MOLAR_MASS_RATIO * p * pws * dln_pws / (p - pws) ** 2
     dnum = -b * ws_star + (a - b * twb) * dws + CP_DRY_AIR
     slope = (dnum * denominator + numerator * c) / denominator**2
     return w, slope
@@ -627,13 +724,33 @@ def humidity_ratio_from_wet_bulb(drybulb, wet_bulb, pressure, *, check=True):
     return _out(w)
 
 
+def _wet_bulb_first_guess(t, w, p):
+    """Approximate wet bulb [°C]: Eq. 33 of [1] with Ws* linearised about the dew point.
+
+    The dew point comes from the closed form of Eqs. 39/40 and the slope of ln pws from
+    Clausius-Clapeyron (L/(Rv T^2), L over ice below 0 °C). Ws* is convex, so the
+    tangent under-estimates it and the guess lies at or above the root, where Newton
+    descends monotonically; the guess only saves iterations, it is never the answer.
+    """
+    pw = p * w / (MOLAR_MASS_RATIO + w)
+    td = _dew_point_first_guess(pw)
+    dln_pws = np.where(td < 0.0, 6132.0, 5417.0) / (td + ZERO_CELSIUS) ** 2
+    slope = w * p / (p - pw) * dln_pws  # dWs/dt at the dew point [1/K]
+    b = CP_LIQUID_WATER - CP_WATER_VAPOR
+    a = LATENT_HEAT_0C - b * td
+    numerator = w * b * td + CP_WATER_VAPOR * w * t + CP_DRY_AIR * t + a * slope * td
+    return numerator / (a * slope + CP_DRY_AIR + CP_LIQUID_WATER * w)
+
+
 def wet_bulb_from_humidity_ratio(drybulb, humidity_ratio, pressure, *, check=True):
     """Thermodynamic wet bulb from dry bulb and humidity ratio.
 
     Solves Eq. 33/35 of [1] for the wet bulb by safeguarded Newton iteration on whole
-    arrays, bracketed between -100 °C and the dry bulb. In the narrow
-    band (about 0.3 K) just above 0 °C where both the water form (Eq. 33) and the ice
-    form (Eq. 35) have a root, the root over water is returned.
+    arrays, bracketed between -100 °C and the dry bulb (and below the temperature at
+    which the saturation pressure reaches 0.9 of the total pressure, where W would
+    exceed 1 kg/kg). In the narrow band (about 0.3 K) just above 0 °C where both the
+    water form (Eq. 33) and the ice form (Eq. 35) have a root, the root over water is
+    returned.
 
     Parameters
     ----------
@@ -647,59 +764,80 @@ def wet_bulb_from_humidity_ratio(drybulb, humidity_ratio, pressure, *, check=Tru
     Returns
     -------
     numpy.ndarray
-        Thermodynamic wet-bulb temperature [°C].
+        Thermodynamic wet-bulb temperature [°C], converged to about 1e-7 K or better.
 
     References
     ----------
-    ASHRAE Handbook Fundamentals 2017, Ch. 1, Eqs. 33 and 35.
+    ASHRAE Handbook Fundamentals 2017, Ch. 1, Eqs. 33 and 35; first guess from Eqs. 39
+    and 40.
     """
     t, w, p = np.broadcast_arrays(
         _as_float(drybulb), _as_float(humidity_ratio), _as_float(pressure)
     )
+    shape = t.shape
     if check:
         _check_drybulb("drybulb", t)
         _check_pressure(p)
         _check_humidity_ratio(t, w, p)
     t, w, p = (np.array(a, dtype=float).ravel() for a in (t, w, p))
-    shape = np.shape(np.broadcast_arrays(_as_float(drybulb), _as_float(humidity_ratio))[0])
     lo = np.full_like(t, DRYBULB_MIN_C)
     hi = t.copy()
+    hot = t > 60.0
+    if np.any(hot):
+        # Above the boiling point at p, Ws* has no meaning; at pws = 0.9 p, Ws* = 5.6
+        # and Eq. 33 gives W > 1 kg/kg for any dry bulb up to 200 °C, so the root lies
+        # below that temperature.
+        boiling = dew_point_from_vapor_pressure(0.9 * p[hot], check=False)
+        hi[hot] = np.minimum(hi[hot], boiling)
     # Near 0 °C Eqs. 33 and 35 can both have a root (they differ at the switch). Take
     # the wet bulb over water (Eq. 33) whenever it exists, the ice form otherwise.
-    water_root = _humidity_ratio_from_wet_bulb(t, np.zeros_like(t), p) <= w
-    lo = np.where(water_root & (t >= 0), np.maximum(lo, 0.0), lo)
-    hi = np.where(~water_root & (t >= 0), np.minimum(hi, -1e-9), hi)
+    # Eq. 33 at twb = 0: W = (2501 Ws*(0) - 1.006 t) / (2501 + 1.86 t).
+    ws_0c = MOLAR_MASS_RATIO * _PWS_0C / (p - _PWS_0C)
+    water_root = (LATENT_HEAT_0C * ws_0c - CP_DRY_AIR * t) / (
+        LATENT_HEAT_0C + CP_WATER_VAPOR * t
+    ) <= w
+    above_freezing = t >= 0
+    lo = np.where(water_root & above_freezing, np.maximum(lo, 0.0), lo)
+    hi = np.where(~water_root & above_freezing, np.minimum(hi, -1e-9), hi)
     lo = np.minimum(lo, hi)
-    # W(twb) is increasing and convex on each branch, so Newton started from the upper
-    # end of the bracket descends monotonically onto the root. It is safeguarded by
-    # bisection and run on the elements not yet converged only (an active set), so the
-    # few elements near the ice/water switch at 0 °C do not slow the whole array.
-    x = hi.copy()
-    active = np.arange(x.size)
+    # W(twb) is increasing and convex on each branch, so Newton started at or above the
+    # root descends monotonically onto it. It is safeguarded by bisection and run on
+    # the elements not yet converged only (an active set), so the few elements near
+    # the ice/water switch at 0 °C do not slow the whole array.
+    x = np.clip(_wet_bulb_first_guess(t, w, p), lo, hi)
+    # While most elements are still moving the whole array is iterated (indexing a
+    # nearly full active set costs more than the extra Newton steps on converged
+    # elements, which leave them where they are); then only the elements left.
+    active = None
     for _ in range(100):
-        if active.size == 0:
-            break
-        whole = active.size == x.size
-        ta, wa, pa = (t, w, p) if whole else (t[active], w[active], p[active])
-        xa = x.copy() if whole else x[active]
+        whole = active is None
+        if whole:
+            ta, wa, pa, xa, lo_a, hi_a = t, w, p, x, lo, hi
+        else:
+            ta, wa, pa, xa = t[active], w[active], p[active], x[active]
+            lo_a, hi_a = lo[active], hi[active]
         f, slope = _humidity_ratio_from_wet_bulb(ta, xa, pa, with_slope=True)
         f = f - wa
-        lo_a = np.where(f < 0, xa, lo[active])
-        hi_a = np.where(f >= 0, xa, hi[active])
+        lo_a = np.where(f < 0, xa, lo_a)
+        hi_a = np.where(f >= 0, xa, hi_a)
         with np.errstate(divide="ignore", invalid="ignore"):
             newton = xa - f / slope
         inside = np.isfinite(newton) & (newton >= lo_a) & (newton <= hi_a)
         x_new = np.where(inside, newton, 0.5 * (lo_a + hi_a))
+        # Newton converges quadratically: |W''/(2 W')| stays below 0.11 /K from -100 to
+        # 200 °C and 30 to 120 kPa (about 0.03 /K at room conditions), so after a
+        # Newton step under 1e-3 K the error left is below 1.1e-7 K: the element is done.
+        done = (inside & (np.abs(x_new - xa) < 1e-3)) | (hi_a - lo_a < 1e-7)
         if whole:
             lo, hi, x = lo_a, hi_a, x_new
+            left = np.flatnonzero(~done)
+            active = None if left.size > x.size // 2 else left
         else:
             lo[active], hi[active], x[active] = lo_a, hi_a, x_new
-        # Newton converges quadratically: after a step under 1e-5 K the error left is
-        # of order 1e-10 K, so the element is done.
-        done = (inside & (np.abs(x_new - xa) < 1e-5)) | (hi_a - lo_a < 1e-7)
-        active = active[~done]
-    x = x.reshape(shape)
-    return _out(x)
+            active = active[~done]
+        if active is not None and active.size == 0:
+            break
+    return _out(x.reshape(shape))
 
 
 # ---------------------------------------------------------------------------------------
