@@ -340,3 +340,22 @@ def test_bad_arguments_are_range_errors():
         read_weather_csv(b"x", units="metric")
     with pytest.raises(InputRangeError, match="max_gap_hours"):
         read_weather_csv(b"x", max_gap_hours=0)
+
+
+def test_separate_date_and_time_columns_day_first(year):
+    # A European export: day-first dates, a separate time column, semicolons, decimal commas,
+    # an extra column that is ignored with a note.
+    frame = pd.DataFrame(
+        {
+            "Date (DD.MM.YYYY)": HOURS.strftime("%d.%m.%Y"),
+            "Time": HOURS.strftime("%H:%M"),
+            "Temperature (°C)": year["drybulb"],
+            "RH (%)": year["rh"],
+            "Wind (m/s)": 3.0,
+        }
+    )
+    data = frame.to_csv(index=False, sep=";", decimal=",").encode("utf-8")
+    weather = read_weather_csv(data, altitude=310)
+    assert weather.hours == 8760
+    assert weather.month[24 * 40] == 2  # 10 February: the dates were read day first
+    assert any("ignored columns: 'Wind (m/s)'" in note for note in weather.notes)

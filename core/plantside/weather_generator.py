@@ -91,6 +91,7 @@ from pathlib import Path
 from types import MappingProxyType
 
 import numpy as np
+import pandas as pd
 
 from . import moist_air
 from .design_day import DAILY_RANGE_FRACTION
@@ -497,7 +498,8 @@ def climate_csv_text(weather: Weather, *, seed: int | None = None) -> str:
 
     Leading ``#`` lines carry the site, its altitude and how to regenerate the file;
     then the header :data:`CSV_HEADER` and one row per hour (dry bulb to 0.01 K,
-    humidity ratio in g/kg to 0.0001, pressure to 1 Pa). Line ends are ``\\n``.
+    humidity ratio in g/kg to 0.0001, pressure to 1 Pa; trailing zeros dropped). Line
+    ends are ``\\n``.
     """
     lines = [
         f"# plantside synthetic weather year: {weather.site} (fictional site)",
@@ -506,19 +508,18 @@ def climate_csv_text(weather: Weather, *, seed: int | None = None) -> str:
         + (f" (seed {seed})" if seed is not None else ""),
         CSV_HEADER,
     ]
-    hours = np.asarray(weather.hour_of_year)
-    g_per_kg = weather.humidity_ratio * 1000.0
-    body = [
-        f"{h},{t:.2f},{w:.4f},{p:.0f}"
-        for h, t, w, p in zip(
-            hours.tolist(),
-            weather.drybulb.tolist(),
-            g_per_kg.tolist(),
-            weather.pressure.tolist(),
-            strict=True,
-        )
-    ]
-    return "\n".join(lines + body) + "\n"
+    hour, drybulb, humidity_ratio, pressure = CSV_HEADER.split(",")
+    table = pd.DataFrame(
+        {
+            hour: np.asarray(weather.hour_of_year, dtype=np.int64),
+            drybulb: np.round(weather.drybulb, 2),
+            humidity_ratio: np.round(weather.humidity_ratio * 1000.0, 4),
+            pressure: np.round(weather.pressure).astype(np.int64),
+        }
+    )
+    # Shortest round-trip text of each rounded value (e.g. 12.3 for 12.30).
+    body = table.to_csv(index=False, header=False, lineterminator="\n")
+    return "\n".join(lines) + "\n" + body
 
 
 def write_bundled_climates(directory) -> list[Path]:
