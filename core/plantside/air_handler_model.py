@@ -1,0 +1,597 @@
+"""The air handler of every hour at once: airflow, mixing, economizer, recovery, coils.
+
+:func:`air_handler_hours` takes the outdoor states and zone loads of any number
+of hours (numpy arrays that broadcast; a leading axis of outdoor-air fractions
+gives a whole sweep in one call) and returns every state and load as arrays in
+SI. No per-hour Python loop: each step is a closed form or a masked choice on
+whole arrays.
+
+Air path (draw-through fan shown; a blow-through fan sits between preheat and coil)::
+
+    outdoor -> [energy recovery] -> mixing <- return <- [plenum] <- zone
+            -> [preheat coil] -> cooling coil / heating coil -> [fan] -> supply -> zone
+
+Per hour, in order:
+
+1. Zone: set point by the sign of the room sensible load (cooling or heating set
+   point); return plenum gain q_p = f_p x internal gain moves from the room to the
+   return air.
+2. Airflow: variable volume follows the room sensible load at the supply set point
+   (m = q / (c_p (t_z - t_s))), clipped between the minimum and design airflow;
+   heating at the lowest airflow that keeps the supply at or below its maximum.
+   c_p = 1.006 + 1.86 W (moist air, Eq. 32 of ASHRAE Handbook Fundamentals 2017 Ch. 1).
+3. Supply temperature: the set point (with outdoor reset); below the lowest
+   airflow either the supply rises to meet the load or terminal reheat makes up
+   the difference (``low_load_response``).
+4. Coil leaving target = supply - fan rise (draw-through), mixed-air set point =
+   supply - fan rise (both fan positions).
+5. Outdoor air: minimum fraction (or fixed airflow / hour's airflow), then the
+   economizer (:mod:`plantside.economizer`).
+6. Energy recovery at the minimum only, when it lowers the outdoor enthalpy in
+   cooling, or modulated to (not past) the mixed-air set point in heating.
+7. Mixing on a mass basis, preheat to ``preheat_drybulb``, blow-through fan.
+8. Coil: cooling to the target when the entering air is warmer, heating when it is colder.
+9. Zone humidity (closed form, below).
+
+Humidity balance, closed form
+-----------------------------
+The return humidity W_z floats. With mu = m_w / m (zone moisture gain per kg of
+dry supply air) and alpha = x (1 - f eps_L) (outdoor share of the coil's entering
+moisture after mixing and recovery), the coil entering humidity is
+W_e = alpha W_o + (1 - alpha) W_z and the zone balance W_z = W_cl + mu. The coil
+leaving humidity is concave and piecewise linear in W_e::
+
+    W_cl = min(W_e,  a W_e + b,  Ws(t_cl))
+
+(dry coil; wet coil line with a = BF, b = (1 - BF) W_adp, or a = 0, b = W_ldp for a
+leaving dew point; saturation at the leaving dry bulb). Each branch gives a
+linear equation for W_z::
+
+    dry:        W_z = W_o + mu / alpha
+    wet:        W_z = (a alpha W_o + b + mu) / (1 - a (1 - alpha))
+    saturated:  W_z = Ws(t_cl) + mu
+
+and because each branch residual falls strictly with W_z, the balance of the
+minimum of the branches is solved by the *smallest* of the branch solutions.
+Hours without a cooling coil take the dry branch. Dry bulbs depend on W only
+weakly (through c_p in mass-basis mixing, airflow and fan rise, and through the
+return enthalpy in enthalpy economizer control), so the whole model is passed
+over two or three times, each pass using the previous humidity; the change
+between the last two passes is reported (``humidity_iteration_change``).
+
+Energy balance (exact identity of the states, to the iteration tolerance)::
+
+    coil_total - heating_coil - preheat = zone_sensible + zone_latent + reheat
+        + ventilation_sensible + ventilation_latent + fan_heat
+        - economizer_effect - recovery_effect - condensate_heat
+
+References
+----------
+ASHRAE Handbook Fundamentals 2017, Ch. 1 (moist air, mixing, heating, cooling and
+dehumidifying); ASHRAE 90.1-2019 section 6.5.1.1.3 (economizer high limits).
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+from .air_handler_settings import AirHandlerSettings, fan_power_fraction
+from .constants import (
+    CP_DRY_AIR,
+    CP_LIQUID_WATER,
+    CP_WATER_VAPOR,
+    LATENT_HEAT_0C,
+    MOLAR_MASS_RATIO,
+    R_DRY_AIR,
+    VOLUME_WATER_FACTOR,
+    ZERO_CELSIUS,
+)
+from .constants import STANDARD_AIR_DENSITY as _RHO_STD
+from .economizer import MODE_ALL_OUTDOOR_AIR, MODE_HEATING, MODE_OFF, _damper_control
+from .energy_recovery import recovery_fraction_for_mixed_drybulb
+from .errors import InputRangeError, check_range
+from .moist_air import saturation_humidity_ratio, saturation_vapor_pressure
+from .zone_loads import HourlyZoneLoads
+
+__all__ = ["HOURLY_COLUMNS", "air_handler_hours"]
+
+#: Dry-bulb tolerance under which a coil is idle [K].
+_COIL_IDLE_K = 1e-6
+#: Lowest zone humidity ratio kept by the balance [kg/kg].
+_W_FLOOR = 1e-5
+_MAX_PASSES = 4
+#: Estimated zone humidity error at which the passes stop [kg/kg].
+_PASS_TOLERANCE = 1e-7
+
+#: Column names of :func:`air_handler_hours` (and of the hourly DataFrame), in order.
+HOURLY_COLUMNS = (
+    "occupied",
+    "operating",
+    "economizer_mode",
+    "outdoor_drybulb_C",
+    "outdoor_humidity_ratio_kgkg",
+    "outdoor_enthalpy_kJkg",
+    "pressure_Pa",
+    "supply_mass_flow_kgs",
+    "supply_airflow_m3s",
+    "supply_airflow_standard_m3s",
+    "supply_airflow_actual_m3s",
+    "airflow_fraction",
+    "outdoor_air_fraction",
+    "outdoor_mass_flow_kgs",
+    "recovery_fraction",
+    "zone_drybulb_C",
+    "zone_humidity_ratio_kgkg",
+    "zone_enthalpy_kJkg",
+    "zone_relative_humidity",
+    "return_drybulb_C",
+    "return_humidity_ratio_kgkg",
+    "return_enthalpy_kJkg",
+    "recovered_drybulb_C",
+    "recovered_humidity_ratio_kgkg",
+    "recovered_enthalpy_kJkg",
+    "mixed_drybulb_C",
+    "mixed_humidity_ratio_kgkg",
+    "mixed_enthalpy_kJkg",
+    "coil_entering_drybulb_C",
+    "coil_entering_humidity_ratio_kgkg",
+    "coil_entering_enthalpy_kJkg",
+    "coil_leaving_drybulb_C",
+    "coil_leaving_humidity_ratio_kgkg",
+    "coil_leaving_enthalpy_kJkg",
+    "supply_drybulb_C",
+    "supply_humidity_ratio_kgkg",
+    "supply_enthalpy_kJkg",
+    "apparatus_dew_point_C",
+    "bypass_factor",
+    "coil_wet",
+    "coil_total_kW",
+    "coil_sensible_kW",
+    "coil_latent_kW",
+    "condensate_kgs",
+    "condensate_heat_kW",
+    "preheat_kW",
+    "heating_coil_kW",
+    "reheat_kW",
+    "zone_sensible_kW",
+    "zone_latent_kW",
+    "zone_sensible_unmet_kW",
+    "zone_latent_unmet_kW",
+    "plenum_gain_kW",
+    "ventilation_sensible_kW",
+    "ventilation_latent_kW",
+    "fan_power_kW",
+    "fan_heat_kW",
+    "economizer_effect_kW",
+    "recovery_effect_kW",
+)
+
+_STATE_COLUMNS = tuple(
+    c
+    for c in HOURLY_COLUMNS
+    if c.endswith(("_C", "_kgkg", "_kJkg", "relative_humidity", "bypass_factor"))
+    and not c.startswith("outdoor_")
+)
+_FLOW_AND_LOAD_COLUMNS = (
+    *(c for c in HOURLY_COLUMNS if c.endswith(("_kW", "_kgs", "_m3s"))),
+    "airflow_fraction",
+    "outdoor_air_fraction",
+    "recovery_fraction",
+)
+
+
+def _h(t, w):
+    """Enthalpy [kJ/kg dry air], ASHRAE Handbook Fundamentals 2017 Ch. 1 Eq. 32."""
+    return CP_DRY_AIR * t + w * (LATENT_HEAT_0C + CP_WATER_VAPOR * t)
+
+
+def _cp(w):
+    """Specific heat of moist air per kg dry air [kJ/(kg K)], from Eq. 32."""
+    return CP_DRY_AIR + CP_WATER_VAPOR * w
+
+
+def _t_from_h(h, w):
+    return (h - LATENT_HEAT_0C * w) / (CP_DRY_AIR + CP_WATER_VAPOR * w)
+
+
+def _check_outdoor(t_o, w_o, p):
+    check_range("outdoor_drybulb", t_o, -60.0, 60.0, "°C")
+    check_range("pressure", p, 30_000.0, 120_000.0, "Pa")
+    check_range("outdoor_humidity_ratio", w_o, 0.0, 0.1, "kg/kg")
+    ws = saturation_humidity_ratio(t_o, p, check=False)
+    bad = w_o > ws * 1.01 + 1e-6
+    if np.any(bad):
+        idx = np.flatnonzero(np.broadcast_to(bad, np.broadcast_shapes(np.shape(bad))))
+        raise InputRangeError(
+            "outdoor_humidity_ratio",
+            f"outdoor_humidity_ratio is above saturation at the outdoor dry bulb at {idx.size} "
+            f"hour(s) (first index {idx[0]}); allowed 0 to saturation",
+            "0 to saturation",
+            idx,
+        )
+
+
+def _supply_setpoint(s: AirHandlerSettings, t_o):
+    if s.supply_reset_drybulb is None:
+        return np.full(np.shape(t_o), float(s.supply_drybulb))
+    share = np.clip(
+        (s.supply_reset_outdoor_high - t_o)
+        / (s.supply_reset_outdoor_high - s.supply_reset_outdoor_low),
+        0.0,
+        1.0,
+    )
+    return s.supply_drybulb + share * (s.supply_reset_drybulb - s.supply_drybulb)
+
+
+def air_handler_hours(
+    settings: AirHandlerSettings,
+    outdoor_drybulb,
+    outdoor_humidity_ratio,
+    pressure,
+    zone_loads: HourlyZoneLoads,
+    *,
+    minimum_outdoor_air_fraction=None,
+    force_operating=False,
+    check=True,
+):
+    """Every state and load of an air handler for many hours at once.
+
+    Parameters
+    ----------
+    settings : AirHandlerSettings
+        The air handler.
+    outdoor_drybulb : array_like
+        Outdoor dry bulb of each hour [°C], -60 to 60.
+    outdoor_humidity_ratio : array_like
+        Outdoor humidity ratio [kg/kg dry air], 0 to saturation.
+    pressure : array_like
+        Station pressure [Pa], 30,000 to 120,000.
+    zone_loads : HourlyZoneLoads
+        Zone loads of the same hours.
+    minimum_outdoor_air_fraction : array_like, optional
+        Overrides the settings' minimum outdoor air (as a fraction of each hour's
+        supply airflow) [-], 0 to 1. A column vector of shape (k, 1) evaluates k
+        fractions over all hours in one call (result arrays of shape (k, N)).
+    force_operating : bool
+        Run the fan in every hour whatever ``fan_schedule`` says (design points).
+    check : bool
+        Validate the inputs (once, here).
+
+    Returns
+    -------
+    dict of str to numpy.ndarray
+        One array per name in :data:`HOURLY_COLUMNS` (``economizer_mode`` as integer codes
+        into :data:`plantside.economizer.ECONOMIZER_MODES`), plus
+        ``humidity_iteration_change`` [kg/kg] (largest change of the zone humidity
+        in the last pass) and ``apparatus_dew_point_required_C`` (the ADP each cooling
+        hour needs, also where it is below ``apparatus_dew_point_min``).
+    """
+    s = settings
+    t_o = np.asarray(outdoor_drybulb, dtype=float)
+    w_o = np.asarray(outdoor_humidity_ratio, dtype=float)
+    p = np.asarray(pressure, dtype=float)
+    n = zone_loads.hours
+    t_o, w_o, p = (np.broadcast_to(a, (n,)) if a.ndim == 0 else a for a in (t_o, w_o, p))
+    if check:
+        if not isinstance(zone_loads, HourlyZoneLoads):
+            raise InputRangeError(
+                "zone_loads", "zone_loads must be HourlyZoneLoads", "HourlyZoneLoads"
+            )
+        if t_o.shape[-1] != n or w_o.shape[-1] != n or p.shape[-1] != n:
+            raise InputRangeError(
+                "zone_loads",
+                f"zone_loads has {n} hours but the outdoor record has {t_o.shape[-1]}",
+                f"{t_o.shape[-1]} hours",
+            )
+        _check_outdoor(t_o, w_o, p)
+        if minimum_outdoor_air_fraction is not None:
+            check_range(
+                "minimum_outdoor_air_fraction",
+                minimum_outdoor_air_fraction,
+                0.0,
+                1.0,
+                "(fraction)",
+            )
+
+    # --- zone, airflow limits, fan (independent of humidity) --------------------------
+    occupied = zone_loads.occupied
+    operating = (
+        np.ones(n, dtype=bool) if force_operating or s.fan_schedule == "always" else occupied
+    )
+    q_sens, q_lat = zone_loads.sensible, zone_loads.latent
+    q_plenum = s.return_plenum_fraction * zone_loads.internal_sensible
+    has_plenum = s.return_plenum_fraction > 0.0
+    q_room = q_sens - q_plenum
+    heating = q_room < 0.0
+    t_cool, t_heat = float(s.zone_cooling_drybulb), float(s.zone_heating_drybulb)
+    t_z = np.where(heating, t_heat, t_cool)
+    h_g_zone = LATENT_HEAT_0C + CP_WATER_VAPOR * t_z
+    moisture = q_lat / h_g_zone  # kg/s of water vapour added in the zone
+    t_ss = _supply_setpoint(s, t_o)
+    t_hmax = float(s.heating_supply_drybulb_max)
+    rho = s.dry_air_density(p)
+    m_design = s.supply_airflow * rho
+    m_low = s.minimum_airflow_fraction * m_design
+    with np.errstate(divide="ignore", invalid="ignore"):
+        # airflow x c_p that meets the room load at the supply set point [kW/K]
+        load_per_kelvin = np.where(heating, -q_room / (t_hmax - t_z), q_room / (t_z - t_ss))
+    reheat_mode = s.low_load_response == "reheat"
+    blow_through = s.fan_position == "blow_through"
+    has_fan = s.supply_fan_power > 0.0
+    ws_zone = saturation_humidity_ratio(t_z, p, check=False)
+    h_o = _h(t_o, w_o)
+
+    # --- outdoor air ---------------------------------------------------------------------
+    m_oa_fixed = None
+    if s.all_outdoor_air:
+        x_min_setting = 1.0
+    elif minimum_outdoor_air_fraction is not None:
+        x_min_setting = np.asarray(minimum_outdoor_air_fraction, dtype=float)
+    elif s.minimum_outdoor_airflow is not None:
+        x_min_setting = None  # from the fixed airflow, per hour
+        m_oa_fixed = s.minimum_outdoor_airflow * rho
+    else:
+        x_min_setting = float(s.minimum_outdoor_air_fraction)
+    eps_s = float(s.recovery_sensible_effectiveness)
+    eps_l = float(s.recovery_latent_effectiveness)
+    recovery = eps_s > 0.0 or eps_l > 0.0
+    control = s.economizer_control
+    preheat_t = s.preheat_drybulb
+
+    # --- cooling coil parameters ------------------------------------------------------------
+    coil_model = s.coil_model
+    bf_setting = float(s.bypass_factor)
+    if coil_model != "bypass_factor":
+        t_adp_fixed = float(
+            s.apparatus_dew_point if coil_model == "apparatus_dew_point" else s.leaving_dew_point
+        )
+        w_adp_fixed = saturation_humidity_ratio(t_adp_fixed, p, check=False)
+
+    # Initial humidity guess: supply near saturation at the supply set point (or the
+    # outdoor humidity if drier), plus the zone moisture pickup at design airflow.
+    w_s = np.minimum(w_o, saturation_humidity_ratio(t_ss, p, check=False))
+    w_z = np.minimum(w_s + moisture / m_design, ws_zone)
+    change, previous_change, estimated_error = np.inf, np.inf, np.inf
+    for pass_number in range(_MAX_PASSES):
+        c_s = CP_DRY_AIR + CP_WATER_VAPOR * w_s
+        # airflow
+        if s.variable_volume:
+            m = np.clip(load_per_kelvin / c_s, m_low, m_design)
+        else:
+            m = m_design * np.ones_like(c_s)
+        mc_s = m * c_s
+        # supply temperature
+        t_need = t_z - q_room / mc_s
+        t_s_cool = t_ss if reheat_mode else np.maximum(t_ss, t_need)
+        t_s = np.where(heating, np.minimum(t_need, t_hmax), t_s_cool)
+        t_r = t_z + q_plenum / (m * (CP_DRY_AIR + CP_WATER_VAPOR * w_z)) if has_plenum else t_z
+        # fan
+        airflow_fraction = m / m_design
+        if has_fan:
+            fan_power = s.supply_fan_power * (
+                fan_power_fraction(airflow_fraction) if s.variable_volume else 1.0
+            )
+            fan_heat = fan_power * s.fan_heat_fraction
+            rise = fan_heat / mc_s
+        else:
+            fan_power = fan_heat = rise = 0.0
+        t_cl = t_s if blow_through else t_s - rise
+        t_ma = t_s - rise  # mixed-air set point, either fan position
+        # minimum outdoor air and economizer
+        x_min = np.minimum(1.0, m_oa_fixed / m) if x_min_setting is None else x_min_setting
+        h_r = _h(t_r, w_z)
+        if s.all_outdoor_air:
+            x = np.ones(np.broadcast_shapes(np.shape(t_ma), np.shape(x_min)))
+            mode = np.where(heating, MODE_HEATING, MODE_ALL_OUTDOOR_AIR).astype(np.int8)
+        else:
+            x, mode = _damper_control(
+                control,
+                s.economizer_integrated,
+                x_min,
+                t_ma,
+                t_o,
+                w_o,
+                h_o,
+                t_r,
+                w_z,
+                h_r,
+                s.economizer_drybulb_limit,
+                s.economizer_enthalpy_limit,
+                heating,
+            )
+        # energy recovery (exhaust = return air), at the minimum outdoor air only
+        if recovery:
+            at_minimum = x <= x_min + 1e-12
+            t_m0 = _t_from_h(h_r + x * (h_o - h_r), w_z + x * (w_o - w_z))
+            cool_benefit = _h(t_o + eps_s * (t_r - t_o), w_o + eps_l * (w_z - w_o)) < h_o
+            f_heat = recovery_fraction_for_mixed_drybulb(
+                t_ma, x, t_o, w_o, t_r, w_z, t_r, w_z, eps_s, eps_l
+            )
+            f_heat = np.where(t_o < t_r, np.clip(np.nan_to_num(f_heat, nan=1.0), 0.0, 1.0), 0.0)
+            f = np.where(at_minimum, np.where(t_m0 < t_ma, f_heat, 1.0 * cool_benefit), 0.0)
+            t_o2 = t_o + f * eps_s * (t_r - t_o)
+            w_o2 = w_o + f * eps_l * (w_z - w_o)
+            h_o2 = _h(t_o2, w_o2)
+            alpha = x * (1.0 - f * eps_l)
+        else:
+            f, t_o2, w_o2, h_o2, alpha = 0.0, t_o, w_o, h_o, x
+        # mixing on a mass basis, preheat, blow-through fan
+        w_m = w_z + alpha * (w_o - w_z)
+        c_m = CP_DRY_AIR + CP_WATER_VAPOR * w_m
+        h_m = h_r + x * (h_o2 - h_r)
+        t_m = (h_m - LATENT_HEAT_0C * w_m) / c_m
+        t_ph = t_m if preheat_t is None else np.maximum(t_m, preheat_t)
+        t_e = t_ph + fan_heat / (m * c_m) if blow_through else t_ph
+        cooling = t_e > t_cl + _COIL_IDLE_K
+        # coil humidity line W_cl = a W_e + b on the wet branch
+        if coil_model == "bypass_factor":
+            t_adp = (t_cl - bf_setting * t_e) / (1.0 - bf_setting)
+            a = bf = bf_setting
+            w_adp = saturation_humidity_ratio(np.clip(t_adp, -100.0, 100.0), p, check=False)
+        elif coil_model == "apparatus_dew_point":
+            t_adp, w_adp = t_adp_fixed, w_adp_fixed
+            with np.errstate(divide="ignore", invalid="ignore"):
+                a = bf = np.where(cooling, (t_cl - t_adp) / (t_e - t_adp), 1.0)
+        else:
+            t_adp, a, w_adp, bf = t_adp_fixed, 0.0, w_adp_fixed, np.nan
+        b = (1.0 - a) * w_adp
+        ws_cl = saturation_humidity_ratio(t_cl, p, check=False)
+        mu = moisture / m
+        # closed-form zone humidity: smallest of the branch solutions (module notes)
+        with np.errstate(divide="ignore", invalid="ignore"):
+            z_dry = np.where(alpha > 0.0, w_o + mu / alpha, np.sign(mu) * np.inf)
+            z_wet = (a * alpha * w_o + b + mu) / (1.0 - a * (1.0 - alpha))
+        z = np.where(cooling, np.minimum(np.minimum(z_dry, z_wet), ws_cl + mu), z_dry)
+        w_z_new = np.clip(np.where(np.isnan(z), w_z, z), _W_FLOOR, ws_zone)
+        previous_change, change = change, float(np.max(np.abs(w_z_new - w_z)))
+        w_z = w_z_new
+        w_e = w_z + alpha * (w_o - w_z)
+        w_s = np.where(cooling, np.minimum(np.minimum(w_e, a * w_e + b), ws_cl), w_e)
+        # linear convergence: the error left is about change * (change / previous change)
+        estimated_error = change * min(1.0, change / previous_change) if pass_number else change
+        if estimated_error < _PASS_TOLERANCE:
+            break
+
+    # --- final states from the final humidity (exact energy bookkeeping) --------------------
+    w_cl = w_s
+    if recovery:
+        w_o2 = w_o + f * eps_l * (w_z - w_o)
+        h_o2 = _h(t_o2, w_o2)
+    h_r = _h(t_r, w_z)
+    h_m = h_r + x * (h_o2 - h_r)
+    w_m = w_e
+    c_m = CP_DRY_AIR + CP_WATER_VAPOR * w_m
+    t_m = (h_m - LATENT_HEAT_0C * w_m) / c_m
+    t_ph = t_m if preheat_t is None else np.maximum(t_m, preheat_t)
+    preheat = m * c_m * (t_ph - t_m)
+    t_e = t_ph + fan_heat / (m * c_m) if blow_through else t_ph
+    cooling = t_e > t_cl + _COIL_IDLE_K
+    heat_coil = t_e < t_cl - _COIL_IDLE_K
+    t_leave = np.where(cooling | heat_coil, t_cl, t_e)
+    w_cl = np.where(cooling, w_cl, w_e)
+    wet = cooling & (w_cl < w_e)
+    condensate = m * (w_e - w_cl)
+    condensate_heat = condensate * CP_LIQUID_WATER * t_leave
+    c_cl = CP_DRY_AIR + CP_WATER_VAPOR * w_cl
+    coil_sensible = np.where(cooling, m * c_cl * (t_e - t_leave), 0.0)
+    coil_latent = condensate * (LATENT_HEAT_0C + CP_WATER_VAPOR * t_e) - condensate_heat
+    heating_coil = np.where(heat_coil, m * c_m * (t_leave - t_e), 0.0)
+    h_cl = _h(t_leave, w_cl)
+    h_supply = h_cl if blow_through else h_cl + fan_heat / m
+    t_supply = (h_supply - LATENT_HEAT_0C * w_cl) / c_cl
+    # zone: what the supply air takes up in the room and the plenum, from the states
+    zone_latent = m * (w_z - w_cl) * h_g_zone
+    to_room = m * c_cl * (t_z - t_supply)
+    plenum = m * (CP_DRY_AIR + CP_WATER_VAPOR * w_z) * (t_r - t_z)
+    if reheat_mode:
+        reheat = np.where(heating, 0.0, np.maximum(to_room - q_room, 0.0))
+    else:
+        reheat = np.zeros(np.shape(to_room))
+    zone_sensible = to_room - reheat + plenum
+    undersized = np.where(heating, t_need > t_hmax, t_need < t_ss)
+    unmet_sensible = np.where(undersized, q_sens - zone_sensible, 0.0)
+    zone_latent_unmet = np.where(
+        np.abs(q_lat - zone_latent) > 1e-9 * (1.0 + np.abs(q_lat)), q_lat - zone_latent, 0.0
+    )
+    # ventilation, economizer and recovery terms
+    ventilation_sensible = m * x_min * (CP_DRY_AIR + CP_WATER_VAPOR * w_z) * (t_o - t_r)
+    ventilation_latent = m * x_min * (w_o - w_z) * (LATENT_HEAT_0C + CP_WATER_VAPOR * t_o)
+    economizer_effect = m * (x - x_min) * (h_r - h_o)
+    recovery_effect = m * x * (h_o - h_o2)
+
+    out = {
+        "occupied": occupied,
+        "operating": operating,
+        "economizer_mode": np.where(operating, mode, MODE_OFF).astype(np.int8),
+        "outdoor_drybulb_C": t_o,
+        "outdoor_humidity_ratio_kgkg": w_o,
+        "outdoor_enthalpy_kJkg": h_o,
+        "pressure_Pa": p,
+        "supply_mass_flow_kgs": m,
+        "supply_airflow_m3s": m / rho,
+        "supply_airflow_standard_m3s": m / _RHO_STD,
+        # actual volume at the supply state: v of Eq. 26, ASHRAE Handbook Fundamentals Ch. 1
+        "supply_airflow_actual_m3s": m
+        * R_DRY_AIR
+        * (t_supply + ZERO_CELSIUS)
+        * (1.0 + VOLUME_WATER_FACTOR * w_cl)
+        / p,
+        "airflow_fraction": airflow_fraction,
+        "outdoor_air_fraction": x,
+        "outdoor_mass_flow_kgs": m * x,
+        "recovery_fraction": f,
+        "zone_drybulb_C": t_z,
+        "zone_humidity_ratio_kgkg": w_z,
+        "zone_enthalpy_kJkg": _h(t_z, w_z),
+        "zone_relative_humidity": _relative_humidity(t_z, w_z, p, heating, t_cool, t_heat),
+        "return_drybulb_C": t_r,
+        "return_humidity_ratio_kgkg": w_z,
+        "return_enthalpy_kJkg": h_r,
+        "recovered_drybulb_C": t_o2,
+        "recovered_humidity_ratio_kgkg": w_o2,
+        "recovered_enthalpy_kJkg": h_o2,
+        "mixed_drybulb_C": t_m,
+        "mixed_humidity_ratio_kgkg": w_m,
+        "mixed_enthalpy_kJkg": h_m,
+        "coil_entering_drybulb_C": t_e,
+        "coil_entering_humidity_ratio_kgkg": w_e,
+        "coil_entering_enthalpy_kJkg": _h(t_e, w_e),
+        "coil_leaving_drybulb_C": t_leave,
+        "coil_leaving_humidity_ratio_kgkg": w_cl,
+        "coil_leaving_enthalpy_kJkg": h_cl,
+        "supply_drybulb_C": t_supply,
+        "supply_humidity_ratio_kgkg": w_cl,
+        "supply_enthalpy_kJkg": h_supply,
+        "apparatus_dew_point_C": np.where(wet, t_adp, np.nan),
+        "bypass_factor": np.where(wet, bf, np.nan),
+        "coil_wet": wet,
+        "coil_total_kW": coil_sensible + coil_latent,
+        "coil_sensible_kW": coil_sensible,
+        "coil_latent_kW": coil_latent,
+        "condensate_kgs": condensate,
+        "condensate_heat_kW": condensate_heat,
+        "preheat_kW": preheat,
+        "heating_coil_kW": heating_coil,
+        "reheat_kW": reheat,
+        "zone_sensible_kW": zone_sensible,
+        "zone_latent_kW": zone_latent,
+        "zone_sensible_unmet_kW": unmet_sensible,
+        "zone_latent_unmet_kW": zone_latent_unmet,
+        "plenum_gain_kW": plenum,
+        "ventilation_sensible_kW": ventilation_sensible,
+        "ventilation_latent_kW": ventilation_latent,
+        "fan_power_kW": fan_power,
+        "fan_heat_kW": fan_heat,
+        "economizer_effect_kW": economizer_effect,
+        "recovery_effect_kW": recovery_effect,
+    }
+    shape = np.broadcast_shapes(*(np.shape(v) for v in out.values()))
+    for key, value in out.items():
+        if np.shape(value) != shape:
+            out[key] = np.broadcast_to(value, shape)
+    if not np.all(operating):
+        off = ~operating
+        for key in _STATE_COLUMNS:
+            out[key] = np.where(off, np.nan, out[key])
+        for key in _FLOW_AND_LOAD_COLUMNS:
+            out[key] = np.where(off, 0.0, out[key])
+        out["coil_wet"] = out["coil_wet"] & operating
+        # the zone loads of off hours are not met by this unit
+        out["zone_sensible_unmet_kW"] = np.where(off, q_sens, out["zone_sensible_unmet_kW"])
+        out["zone_latent_unmet_kW"] = np.where(off, q_lat, out["zone_latent_unmet_kW"])
+    out["humidity_iteration_change"] = estimated_error
+    adp_required = np.where(cooling & operating, t_adp, np.nan)
+    out["apparatus_dew_point_required_C"] = np.broadcast_to(adp_required, shape)
+    return out
+
+
+def _relative_humidity(t, w, p, heating, t_cool, t_heat):
+    """Relative humidity [-] at the zone set points (Eqs. 20, 24 of ASHRAE Handbook
+    Fundamentals 2017 Ch. 1); the saturation pressure is evaluated at the two set points."""
+    pws = np.where(
+        heating,
+        saturation_vapor_pressure(t_heat, check=False),
+        saturation_vapor_pressure(t_cool, check=False),
+    )
+    pw = p * w / (MOLAR_MASS_RATIO + w)
+    return np.minimum(pw / pws, 1.0)
