@@ -1,0 +1,857 @@
+"""The dashboard's one state object: inputs, validation, results, pinned "A".
+
+:class:`DashboardState` holds what the user set (the *inputs*, in SI, kept
+exactly as set, even when the model refuses them), the last valid result, the
+result pinned as "A" and one message per control. Widgets never compute: they
+call :meth:`DashboardState.set`, which
+
+1. validates the value (type, allowed set or range): any visitor of a served
+   page can send widget messages, so nothing from the page is trusted;
+2. recomputes only what the control affects:
+
+   =============================  ==============================================
+   control                        recomputed
+   =============================  ==============================================
+   climate                        weather, design conditions, every air
+                                  handler's design points and hourly year
+   design condition (0.4/1/2 %)   every air handler's design points and
+                                  outdoor-air sweep; not the hourly years
+   an air-handler control         that air handler's design points, sweep and
+   (outdoor air, supply air,      hourly year; the others are reused
+   economizer, fan, bypass)
+   air handler shown              nothing (the controls show its values)
+   unit system                    nothing (display only)
+   =============================  ==============================================
+
+   The plant figures (sums of the air handlers) are rebuilt every time; they
+   are sums of arrays already computed.
+3. on a model error keeps the last valid result, puts the message beside the
+   control it concerns and keeps the input, so fixing that one control
+   recovers.
+
+A state shows one of two *views*: ``"air_handler"`` (headline figures and
+charts of the air handler chosen) or ``"plant"`` (of the whole plant: the
+coincident sum of every air handler's coil load plus the distribution gain).
+
+Everything here is SI (kW, kWh, °C, kg/kg); the unit system is only carried
+for display.
+"""
+
+from __future__ import annotations
+
+import math
+import time
+from collections.abc import Callable, Mapping
+from dataclasses import dataclass, field, replace
+
+import numpy as np
+import pandas as pd
+
+from .. import air_handler as ahu
+from ..climates import BUNDLED_CLIMATES, load_bundled_climate
+from ..design_conditions import COOLING_PERCENTS, design_conditions_from_weather
+from ..errors import InputFileError, InputRangeError, PlantsideError
+from ..plant_loads import plant_load_from_coil_loads
+from ..scenario import Scenario
+from ..sizing import design_capacity_from_design_load
+from ..units import UnitSystem
+from ..weather import Weather
+from ..weather_import import read_weather_csv
+from ..zone_loads import HourlyZoneLoads, ZoneLoadModel, design_zone_loads
+
+__all__ = [
+    "CONTROLS",
+    "DESIGN_KINDS",
+    "ECONOMIZER_CHOICES",
+    "FAN_CHOICES",
+    "MAX_UPLOAD_BYTES",
+    "PART_LOAD_THRESHOLD",
+    "UNIT_CONTROLS",
+    "ClimatePart",
+    "DashboardInputs",
+    "DashboardResult",
+    "DashboardState",
+    "DesignPart",
+    "HeadlineFigures",
+    "UnitInputs",
+    "UnitResult",
+]
+
+#: Economizer control types (model value -> label in the trade's words).
+ECONOMIZER_CHOICES = {
+    "none": "No economizer",
+    "fixed_drybulb": "Fixed dry-bulb high limit",
+    "differential_drybulb": "Differential dry bulb",
+    "fixed_enthalpy": "Fixed enthalpy high limit",
+    "differential_enthalpy": "Differential enthalpy",
+}
+#: Supply fan control (model value -> label).
+FAN_CHOICES = {
+    "constant_volume": "Constant volume (CV)",
+    "variable_volume": "Variable air volume (VAV)",
+}
+#: Cooling design-condition kinds evaluated at the chosen annual percentage.
+DESIGN_KINDS = ("cooling", "dehumidification", "enthalpy")
+#: Share of the recommended capacity behind the "hours above" headline figure [-].
+PART_LOAD_THRESHOLD = 0.75
+#: Largest weather CSV accepted from the page [bytes] (an 8,784-hour year is ~300 kB).
+MAX_UPLOAD_BYTES = 5 * 1024 * 1024
+#: Prefix of the climate value of an uploaded weather file.
+UPLOAD_PREFIX = "upload: "
+#: Outdoor-air fractions of the design sweep [-].
+SWEEP_FRACTIONS = np.linspace(0.0, 1.0, 101)
+
+#: Controls that belong to one air handler.
+UNIT_CONTROLS = (
+    "outdoor_air_fraction",
+    "supply_air_temperature",
+    "economizer",
+    "economizer_integrated",
+    "fan_control",
+    "bypass_factor",
+)
+#: Every control -> what it makes the state recompute.
+CONTROLS: dict[str, str] = {
+    **dict.fromkeys(UNIT_CONTROLS, "unit"),
+    "design_percent": "design",
+    "climate": "climate",
+    "air_handler": "view",
+    "unit_system": "none",
+}
+
+#: Model field named in an error -> the control whose message shows it.
+_FIELD_TO_CONTROL = {
+    "minimum_outdoor_air_fraction": "outdoor_air_fraction",
+    "outdoor_air_fraction": "outdoor_air_fraction",
+    "minimum_outdoor_airflow": "outdoor_air_fraction",
+    "supply_drybulb": "supply_air_temperature",
+    "supply_air_temperature": "supply_air_temperature",
+    "economizer": "economizer",
+    "economizer_integrated": "economizer_integrated",
+    "fan_control": "fan_control",
+    "bypass_factor": "bypass_factor",
+    "design_percent": "design_percent",
+    "percent": "design_percent",
+}
+
+
+@dataclass(frozen=True)
+class UnitInputs:
+    """One air handler's control values in SI.
+
+    ``outdoor_air_fraction`` [-] 0..1 (minimum, of the supply air),
+    ``supply_air_temperature`` [°C], ``economizer`` (key of
+    :data:`ECONOMIZER_CHOICES`), ``economizer_integrated`` (bool),
+    ``fan_control`` (key of :data:`FAN_CHOICES`), ``bypass_factor`` [-].
+    """
+
+    outdoor_air_fraction: float
+    supply_air_temperature: float
+    economizer: str
+    economizer_integrated: bool
+    fan_control: str
+    bypass_factor: float
+
+    @classmethod
+    def from_settings(cls, settings) -> UnitInputs:
+        """The control values that describe ``settings`` as the scenario gives them.
+
+        A fixed minimum outdoor airflow shows as its fraction of the design supply
+        airflow; a 100 % outdoor-air unit shows 100 %.
+        """
+        if settings.all_outdoor_air:
+            fraction = 1.0
+        elif settings.minimum_outdoor_airflow is not None:
+            fraction = float(settings.minimum_outdoor_airflow) / float(settings.supply_airflow)
+        else:
+            fraction = float(settings.minimum_outdoor_air_fraction)
+        return cls(
+            outdoor_air_fraction=min(max(fraction, 0.0), 1.0),
+            supply_air_temperature=float(settings.supply_drybulb),
+            economizer=str(settings.economizer),
+            economizer_integrated=bool(settings.economizer_integrated),
+            fan_control=str(settings.fan_control),
+            bypass_factor=float(settings.bypass_factor),
+        )
+
+    def apply(self, settings):
+        """The scenario's air-handler settings with the controls the user moved.
+
+        Controls still at the scenario's value leave its settings alone (a fixed
+        minimum outdoor airflow, another coil model); a moved control replaces
+        them (outdoor air as a fraction of supply; the bypass-factor coil model).
+        """
+        original = UnitInputs.from_settings(settings)
+        changes = {}
+        if self.outdoor_air_fraction != original.outdoor_air_fraction:
+            changes.update(
+                minimum_outdoor_air_fraction=self.outdoor_air_fraction,
+                minimum_outdoor_airflow=None,
+            )
+        if self.supply_air_temperature != original.supply_air_temperature:
+            changes["supply_drybulb"] = self.supply_air_temperature
+        if self.economizer != original.economizer:
+            changes["economizer"] = self.economizer
+        if self.economizer_integrated != original.economizer_integrated:
+            changes["economizer_integrated"] = self.economizer_integrated
+        if self.fan_control != original.fan_control:
+            changes["fan_control"] = self.fan_control
+        if self.bypass_factor != original.bypass_factor:
+            changes.update(coil_model="bypass_factor", bypass_factor=self.bypass_factor)
+        return replace(settings, **changes) if changes else settings
+
+
+@dataclass(frozen=True)
+class DashboardInputs:
+    """Every control's value, in SI, exactly as the user set it.
+
+    ``units`` holds one :class:`UnitInputs` per air handler; ``air_handler``
+    is the index of the one the controls show. The air-handler controls are
+    also readable directly (``inputs.outdoor_air_fraction``) for the one shown.
+    """
+
+    units: tuple[UnitInputs, ...]
+    air_handler: int
+    design_percent: float
+    climate: str
+    unit_system: str
+
+    @property
+    def unit(self) -> UnitInputs:
+        return self.units[self.air_handler]
+
+    def __getattr__(self, name):
+        if name in UNIT_CONTROLS:
+            return getattr(self.units[self.air_handler], name)
+        raise AttributeError(name)
+
+    def with_control(self, control: str, value) -> DashboardInputs:
+        if control in UNIT_CONTROLS:
+            units = list(self.units)
+            units[self.air_handler] = replace(units[self.air_handler], **{control: value})
+            return replace(self, units=tuple(units))
+        return replace(self, **{control: value})
+
+    def stamp(self, names: tuple[str, ...] = ()) -> str:
+        """One line naming the inputs of the air handler shown, for chart and file stamps."""
+        unit = self.unit
+        name = names[self.air_handler] if names else f"air handler {self.air_handler + 1}"
+        integrated = ", integrated" if unit.economizer_integrated else ""
+        return (
+            f"{self.climate}; cooling design {self.design_percent:g} %; {name}: "
+            f"outdoor air {100 * unit.outdoor_air_fraction:.0f} %, "
+            f"supply {unit.supply_air_temperature:.1f} °C, "
+            f"{ECONOMIZER_CHOICES.get(unit.economizer, unit.economizer).lower()}{integrated}, "
+            f"{FAN_CHOICES.get(unit.fan_control, unit.fan_control)}, "
+            f"bypass factor {unit.bypass_factor:.2f}"
+        )
+
+
+@dataclass(frozen=True, eq=False)
+class ClimatePart:
+    """Weather of the site and its annual design conditions."""
+
+    weather: Weather
+    conditions: object
+    source: str
+
+
+@dataclass(frozen=True, eq=False)
+class DesignPart:
+    """One air handler at the three cooling design conditions, and its sweep.
+
+    ``sweep`` maps a condition label to the coil total load [kW] at each of
+    :data:`SWEEP_FRACTIONS`.
+    """
+
+    summary: object
+    governing: object
+    conditions: tuple
+    sweep: dict[str, np.ndarray]
+
+
+@dataclass(frozen=True, eq=False)
+class UnitResult:
+    """One air handler's results: design part and hourly year."""
+
+    name: str
+    inputs: UnitInputs
+    design: DesignPart
+    hourly: pd.DataFrame
+
+
+@dataclass(frozen=True)
+class HeadlineFigures:
+    """The figures at the top of the dashboard, in SI.
+
+    Attributes
+    ----------
+    design_zone_load : float
+        Zone sensible + latent load at the governing design condition [kW].
+    design_coil_load : float
+        Cooling-coil total load at the governing design condition [kW]
+        (for the plant: the sum over air handlers plus the distribution gain).
+    coil_to_zone_ratio : float
+        design_coil_load / design_zone_load [-].
+    governing_condition : str
+        Label of the governing design condition.
+    peak_coil_load : float
+        Highest hourly (coincident, for the plant) coil load of the year [kW].
+    cooling_energy : float
+        Cooling energy over the year [kWh].
+    hours_above_threshold : int
+        Hours with load above 75 % of the recommended capacity [h].
+    recommended_capacity : float
+        Design coil load plus the scenario's cooling margin [kW].
+    """
+
+    design_zone_load: float
+    design_coil_load: float
+    coil_to_zone_ratio: float
+    governing_condition: str
+    peak_coil_load: float
+    cooling_energy: float
+    hours_above_threshold: int
+    recommended_capacity: float
+
+
+@dataclass(frozen=True, eq=False)
+class DashboardResult:
+    """A consistent set of results for one set of inputs.
+
+    Attributes
+    ----------
+    inputs : DashboardInputs
+    climate : ClimatePart
+    units : tuple of UnitResult
+        One per air handler, in scenario order.
+    view : str
+        "air_handler" or "plant": what ``figures``, ``coil_load`` and
+        ``zone_load`` describe.
+    figures : HeadlineFigures
+    coil_load, zone_load : numpy.ndarray
+        Hourly coil and zone load of the view [kW].
+    design_loads : dict
+        SI components of the design coil load of the view [kW] (the keys of
+        :func:`plantside.charts.frames.design_breakdown_frame`).
+    machine_capacities : numpy.ndarray
+        Capacities of the machines of the first cooling plant option [kW].
+    minimum_turndown : float
+        Their minimum turndown [-].
+    cautions : tuple of str
+    """
+
+    inputs: DashboardInputs
+    climate: ClimatePart
+    units: tuple[UnitResult, ...]
+    view: str
+    figures: HeadlineFigures
+    coil_load: np.ndarray
+    zone_load: np.ndarray
+    design_loads: dict
+    machine_capacities: np.ndarray
+    minimum_turndown: float
+    cautions: tuple[str, ...] = field(default=())
+
+    @property
+    def unit(self) -> UnitResult:
+        """The air handler the controls show."""
+        return self.units[self.inputs.air_handler]
+
+
+def _finite_float(name: str, value, low: float, high: float, unit: str) -> float:
+    if isinstance(value, bool) or not isinstance(value, int | float | np.floating | np.integer):
+        raise InputRangeError(name, f"{name} must be a number, got {type(value).__name__}", unit)
+    number = float(value)
+    allowed = f"{low:g} to {high:g} {unit}".strip()
+    if not math.isfinite(number) or not low <= number <= high:
+        raise InputRangeError(name, f"{name} = {number:g} {unit} is outside {allowed}", allowed)
+    return number
+
+
+def _choice(name: str, value, allowed) -> str:
+    keys = tuple(allowed)
+    if not isinstance(value, str) or value not in keys:
+        shown = value if isinstance(value, str | int | float) else type(value).__name__
+        raise InputRangeError(
+            name, f"{name} {str(shown)[:60]!r} is not one of: {', '.join(keys)}", ", ".join(keys)
+        )
+    return value
+
+
+def _kind_label(kind: str, percent: float) -> str:
+    names = {"cooling": "Dry bulb", "dehumidification": "Dew point", "enthalpy": "Enthalpy"}
+    return f"{names.get(kind, kind)} {percent:g} %"
+
+
+class DashboardState:
+    """Inputs, last valid result, pinned result and messages of one dashboard.
+
+    Parameters
+    ----------
+    scenario : plantside.scenario.Scenario
+        The study: site, air handlers with their zone loads, plant options.
+    view : {"air_handler", "plant"}
+        What the headline figures and the load charts describe.
+    air_handler : int
+        Index of the air handler the controls show first.
+
+    Attributes
+    ----------
+    inputs : DashboardInputs
+        What the user set (kept even when the model refuses it).
+    result : DashboardResult
+        The last valid result (the charts show it).
+    pinned : DashboardResult or None
+        The result pinned as "A".
+    messages : dict of str to str
+        Control name -> message shown beside it ("" when fine). Besides the
+        controls, ``"scenario"`` and ``"export"`` carry file messages.
+    last_update : dict
+        What the last change did: ``control``, ``recomputed`` (air-handler
+        indices whose year was recomputed), ``seconds`` of kernel time, ``ok``.
+    listeners : list of callables
+        Called with the state after every change (the app redraws).
+    """
+
+    def __init__(self, scenario: Scenario, view: str = "air_handler", air_handler: int = 0):
+        if view not in ("air_handler", "plant"):
+            raise InputRangeError("view", f"view = {view!r}", "'air_handler' or 'plant'")
+        self.view = view
+        self.messages: dict[str, str] = dict.fromkeys((*CONTROLS, "scenario", "export"), "")
+        self.listeners: list[Callable[[DashboardState], None]] = []
+        self.last_update: dict = {}
+        self.uploaded: dict[str, Weather] = {}
+        self._climates: dict[str, ClimatePart] = {}
+        self.pinned: DashboardResult | None = None
+        self._start(scenario, air_handler)
+
+    def _start(self, scenario: Scenario, air_handler: int = 0):
+        """Take a scenario: its air handlers, plant and first control values."""
+        self.scenario = scenario
+        count = len(scenario.air_handlers)
+        index = int(air_handler) if 0 <= int(air_handler) < count else 0
+        climate = scenario.climate
+        if climate is None:  # a weather file named by a scenario read from disk
+            climate = "file: " + str(scenario.weather_file)
+            self.uploaded.setdefault(climate, scenario.load_weather())
+        self.inputs = DashboardInputs(
+            units=tuple(UnitInputs.from_settings(spec.settings) for spec in scenario.air_handlers),
+            air_handler=index,
+            design_percent=float(scenario.cooling_design_percent),
+            climate=climate,
+            unit_system=UnitSystem.parse(scenario.unit_system).value,
+        )
+        self._zone_loads: dict[tuple[str, int], object] = {}
+        self.result = self._compute(self.inputs, None, "all")
+
+    # ------------------------------------------------------------------ facts
+    @property
+    def names(self) -> tuple[str, ...]:
+        """Air-handler names, in scenario order."""
+        return tuple(spec.settings.name for spec in self.scenario.air_handlers)
+
+    def supply_temperature_range(self, index: int | None = None) -> tuple[float, float]:
+        """Allowed supply air temperature of an air handler [°C]: 4 °C to 0.5 K below the zone."""
+        index = self.inputs.air_handler if index is None else index
+        zone = float(self.scenario.air_handlers[index].settings.zone_cooling_drybulb)
+        return 4.0, zone - 0.5
+
+    @staticmethod
+    def bypass_factor_range() -> tuple[float, float]:
+        """Allowed coil bypass factor [-] (common practice: 0.03 to 0.3 for cooling coils)."""
+        return 0.0, 0.5
+
+    def climate_choices(self) -> tuple[str, ...]:
+        """Bundled fictional sites, then uploaded files."""
+        return tuple(BUNDLED_CLIMATES) + tuple(self.uploaded)
+
+    # -------------------------------------------------------------- validation
+    def validate(self, control: str, value):
+        """The value of ``control`` in SI if allowed; raise InputRangeError otherwise."""
+        if control == "outdoor_air_fraction":
+            return _finite_float("Outdoor-air fraction", value, 0.0, 1.0, "")
+        if control == "supply_air_temperature":
+            low, high = self.supply_temperature_range()
+            return _finite_float("Supply air temperature", value, low, high, "°C")
+        if control == "bypass_factor":
+            low, high = self.bypass_factor_range()
+            return _finite_float("Coil bypass factor", value, low, high, "")
+        if control == "economizer":
+            return _choice("Economizer control", value, ECONOMIZER_CHOICES)
+        if control == "fan_control":
+            return _choice("Fan control", value, FAN_CHOICES)
+        if control == "economizer_integrated":
+            if not isinstance(value, bool | np.bool_):
+                raise InputRangeError(
+                    "Integrated economizer", f"expected on or off, got {value!r:.40}", "on/off"
+                )
+            return bool(value)
+        if control == "design_percent":
+            number = _finite_float("Design condition", value, 0.0, 100.0, "%")
+            for allowed in COOLING_PERCENTS:
+                if math.isclose(number, allowed):
+                    return float(allowed)
+            raise InputRangeError(
+                "Design condition",
+                f"design condition {number:g} % is not one of 0.4, 1, 2 %",
+                "0.4, 1 or 2 %",
+            )
+        if control == "climate":
+            return _choice("Climate", value, self.climate_choices())
+        if control == "air_handler":
+            if isinstance(value, bool) or not isinstance(value, int | np.integer):
+                raise InputRangeError("Air handler", f"air handler {value!r:.40}", "an index")
+            if not 0 <= int(value) < len(self.names):
+                raise InputRangeError(
+                    "Air handler",
+                    f"air handler {value} does not exist",
+                    f"0..{len(self.names) - 1}",
+                )
+            return int(value)
+        if control == "unit_system":
+            if not isinstance(value, str):
+                raise InputRangeError("Units", f"unit system {value!r:.40}", "'SI' or 'IP'")
+            return UnitSystem.parse(value).value
+        raise InputRangeError("control", f"unknown control {control!r:.40}", ", ".join(CONTROLS))
+
+    # ------------------------------------------------------------------ update
+    def set(self, control: str, value) -> bool:
+        """Set one control and recompute what it affects. True when the results are valid.
+
+        A value of the wrong type or outside the control's range is refused:
+        the input keeps its previous value and the message says why. A value
+        the model cannot compute with (e.g. a supply temperature the coil
+        cannot reach with this bypass factor) is kept as the input; the last
+        valid result stays on show with the message beside the control.
+        """
+        start = time.perf_counter()
+        try:
+            clean = self.validate(control, value)
+        except PlantsideError as error:
+            self.messages[control] = str(error)
+            self._record(control, (), start, ok=False)
+            return False
+        self.inputs = self.inputs.with_control(control, clean)
+        self.messages[control] = ""
+        if CONTROLS[control] == "view":
+            shown = self.result
+            self.result = self._assemble(
+                replace(shown.inputs, air_handler=clean), shown.climate, shown.units
+            )
+        if CONTROLS[control] in ("none", "view") and not self._failing():
+            self._record(control, (), start, ok=True)
+            return True
+        return self._recompute(control, start)
+
+    def _failing(self) -> bool:
+        return any(self.messages[name] for name in CONTROLS)
+
+    def _recompute(self, control: str, start: float) -> bool:
+        try:
+            result = self._compute(self.inputs, self.result, CONTROLS[control])
+        except PlantsideError as error:
+            blamed = _FIELD_TO_CONTROL.get(getattr(error, "field", ""), control)
+            if blamed not in CONTROLS or CONTROLS[blamed] in ("none", "view"):
+                recomputing = CONTROLS.get(control, "none") not in ("none", "view")
+                blamed = control if recomputing else "climate"
+            for name in CONTROLS:
+                self.messages[name] = ""
+            self.messages[blamed] = str(error)
+            self._record(control, (), start, ok=False)
+            return False
+        recomputed = tuple(
+            i
+            for i, (new, old) in enumerate(zip(result.units, self.result.units, strict=False))
+            if new.hourly is not old.hourly
+        )
+        self.result = result
+        for name in CONTROLS:
+            self.messages[name] = ""
+        self._record(control, recomputed, start, ok=True)
+        return True
+
+    def _record(self, control, recomputed, start, ok):
+        self.last_update = {
+            "control": control,
+            "recomputed": tuple(recomputed),
+            "seconds": time.perf_counter() - start,
+            "ok": ok,
+        }
+        for listener in list(self.listeners):
+            listener(self)
+
+    @property
+    def stale(self) -> bool:
+        """True when the result on show is not that of the current inputs."""
+        shown = self.result.inputs
+        current = self.inputs
+        return (shown.units, shown.design_percent, shown.climate) != (
+            current.units,
+            current.design_percent,
+            current.climate,
+        )
+
+    def load_scenario(self, scenario: Scenario) -> None:
+        """Replace the study by another scenario (controls take its values)."""
+        start = time.perf_counter()
+        previous = (self.scenario, self.inputs, self.result, dict(self._zone_loads))
+        try:
+            self._start(scenario, 0)
+        except PlantsideError as error:
+            self.scenario, self.inputs, self.result, self._zone_loads = previous
+            self.messages["scenario"] = f"{scenario.source}: {error}"
+            self._record("scenario", (), start, ok=False)
+            return
+        self.pinned = None
+        for name in self.messages:
+            self.messages[name] = ""
+        self._record("scenario", tuple(range(len(self.names))), start, ok=True)
+
+    def current_scenario(self) -> Scenario:
+        """The scenario with the controls' current values (what "Save scenario" writes)."""
+        scenario = self.scenario
+        for index, unit in enumerate(self.inputs.units):
+            settings = unit.apply(scenario.air_handlers[index].settings)
+            specs = list(scenario.air_handlers)
+            specs[index] = replace(specs[index], settings=settings)
+            scenario = replace(scenario, air_handlers=tuple(specs))
+        climate = self.inputs.climate
+        site = (
+            {"climate": climate, "weather_file": None}
+            if climate in BUNDLED_CLIMATES
+            else {"climate": None, "weather_file": climate.split(": ", 1)[-1]}
+        )
+        return replace(
+            scenario,
+            cooling_design_percent=self.inputs.design_percent,
+            unit_system=UnitSystem.parse(self.inputs.unit_system),
+            **site,
+        )
+
+    # ---------------------------------------------------------------- climates
+    def add_weather_file(self, name: str, content: bytes) -> str:
+        """Read an uploaded hourly weather CSV and select it as the climate.
+
+        Parameters
+        ----------
+        name : str
+            File name as uploaded (a label only, never a path).
+        content : bytes
+            File content, at most :data:`MAX_UPLOAD_BYTES`. Columns without a
+            unit in their header are read in the unit system on show.
+
+        Returns
+        -------
+        str
+            The climate value of the upload (``"upload: <name>"``), or "" if the
+            file was refused (the message is beside the climate control).
+        """
+        start = time.perf_counter()
+        label = UPLOAD_PREFIX + "".join(ch for ch in str(name)[:80] if ch.isprintable())
+        try:
+            data = bytes(content)
+            if len(data) > MAX_UPLOAD_BYTES:
+                raise InputFileError(
+                    label[len(UPLOAD_PREFIX) :],
+                    [f"file is {len(data) / 1e6:.1f} MB; at most {MAX_UPLOAD_BYTES / 1e6:.0f} MB"],
+                )
+            weather = read_weather_csv(
+                data,
+                units=self.inputs.unit_system,
+                site=label[len(UPLOAD_PREFIX) :],
+                max_bytes=MAX_UPLOAD_BYTES,
+            )
+            self._climate_part(label, weather)  # its design conditions must work too
+        except PlantsideError as error:
+            self.messages["climate"] = str(error)
+            self._record("climate", (), start, ok=False)
+            return ""
+        self.uploaded[label] = weather
+        self.set("climate", label)
+        return label
+
+    def _climate_part(self, climate: str, weather: Weather | None = None) -> ClimatePart:
+        cached = self._climates.get(climate)
+        if cached is not None:
+            return cached
+        if weather is None:
+            weather = self.uploaded.get(climate) or load_bundled_climate(climate)
+        part = ClimatePart(weather, design_conditions_from_weather(weather), climate)
+        self._climates[climate] = part
+        return part
+
+    def _unit_zone_loads(self, index: int, climate: ClimatePart):
+        key = (climate.source, index)
+        if key not in self._zone_loads:
+            self._zone_loads[key] = self.scenario.zone_loads(index, climate.weather)
+        return self._zone_loads[key]
+
+    # ----------------------------------------------------------------- compute
+    def _compute(self, inputs: DashboardInputs, previous: DashboardResult | None, scope: str):
+        """Results for ``inputs``, reusing parts of ``previous`` the change left alone.
+
+        ``scope``: "all"/"climate" (everything), "design" (design parts of every
+        air handler), "unit" (design part and year of the air handler shown).
+        """
+        if (
+            previous is None
+            or scope in ("all", "climate")
+            or previous.climate.source != inputs.climate
+        ):
+            climate = self._climate_part(inputs.climate)
+            previous = None
+        else:
+            climate = previous.climate
+        units = []
+        for index, spec in enumerate(self.scenario.air_handlers):
+            unit_inputs = inputs.units[index]
+            old = previous.units[index] if previous is not None else None
+            reuse_year = old is not None and old.inputs == unit_inputs
+            reuse_design = reuse_year and scope != "design"
+            if reuse_design:
+                units.append(old)
+                continue
+            settings = unit_inputs.apply(spec.settings)
+            zone_loads = self._unit_zone_loads(index, climate)
+            design = self._design_part(settings, spec, zone_loads, climate, inputs.design_percent)
+            hourly = (
+                old.hourly if reuse_year else ahu.hourly_year(settings, climate.weather, zone_loads)
+            )
+            units.append(UnitResult(spec.settings.name, unit_inputs, design, hourly))
+        return self._assemble(inputs, climate, tuple(units))
+
+    def _design_part(self, settings, spec, zone_loads, climate, percent) -> DesignPart:
+        conditions = tuple(climate.conditions.cooling(kind, percent) for kind in DESIGN_KINDS)
+        if isinstance(spec.zone, ZoneLoadModel):
+            model = spec.zone
+        else:
+            # hourly zone loads from a file: the design zone load is the file's peak hour
+            # (sensible, with the latent of that hour) -- common practice (no source)
+            peak = int(np.argmax(np.asarray(zone_loads.sensible)))
+            model = (float(zone_loads.sensible[peak]), float(zone_loads.latent[peak]))
+        summary = ahu.cooling_design_points(settings, model, conditions, percent=percent)
+        governing = summary.points[summary.governing]
+        fractions = SWEEP_FRACTIONS[:, None]
+        sweep = {}
+        for condition in conditions:
+            if isinstance(model, ZoneLoadModel):
+                zone = design_zone_loads(model, condition.drybulb, occupied=True)
+            else:
+                zone = HourlyZoneLoads(sensible=[model[0]], latent=[model[1]])
+            hours = ahu.air_handler_hours(
+                settings,
+                [condition.drybulb],
+                [condition.humidity_ratio],
+                [condition.pressure],
+                zone,
+                minimum_outdoor_air_fraction=fractions,
+                force_operating=True,
+            )
+            sweep[_kind_label(condition.kind, percent)] = np.asarray(
+                hours["coil_total_kW"], dtype=float
+            ).reshape(-1)
+        return DesignPart(summary, governing, conditions, sweep)
+
+    def _assemble(self, inputs, climate, units) -> DashboardResult:
+        scenario = self.scenario
+        margin = float(scenario.cooling_margin_percent)
+        if self.view == "air_handler":
+            unit = units[inputs.air_handler]
+            loads = unit.design.governing.loads
+            design_loads = _breakdown(loads)
+            design_zone = float(loads["zone_sensible_kW"]) + float(loads["zone_latent_kW"])
+            design_coil = float(loads["coil_total_kW"])
+            governing = str(unit.design.governing.label)
+            coil = unit.hourly["coil_total_kW"].to_numpy(dtype=float)
+            zone = _zone_hourly(unit.hourly)
+        else:
+            gain = float(scenario.distribution_gain_percent)
+            kinds = units[0].design.summary.table.index
+            totals = {kind: sum(_coil(u, kind) for u in units) for kind in kinds}
+            kind = max(totals, key=totals.get)
+            points = [u.design.summary.points[kind] for u in units]
+            design_loads = {}
+            for point in points:
+                for key, value in _breakdown(point.loads).items():
+                    design_loads[key] = design_loads.get(key, 0.0) + value
+            factor = 1.0 + gain / 100.0
+            design_loads["distribution_gain_kW"] = (factor - 1.0) * design_loads["coil_total_kW"]
+            design_loads["coil_total_kW"] *= factor
+            design_zone = design_loads["zone_sensible_kW"] + design_loads["zone_latent_kW"]
+            design_coil = design_loads["coil_total_kW"]
+            governing = str(points[0].label)
+            coil = plant_load_from_coil_loads(
+                np.column_stack([u.hourly["coil_total_kW"].to_numpy(dtype=float) for u in units]),
+                gain,
+            )
+            zone = np.sum([_zone_hourly(u.hourly) for u in units], axis=0)
+        capacity = float(design_capacity_from_design_load(design_coil, margin))
+        option = scenario.cooling_options[0] if scenario.cooling_options else None
+        fractions = np.asarray(option.capacity_fractions if option else (1.0,), dtype=float)
+        figures = HeadlineFigures(
+            design_zone_load=design_zone,
+            design_coil_load=design_coil,
+            coil_to_zone_ratio=design_coil / design_zone if design_zone > 0 else float("nan"),
+            governing_condition=governing,
+            peak_coil_load=float(np.max(coil)),
+            cooling_energy=float(np.sum(np.maximum(coil, 0.0))),
+            hours_above_threshold=int(np.count_nonzero(coil > PART_LOAD_THRESHOLD * capacity)),
+            recommended_capacity=capacity,
+        )
+        cautions = []
+        for unit in units:
+            for text in (*unit.design.governing.cautions, *unit.hourly.attrs.get("cautions", ())):
+                if text not in cautions:
+                    cautions.append(text)
+        return DashboardResult(
+            inputs=inputs,
+            climate=climate,
+            units=units,
+            view=self.view,
+            figures=figures,
+            coil_load=coil,
+            zone_load=zone,
+            design_loads=design_loads,
+            machine_capacities=capacity * fractions,
+            minimum_turndown=float(option.minimum_turndown) if option else 0.15,
+            cautions=tuple(cautions),
+        )
+
+    # ----------------------------------------------------------------- pinning
+    def pin(self) -> None:
+        """Freeze the current result as "A"."""
+        self.pinned = self.result
+        self._record("pin", (), time.perf_counter(), ok=not self._failing())
+
+    def unpin(self) -> None:
+        """Forget the pinned result."""
+        self.pinned = None
+        self._record("pin", (), time.perf_counter(), ok=not self._failing())
+
+
+def _coil(unit: UnitResult, kind: str) -> float:
+    return float(unit.design.summary.points[kind].loads["coil_total_kW"])
+
+
+def _zone_hourly(hourly: pd.DataFrame) -> np.ndarray:
+    """Zone load met each hour, sensible + latent [kW]."""
+    return (hourly["zone_sensible_kW"] + hourly["zone_latent_kW"]).to_numpy(dtype=float)
+
+
+def _breakdown(loads: Mapping[str, float]) -> dict:
+    """Design-breakdown components [kW] from a design point's loads."""
+    effect = float(loads.get("economizer_effect_kW", 0.0)) + float(
+        loads.get("recovery_effect_kW", 0.0)
+    )
+    keys = (
+        "zone_sensible_kW",
+        "zone_latent_kW",
+        "ventilation_sensible_kW",
+        "ventilation_latent_kW",
+        "fan_heat_kW",
+        "coil_total_kW",
+    )
+    out = {key: float(loads.get(key, 0.0)) for key in keys}
+    out["economizer_recovery_kW"] = -effect
+    return out
