@@ -590,8 +590,10 @@ def dew_point_from_vapor_pressure(vapor_pressure, *, check=True):
     """
     pw = _as_float(vapor_pressure)
     if check:
-        low = float(np.exp(_ln_pws(np.asarray(DRYBULB_MIN_C))))
-        high = float(np.exp(_ln_pws(np.asarray(DRYBULB_MAX_C))))
+        # The formulation's range, widened by 1e-9 so that a vapour pressure computed
+        # from a humidity ratio at exactly -100 or 200 °C survives its rounding.
+        low = float(np.exp(_ln_pws(np.asarray(DRYBULB_MIN_C)))) * (1 - 1e-9)
+        high = float(np.exp(_ln_pws(np.asarray(DRYBULB_MAX_C)))) * (1 + 1e-9)
         check_range("vapor_pressure", pw, low, high, "Pa")
     td = np.array(_dew_point_first_guess(pw), dtype=float)
     flat_td = td.reshape(-1)
@@ -750,7 +752,8 @@ def wet_bulb_from_humidity_ratio(drybulb, humidity_ratio, pressure, *, check=Tru
     which the saturation pressure reaches 0.9 of the total pressure, where W would
     exceed 1 kg/kg). In the narrow band (about 0.3 K) just above 0 °C where both the
     water form (Eq. 33) and the ice form (Eq. 35) have a root, the root over water is
-    returned.
+    returned. Air so cold and dry that its wet bulb would lie below -100 °C, the end of
+    the formulation's range, gets -100 °C.
 
     Parameters
     ----------
