@@ -1,0 +1,106 @@
+"""The command line: every example scenario runs; corrupted copies exit 2 with a message."""
+
+import json
+import subprocess
+import sys
+from pathlib import Path
+
+import pandas as pd
+import pytest
+from plantside.cli import main
+
+SCENARIOS = Path(__file__).parents[1] / "example_data" / "scenarios"
+EXAMPLES = sorted(SCENARIOS.glob("*.toml"))
+CLINIC = SCENARIOS / "quillon_clinic.toml"
+
+
+@pytest.mark.parametrize("path", EXAMPLES, ids=lambda p: p.name)
+def test_design_table_for_every_example(path, capsys):
+    assert main(["design", str(path)]) == 0
+    out = capsys.readouterr().out
+    assert "plant: design load" in out
+    assert "licensed engineer" in out  # the caution is always printed
+
+
+def test_design_json_is_si_with_unit_suffixes(capsys):
+    assert main(["design", str(CLINIC), "--json"]) == 0
+    summary = json.loads(capsys.readouterr().out)
+    unit = summary["air_handlers"][0]
+    for key in (
+        "design_coil_total_kW",
+        "design_zone_sensible_kW",
+        "supply_drybulb_C",
+        "annual_coil_total_kWh",
+    ):
+        assert key in unit
+    assert (
+        summary["cooling_plant"]["design_capacity_kW"] > summary["cooling_plant"]["design_load_kW"]
+    )
+    # 55 °F in the file is reported in SI in the JSON.
+    assert unit["supply_drybulb_C"] == pytest.approx(12.7778, abs=1e-3)
+
+
+def test_year_writes_hourly_csv_and_summary(tmp_path, capsys):
+    assert main(["year", str(CLINIC), "--out", str(tmp_path)]) == 0
+    files = sorted(p.name for p in tmp_path.iterdir())
+    assert "summary.json" in files
+    hourly = [p for p in tmp_path.glob("hourly_*.csv")]
+    assert len(hourly) == 3
+    frame = pd.read_csv(hourly[0])
+    assert len(frame) == 8760
+    assert "coil_total_kW" in frame.columns
+    summary = json.loads((tmp_path / "summary.json").read_text())
+    bins = pd.DataFrame(summary["cooling_plant"]["part_load_bins"])
+    # Part-load bins add up to the year's cooling energy (issue check).
+    assert bins["energy_kWh"].sum() == pytest.approx(
+        summary["cooling_plant"]["annual_energy_kWh"], rel=1e-9
+    )
+
+
+def test_year_parquet(tmp_path):
+    assert main(["year", str(CLINIC), "--out", str(tmp_path), "--format", "parquet"]) == 0
+    frames = list(tmp_path.glob("hourly_*.parquet"))
+    assert len(frames) == 3 and len(pd.read_parquet(frames[0])) == 8760
+
+
+@pytest.mark.parametrize(
+    ("old", "new", "field"),
+    [
+        ("supply_airflow = 4500.0", 'supply_airflow = "lots"', "air_handler[1].supply_airflow"),
+        ('unit_system = "IP"', "", "unit_system"),
+        (
+            "minimum_airflow_fraction = 0.3",
+            "minimum_airflow_fractoin = 0.3",
+            "air_handler[2].minimum_airflow_fractoin",
+        ),
+        ('climate = "Salvia Flats"', 'weather_file = "gone/away.csv"', "site.weather_file"),
+    ],
+)
+def test_corrupted_scenario_exits_2_naming_the_field(tmp_path, capsys, old, new, field):
+    text = CLINIC.read_text(encoding="utf-8")
+    path = tmp_path / "corrupt.toml"
+    path.write_text(text.replace(old, new, 1), encoding="utf-8")
+    assert main(["design", str(path)]) == 2
+    err = capsys.readouterr().err
+    assert field in err
+    assert "Traceback" not in err
+
+
+def test_installed_entry_point_runs_and_fails_cleanly(tmp_path):
+    ok = subprocess.run(
+        [sys.executable, "-m", "plantside.cli", "climates"],
+        capture_output=True,
+        text=True,
+        check=False,
+    )
+    assert ok.returncode == 0 and "fictional" in ok.stdout
+    bad = tmp_path / "bad.toml"
+    bad.write_text('unit_system = "SI"\n[[air_handler]]\nname = 3\n', encoding="utf-8")
+    run = subprocess.run(
+        [sys.executable, "-m", "plantside.cli", "design", str(bad)],
+        capture_output=True,
+        text=True,
+        check=False,
+    )
+    assert run.returncode == 2
+    assert "Traceback" not in run.stderr and "plantside: error" in run.stderr

@@ -1,0 +1,153 @@
+"""Scenario files: validation messages, unit conversion at the edge, round trips."""
+
+import dataclasses
+import math
+from pathlib import Path
+
+import pytest
+from plantside.errors import ScenarioError
+from plantside.scenario import (
+    dumps_scenario,
+    load_scenario,
+    loads_scenario,
+    save_scenario,
+)
+from plantside.units import m3s_from_cfm
+
+EXAMPLES = sorted((Path(__file__).parents[1] / "example_data" / "scenarios").glob("*.toml"))
+CLINIC = Path(__file__).parents[1] / "example_data" / "scenarios" / "quillon_clinic.toml"
+
+
+def _close(a, b):
+    """Dataclasses equal field by field, floats to 1e-9 relative (unit round trips)."""
+    if dataclasses.is_dataclass(a):
+        return type(a) is type(b) and all(
+            _close(getattr(a, f.name), getattr(b, f.name))
+            for f in dataclasses.fields(a)
+            if f.compare
+        )
+    if isinstance(a, tuple):
+        return len(a) == len(b) and all(_close(x, y) for x, y in zip(a, b, strict=True))
+    if isinstance(a, float) and isinstance(b, float):
+        return math.isclose(a, b, rel_tol=1e-9, abs_tol=1e-12)
+    return a == b
+
+
+@pytest.mark.parametrize("path", EXAMPLES, ids=lambda p: p.name)
+def test_every_example_loads_and_round_trips(path, tmp_path):
+    scenario = load_scenario(path)
+    text = dumps_scenario(scenario)
+    again = loads_scenario(text, "again.toml", path.parent)
+    # Saved and loaded back: the same study (floats through IP<->SI to 1e-9) and the
+    # same text when saved a second time.
+    assert _close(scenario, again)
+    assert dumps_scenario(again) == text
+    saved = save_scenario(again, tmp_path / "saved.toml")
+    assert saved.read_text(encoding="utf-8") == text
+
+
+def test_ip_numbers_are_converted_at_the_edge():
+    scenario = load_scenario(CLINIC)
+    unit = scenario.air_handlers[1].settings
+    # 14,000 cfm in the file; the model works in m³/s (NIST SP 811: 1 cfm = 0.000471947 m³/s).
+    assert unit.supply_airflow == pytest.approx(m3s_from_cfm(14000.0), rel=1e-12)
+    # 55 °F supply air is 12.78 °C (exact conversion).
+    assert unit.supply_drybulb == pytest.approx((55.0 - 32.0) / 1.8, rel=1e-12)
+    # 22 tons of zone sensible load: 1 ton = 12,000 Btu/h = 3.51685 kW (AHRI 550/590).
+    assert scenario.air_handlers[1].zone.cooling_design_sensible == pytest.approx(
+        22.0 * 3.516853, rel=1e-6
+    )
+
+
+def _corrupt(tmp_path, old, new, name="bad.toml"):
+    text = CLINIC.read_text(encoding="utf-8")
+    assert old in text, old
+    path = tmp_path / name
+    path.write_text(text.replace(old, new, 1), encoding="utf-8")
+    return path
+
+
+@pytest.mark.parametrize(
+    ("old", "new", "field", "words"),
+    [
+        # wrong type
+        (
+            "supply_airflow = 4500.0",
+            'supply_airflow = "lots"',
+            "air_handler[1].supply_airflow",
+            "expected a number",
+        ),
+        # unknown key, with a did-you-mean suggestion
+        (
+            "supply_airflow = 14000.0",
+            "supply_airflo = 14000.0",
+            "air_handler[2].supply_airflo",
+            "did you mean 'supply_airflow'",
+        ),
+        # missing required field
+        ('unit_system = "IP"', "", "unit_system", "missing"),
+        # out of range (caught by the model's own validation, reported with the file path)
+        ("bypass_factor = 0.08", "bypass_factor = 1.5", "air_handler[1].bypass_factor", "allowed"),
+        # a climate that is not bundled
+        (
+            'climate = "Salvia Flats"',
+            'climate = "Salvia Flat"',
+            "site.climate",
+            "did you mean 'Salvia Flats'",
+        ),
+        # an unreadable weather path
+        (
+            'climate = "Salvia Flats"',
+            'weather_file = "no_such_year.csv"',
+            "site.weather_file",
+            "not found",
+        ),
+        # a design percentage the handbook does not tabulate
+        (
+            "cooling_design_percent = 0.4",
+            "cooling_design_percent = 5",
+            "site.cooling_design_percent",
+            "allowed: 0.4, 1, 2",
+        ),
+        # a plant option with an impossible machine size
+        (
+            "capacity_fractions = [0.5, 0.5]",
+            "capacity_fractions = [0.5, -0.5]",
+            "plant.cooling_option[1].capacity_fractions[2]",
+            "allowed range",
+        ),
+        # TOML syntax error
+        ("[site]", "[site", "(syntax)", "not valid TOML"),
+    ],
+)
+def test_bad_scenarios_name_file_field_and_allowed(tmp_path, old, new, field, words):
+    path = _corrupt(tmp_path, old, new)
+    with pytest.raises(ScenarioError) as caught:
+        load_scenario(path)
+    message = str(caught.value)
+    assert str(path) in message
+    assert field in message
+    assert words in message
+
+
+def test_unit_system_typo_is_refused(tmp_path):
+    path = _corrupt(tmp_path, 'unit_system = "IP"', 'unit_system = "imperial"')
+    with pytest.raises(ScenarioError, match=r"unit_system.*'SI' or 'IP'"):
+        load_scenario(path)
+
+
+def test_missing_file_and_bad_encoding(tmp_path):
+    with pytest.raises(ScenarioError, match="not found"):
+        load_scenario(tmp_path / "absent.toml")
+    path = tmp_path / "latin1.toml"
+    path.write_bytes('title = "Caf\xe9"\n'.encode("latin-1"))
+    with pytest.raises(ScenarioError, match="not UTF-8"):
+        load_scenario(path)
+
+
+def test_with_air_handler_changes_one_setting_only():
+    scenario = load_scenario(CLINIC)
+    changed = scenario.with_air_handler(1, supply_drybulb=14.0)
+    assert changed.air_handlers[1].settings.supply_drybulb == 14.0
+    assert changed.air_handlers[0] == scenario.air_handlers[0]
+    assert changed.air_handlers[2] == scenario.air_handlers[2]
