@@ -144,7 +144,7 @@ def test_humidity_ratio_in_grains_and_altitude_in_feet(year):
 def test_whole_days_accepted_with_a_note(year):
     weather = read_weather_csv(csv_bytes(si_frame(year).iloc[: 24 * 7]))
     assert weather.hours == 168
-    assert any("7 days, not a full year" in note for note in weather.notes)
+    assert any("7 day(s), not a full year" in note for note in weather.notes)
 
 
 def test_leap_year_of_8784_hours(year):
@@ -359,3 +359,34 @@ def test_separate_date_and_time_columns_day_first(year):
     assert weather.hours == 8760
     assert weather.month[24 * 40] == 2  # 10 February: the dates were read day first
     assert any("ignored columns: 'Wind (m/s)'" in note for note in weather.notes)
+
+
+# --- robustness: defects W1-W4 found by the fuzz (tests/test_fuzz_weather_csv.py) ------------
+def test_ambiguous_humidity_columns_are_reported_not_crashed():
+    data = b"drybulb_C,wb_C,wet bulb_C,rh_%\n" + b"20,15,15,50\n" * 24
+    text = problem_text(data, altitude=0)
+    assert "row 1: columns 'wb_C' and 'wet bulb_C' both look like the wet bulb" in text
+
+
+def test_marker_in_a_timestamp_cell_is_an_unreadable_time():
+    rows = b"".join(f"2023-01-01T{h:02d}:00,20,10\n".encode() for h in range(1, 24))
+    text = problem_text(b"timestamp,drybulb_C,dew_point_C\n-9999,20,10\n" + rows, altitude=0)
+    assert "column 'timestamp': unreadable date/time at row 2; first '-9999'" in text
+
+
+def test_junk_without_line_breaks_is_refused_at_row_1():
+    text = problem_text(b"a" * 200_000 + b"\n1\n", altitude=0)
+    assert "row 1: the header is 200,000 characters long" in text
+
+
+@pytest.mark.parametrize("last", [b"50000000", b"1e30", b"-5"])
+def test_huge_or_negative_hour_index_is_refused_before_any_allocation(last):
+    text = problem_text(b"hour,drybulb_C,dew_point_C\n0,20,10\n" + last + b",20,10\n", altitude=0)
+    assert "column 'hour'" in text and "row 3" in text
+
+
+def test_stray_year_in_timestamps_exceeds_max_rows(year):
+    frame = si_frame(year).iloc[:48]
+    frame.loc[47, "timestamp"] = "2200-01-01 00:00"
+    text = problem_text(csv_bytes(frame))
+    assert "column 'timestamp': the times span" in text and "max_rows=87,840" in text

@@ -94,6 +94,10 @@ DEFAULT_MAX_BYTES = 20_000_000
 #: Most data rows accepted by default: ten leap years of hours.
 DEFAULT_MAX_ROWS = 10 * 8784
 
+#: Longest header line accepted [characters].
+MAX_HEADER_CHARACTERS = 10_000
+#: Largest hour index accepted (a hundred years of hours).
+MAX_HOUR_INDEX = 100 * 8784
 #: Tolerances before a humidity value counts as impossible (rounding in the file).
 DEW_POINT_TOLERANCE_K = 0.05
 SATURATION_TOLERANCE = 0.005
@@ -455,6 +459,7 @@ class _Reader:
 
     # -- structure ------------------------------------------------------------------
     def read(self, text, site, altitude, fill_gaps, max_gap_hours, max_rows) -> Weather:
+        self.max_rows = max_rows
         text = text.replace("\r\n", "\n").replace("\r", "\n")
         lines = text.split("\n")
         # Leading comment ('#') and blank lines are skipped but still counted as rows.
@@ -484,6 +489,13 @@ class _Reader:
             self.fail()
         header_line = lines[skipped]
         separator = max((",", ";", "\t"), key=header_line.count)
+        if len(header_line) > MAX_HEADER_CHARACTERS:
+            self.problems.append(
+                f"row {self.header_row}: the header is {len(header_line):,} characters long "
+                f"(more than {MAX_HEADER_CHARACTERS:,}), so no columns can be read; is this an "
+                f"hourly weather CSV?"
+            )
+            self.fail()
         self.raw_headers = next(csv.reader([header_line], delimiter=separator))
         self.decimal_comma = separator in (";", "\t")
         body = "\n".join(lines[skipped:])
@@ -509,6 +521,9 @@ class _Reader:
                 )
             else:
                 self.problems.append(f"row {self.header_row}: the file cannot be read as CSV")
+            self.fail()
+        except csv.Error as error:
+            self.problems.append(f"row {self.header_row}: the file cannot be read as CSV ({error})")
             self.fail()
         except pd.errors.EmptyDataError:
             self.problems.append(f"row {self.header_row}: the file is empty (no columns)")
@@ -607,11 +622,16 @@ class _Reader:
             unused = [chosen[r].header for r in humidity[1:] if r in chosen]
             for role in humidity[1:]:
                 chosen.pop(role, None)
-            if unused:
+            if unused and humidity[0] in chosen:
                 self.notes.append(
                     f"humidity taken from {chosen[humidity[0]].header!r} "
                     f"({_ROLE_TEXT[humidity[0]]}); not used: " + ", ".join(repr(u) for u in unused)
                 )
+        # A lone date or time column is read as the timestamp column.
+        lone = [role for role in ("date", "time") if role in chosen]
+        if len(lone) == 1 and "timestamp" not in chosen:
+            column = chosen.pop(lone[0])
+            chosen["timestamp"] = _Column(column.header, "timestamp", None, None)
         if "timestamp" in chosen and "hour" in chosen:
             self.notes.append(
                 f"time taken from {chosen['timestamp'].header!r}; hour column "
@@ -771,9 +791,12 @@ class _Reader:
                 )
             if cells.str.fullmatch(r"-?\d+").all():
                 self.notes.append(f"column {header!r} holds whole numbers: read as hour index")
-                return self.hour_index(cells.astype(int).to_numpy(), header), None
+                values = pd.to_numeric(cells, errors="coerce").to_numpy(dtype=float)
+                return self.hour_index(values, header), None
             stamps = _parse_timestamps(cells)
-            bad = stamps.isna().to_numpy()
+            # Years far outside any weather record (e.g. a -9999 marker read as a year).
+            years = stamps.dt.year.to_numpy(dtype=float, na_value=np.nan)
+            bad = ~((years >= 1800) & (years <= 2200))
             if bad.any():
                 first = int(np.flatnonzero(bad)[0])
                 self.problems.append(
@@ -787,13 +810,6 @@ class _Reader:
             hours = (stamps - stamps.iloc[0]).dt.total_seconds().to_numpy() / 3600.0
             self.time_header = header
             return self.check_steps(hours, stamps, header), pd.DatetimeIndex(stamps)
-        if "date" in chosen or "time" in chosen:
-            only = chosen.get("date") or chosen.get("time")
-            self.problems.append(
-                f"row {self.header_row}, column {only.header!r}: a date or a time column "
-                f"alone cannot place the hours; give one timestamp column or both date and time"
-            )
-            return None, None
         if "hour" in chosen:
             column = chosen["hour"]
             values, missing = self.numbers(column)
@@ -811,7 +827,7 @@ class _Reader:
                     f"{_rows_text(self.row_numbers(np.flatnonzero(fractional)))}"
                 )
                 return None, None
-            return self.hour_index(values.astype(int), column.header), None
+            return self.hour_index(values, column.header), None
         self.notes.append(
             f"no time column: the {n} rows are read as consecutive hours from 1 January 00:00"
         )
@@ -819,6 +835,16 @@ class _Reader:
         return np.arange(n, dtype=float), None
 
     def hour_index(self, values: np.ndarray, header: str) -> np.ndarray | None:
+        """Hour offsets from an hour-index column (whole numbers as floats)."""
+        out_of_range = ~((values >= 0) & (values <= MAX_HOUR_INDEX))
+        if out_of_range.any():
+            index = np.flatnonzero(out_of_range)
+            self.problems.append(
+                f"column {header!r}: hour index outside 0 to {MAX_HOUR_INDEX:,} at "
+                f"{_rows_text(self.row_numbers(index))}; first {values[index[0]]:g}"
+            )
+            return None
+        values = values.astype(np.int64)
         first = int(values[0])
         if first == 1 and int(values.max()) in (8760, 8784):
             self.notes.append(
@@ -835,7 +861,7 @@ class _Reader:
         def show(i):
             row = self.row_numbers([i])[0]
             if stamps is not None:
-                return f"row {row} ({stamps.iloc[i]:%Y-%m-%d %H:%M})"
+                return f"row {row} ({stamps.iloc[i].isoformat(sep=' ', timespec='minutes')})"
             return f"row {row}"
 
         ok = True
@@ -864,6 +890,13 @@ class _Reader:
                 f"column {header!r}: time goes backwards at "
                 f"{_rows_text(self.row_numbers(backwards))}; first {show(backwards[0])} "
                 f"(rows must be in time order)"
+            )
+            ok = False
+        if ok and rounded[-1] + 1 > self.max_rows:
+            self.problems.append(
+                f"column {header!r}: the times span {rounded[-1] + 1:,} hours from "
+                f"{show(0)} to {show(len(rounded) - 1)}, more than max_rows="
+                f"{self.max_rows:,} hours"
             )
             ok = False
         if not ok:
@@ -930,7 +963,7 @@ class _Reader:
             self.fail()
         if grid_size not in (8760, 8784):
             self.notes.append(
-                f"{grid_size} hours = {grid_size // 24} days, not a full year: annual design "
+                f"{grid_size} hours = {grid_size // 24} day(s), not a full year: annual design "
                 f"conditions computed from it describe only these days"
             )
         return self.weather(chosen, grid, humidity_role, stamps, grid_size, site, altitude)
@@ -1166,9 +1199,17 @@ def _parse_timestamps(cells: pd.Series) -> pd.Series:
     for options in ({"format": "ISO8601"}, {"dayfirst": False}, {"dayfirst": True}):
         with warnings.catch_warnings():
             warnings.simplefilter("ignore")
-            try:
-                parsed = pd.to_datetime(cells, errors="coerce", **options)
-            except (ValueError, TypeError):
+            parsed = None
+            # Mixed UTC offsets are refused by the plain parse: read them as UTC instants.
+            for utc in (False, True):
+                try:
+                    parsed = pd.to_datetime(cells, errors="coerce", utc=utc, **options)
+                except (ValueError, TypeError, OverflowError, NotImplementedError):
+                    continue
+                if pd.api.types.is_datetime64_any_dtype(parsed):
+                    break
+                parsed = None
+            if parsed is None:
                 continue
         steps = parsed.diff().dt.total_seconds().to_numpy()[1:]
         score = (int(parsed.isna().sum()), int(np.count_nonzero(steps != 3600)))
