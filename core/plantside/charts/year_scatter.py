@@ -1,0 +1,168 @@
+"""Chart 2: the year hour by hour, coil load against zone load, by economizer mode.
+
+Each circle is one cell of zone load x coil load; its area is the number of
+hours in the cell and its colour the economizer mode of those hours. The
+diagonal marks coil load equal to zone load: hours above it are hours in which
+the coil carries ventilation or fan heat on top of the room, hours below it
+are hours in which the economizer or recovery takes load off the coil. The
+8,760 hours arrive already counted in a few hundred cells
+(:func:`plantside.charts.frames.year_scatter_frame`).
+"""
+
+from __future__ import annotations
+
+import altair as alt
+import numpy as np
+import pandas as pd
+
+from ..economizer import ECONOMIZER_MODES
+from .compare import SCENARIO_COLUMN, SCENARIO_LABELS, scenarios_in
+from .frames import MODE_LABELS, axis_title, frame_system, value_format
+from .palette import INK_SOFT, WIDTH, chart_builder, concatenated, layered, mode_colours, themed
+
+__all__ = ["year_scatter_chart"]
+
+
+def _domain(frame: pd.DataFrame) -> list[float]:
+    values = np.concatenate(
+        [frame[c].to_numpy(dtype=float) for c in ("zone_low", "zone_high", "coil_low", "coil_high")]
+    )
+    if values.size == 0:
+        return [0.0, 1.0]
+    return [float(min(0.0, values.min())), float(max(values.max(), 1e-9))]
+
+
+def _panel(scenario, system, domain, modes, colours, size_max, fmt, width, height):
+    power = axis_title("Zone load", "power", system)
+    coil_title = axis_title("Coil total load", "power", system)
+    diagonal = alt.Chart(
+        alt.Data(values=[{"x": domain[0], "y": domain[0]}, {"x": domain[1], "y": domain[1]}])
+    ).mark_line(color=INK_SOFT, strokeDash=[6, 4], strokeWidth=1.5)
+    diagonal = diagonal.encode(
+        x=alt.X("x:Q", scale=alt.Scale(domain=domain, nice=False)),
+        y=alt.Y("y:Q", scale=alt.Scale(domain=domain, nice=False)),
+    )
+    diagonal_label = (
+        alt.Chart(alt.Data(values=[{"x": domain[1], "y": domain[1], "t": "coil = zone"}]))
+        .mark_text(align="right", baseline="bottom", dx=-4, dy=-4, color=INK_SOFT, fontSize=14)
+        .encode(x=alt.X("x:Q"), y=alt.Y("y:Q"), text=alt.Text("t:N"))
+    )
+    points = alt.Chart(alt.NamedData(name="year"))
+    if scenario is not None:
+        points = points.transform_filter(alt.datum[SCENARIO_COLUMN] == scenario)
+    points = points.mark_circle(opacity=0.78, stroke="white", strokeWidth=0.6).encode(
+        x=alt.X("zone_load:Q", title=power, scale=alt.Scale(domain=domain, nice=False)),
+        y=alt.Y("coil_load:Q", title=coil_title, scale=alt.Scale(domain=domain, nice=False)),
+        size=alt.Size(
+            "hours:Q",
+            title="Hours in cell",
+            # area grows with the square root of the hours, from a visible minimum, so
+            # one crowded cell does not shrink the rest to dots; the legend keeps the
+            # true hour counts readable
+            scale=alt.Scale(type="sqrt", domain=[0, size_max], range=[18, 620], zero=False),
+            legend=alt.Legend(
+                orient="right",
+                symbolFillColor="#9aa3ad",
+                symbolStrokeWidth=0,
+                values=_legend_hours(size_max),
+            ),
+        ),
+        color=alt.Color(
+            "mode_label:N",
+            title="Economizer mode",
+            scale=alt.Scale(
+                domain=[MODE_LABELS.get(m, m) for m in modes],
+                range=[colours[m] for m in modes],
+            ),
+        ),
+        order=alt.Order("hours:Q", sort="descending"),
+        tooltip=[
+            alt.Tooltip("mode_label:N", title="Economizer mode"),
+            alt.Tooltip("zone_low:Q", title=f"{power}, from", format=fmt),
+            alt.Tooltip("zone_high:Q", title="to", format=fmt),
+            alt.Tooltip("coil_low:Q", title=f"{coil_title}, from", format=fmt),
+            alt.Tooltip("coil_high:Q", title="to", format=fmt),
+            alt.Tooltip("hours:Q", title="Hours"),
+        ],
+    )
+    return layered(
+        [diagonal, diagonal_label, points],
+        width=width,
+        height=height,
+        title=SCENARIO_LABELS[scenario] if scenario else alt.Undefined,
+    )
+
+
+def _legend_hours(size_max: int) -> list[int]:
+    """Three or four round hour counts up to the largest cell, for the size legend."""
+    values = {1}
+    for share in (0.1, 0.35, 1.0):
+        raw = size_max * share
+        power = 10 ** max(0, int(np.floor(np.log10(max(raw, 1)))))
+        values.add(max(1, int(round(raw / power) * power)))
+    return sorted(v for v in values if v <= max(size_max, 1))
+
+
+@chart_builder
+def year_scatter_chart(frame: pd.DataFrame, system=None, title: str | None = None):
+    """Binned scatter of the year's hours: coil load against zone load, by economizer mode.
+
+    Parameters
+    ----------
+    frame : pandas.DataFrame
+        From :func:`~plantside.charts.frames.year_scatter_frame`, or two such
+        frames stacked by :func:`~plantside.charts.compare.combine_scenarios`
+        (then A and B are drawn side by side on the same scales).
+    system : {"SI", "IP"}, optional
+        Unit system of the frame (default: the frame's own).
+    title : str, optional
+        Chart title (default "The year hour by hour: coil load against zone load").
+
+    Returns
+    -------
+    altair.LayerChart or altair.HConcatChart
+    """
+    system = frame_system(frame, system)
+    present = set(frame["mode"]) if len(frame) else set()
+    modes = [m for m in ECONOMIZER_MODES if m in present] + sorted(present - set(ECONOMIZER_MODES))
+    colours = mode_colours(modes)
+    domain = _domain(frame)
+    size_max = int(frame["hours"].max()) if len(frame) else 1
+    fmt = value_format(domain)
+    keys = scenarios_in(frame)
+    side = WIDTH if not keys else int(WIDTH * 0.62)
+    subtitle = []
+    if len(frame):
+        step = float((frame["zone_high"] - frame["zone_low"]).iloc[0])
+        unit = axis_title("", "power", system).strip()[1:-1]
+        subtitle.append(
+            f"Circle area: hours in a cell of {step:g} × {step:g} {unit}; colour: economizer mode"
+        )
+    off = _hours_off(frame, keys)
+    if off:
+        subtitle.append(f"Not shown: hours with the fan off ({off})")
+    if not keys:
+        chart = _panel(None, system, domain, modes, colours, size_max, fmt, side, side * 0.6)
+    else:
+        panels = [
+            _panel(key, system, domain, modes, colours, size_max, fmt, side, side * 0.8)
+            for key in keys
+        ]
+        chart = concatenated(
+            "h", panels, resolve=alt.Resolve(scale={"color": "shared", "size": "shared"})
+        )
+    return themed(
+        chart,
+        title=title or "The year hour by hour: coil load against zone load",
+        subtitle=subtitle,
+        datasets={"year": frame},
+    )
+
+
+def _hours_off(frame: pd.DataFrame, keys: list[str]) -> str:
+    if not keys:
+        off = int(frame.attrs.get("hours_off", 0))
+        return f"{off:,} h" if off else ""
+    by = frame.attrs.get("scenarios", {})
+    parts = [f"{k}: {int(by.get(k, {}).get('hours_off', 0)):,} h" for k in keys]
+    return ", ".join(parts) if any(by.get(k, {}).get("hours_off", 0) for k in keys) else ""
