@@ -110,8 +110,8 @@ def _legend_scale(mapping: dict, frame: pd.DataFrame) -> alt.Scale:
     return alt.Scale(domain=present, range=[mapping[key] for key in present])
 
 
-def _legend(title: str = "Scenario") -> alt.Legend:
-    return alt.Legend(title=title, labelExpr=f"{_label_expression()}", symbolStrokeWidth=3)
+def _legend(title: str = "Scenario", **extra) -> alt.Legend:
+    return alt.Legend(title=title, labelExpr=_label_expression(), **extra)
 
 
 def _label_expression() -> str:
@@ -124,7 +124,10 @@ def _label_expression() -> str:
 def scenario_dash(frame: pd.DataFrame):
     """``strokeDash`` encoding: A dashed, B solid (for lines and rules)."""
     return alt.StrokeDash(
-        f"{SCENARIO_COLUMN}:N", scale=_legend_scale(_DASH, frame), legend=_legend()
+        f"{SCENARIO_COLUMN}:N",
+        scale=_legend_scale(_DASH, frame),
+        # long stroke symbols, so the dashes show in the legend
+        legend=_legend(symbolType="stroke", symbolSize=900, symbolStrokeWidth=3),
     )
 
 
