@@ -99,7 +99,7 @@ __all__ = ["HOURLY_COLUMNS", "air_handler_hours"]
 _COIL_IDLE_K = 1e-6
 #: Lowest zone humidity ratio kept by the balance [kg/kg].
 _W_FLOOR = 1e-5
-_MAX_PASSES = 4
+_MAX_PASSES = 5
 #: Estimated zone humidity error at which the passes stop [kg/kg].
 _PASS_TOLERANCE = 1e-7
 
@@ -352,6 +352,10 @@ def air_handler_hours(
     w_s = np.minimum(w_o, saturation_humidity_ratio(t_ss, p, check=False))
     w_z = np.minimum(w_s + moisture / m_design, ws_zone)
     change, previous_change, estimated_error = np.inf, np.inf, np.inf
+    # Control decisions (economizer mode, recovery on/off) are taken in the first two
+    # passes and then kept: near a switching point the decision would otherwise flip
+    # between passes (a real controller holds it by its deadband).
+    frozen_mode = frozen_recovery = None
     for pass_number in range(_MAX_PASSES):
         c_s = CP_DRY_AIR + CP_WATER_VAPOR * w_s
         # airflow
@@ -398,17 +402,23 @@ def air_handler_hours(
                 s.economizer_drybulb_limit,
                 s.economizer_enthalpy_limit,
                 heating,
+                frozen_mode,
             )
         # energy recovery (exhaust = return air), at the minimum outdoor air only
         if recovery:
-            at_minimum = x <= x_min + 1e-12
-            t_m0 = _t_from_h(h_r + x * (h_o - h_r), w_z + x * (w_o - w_z))
-            cool_benefit = _h(t_o + eps_s * (t_r - t_o), w_o + eps_l * (w_z - w_o)) < h_o
+            if frozen_recovery is None:
+                at_minimum = x <= x_min + 1e-12
+                t_m0 = _t_from_h(h_r + x * (h_o - h_r), w_z + x * (w_o - w_z))
+                heat_branch = at_minimum & (t_m0 < t_ma) & (t_o < t_r)
+                cool_branch = at_minimum & ~(t_m0 < t_ma)
+                cool_branch &= _h(t_o + eps_s * (t_r - t_o), w_o + eps_l * (w_z - w_o)) < h_o
+            else:
+                heat_branch, cool_branch = frozen_recovery
             f_heat = recovery_fraction_for_mixed_drybulb(
                 t_ma, x, t_o, w_o, t_r, w_z, t_r, w_z, eps_s, eps_l
             )
-            f_heat = np.where(t_o < t_r, np.clip(np.nan_to_num(f_heat, nan=1.0), 0.0, 1.0), 0.0)
-            f = np.where(at_minimum, np.where(t_m0 < t_ma, f_heat, 1.0 * cool_benefit), 0.0)
+            f_heat = np.clip(np.nan_to_num(f_heat, nan=1.0), 0.0, 1.0)
+            f = np.where(heat_branch, f_heat, 1.0 * cool_branch)
             t_o2 = t_o + f * eps_s * (t_r - t_o)
             w_o2 = w_o + f * eps_l * (w_z - w_o)
             h_o2 = _h(t_o2, w_o2)
@@ -447,6 +457,9 @@ def air_handler_hours(
         w_z = w_z_new
         w_e = w_z + alpha * (w_o - w_z)
         w_s = np.where(cooling, np.minimum(np.minimum(w_e, a * w_e + b), ws_cl), w_e)
+        if pass_number == 1:
+            frozen_mode = None if s.all_outdoor_air else mode
+            frozen_recovery = (heat_branch, cool_branch) if recovery else None
         # linear convergence: the error left is about change * (change / previous change)
         estimated_error = change * min(1.0, change / previous_change) if pass_number else change
         if estimated_error < _PASS_TOLERANCE:
@@ -465,10 +478,13 @@ def air_handler_hours(
     t_ph = t_m if preheat_t is None else np.maximum(t_m, preheat_t)
     preheat = m * c_m * (t_ph - t_m)
     t_e = t_ph + fan_heat / (m * c_m) if blow_through else t_ph
-    cooling = t_e > t_cl + _COIL_IDLE_K
-    heat_coil = t_e < t_cl - _COIL_IDLE_K
-    t_leave = np.where(cooling | heat_coil, t_cl, t_e)
-    w_cl = np.where(cooling, w_cl, w_e)
+    # Coil duties as decided in the last pass (the humidity solution belongs to them);
+    # the final dry bulbs differ from that pass by the iteration tolerance only, and the
+    # clamps keep a coil from reversing its duty within that tolerance.
+    heat_coil = ~cooling & (t_e < t_cl - _COIL_IDLE_K)
+    t_leave = np.where(
+        cooling, np.minimum(t_cl, t_e), np.where(heat_coil, np.maximum(t_cl, t_e), t_e)
+    )
     wet = cooling & (w_cl < w_e)
     condensate = m * (w_e - w_cl)
     condensate_heat = condensate * CP_LIQUID_WATER * t_leave

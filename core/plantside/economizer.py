@@ -283,11 +283,36 @@ def economizer_outdoor_air_fraction(
 
 
 def _damper_control(
-    control, integrated, x_min, ts, t_o, w_o, h_o, t_r, w_r, h_r, t_limit, h_limit, heating
+    control,
+    integrated,
+    x_min,
+    ts,
+    t_o,
+    w_o,
+    h_o,
+    t_r,
+    w_r,
+    h_r,
+    t_limit,
+    h_limit,
+    heating,
+    mode=None,
 ):
-    """Core of :func:`economizer_outdoor_air_fraction` on validated arrays with enthalpies."""
+    """Core of :func:`economizer_outdoor_air_fraction` on validated arrays with enthalpies.
+
+    With ``mode`` given (codes decided earlier), the decision is kept and only the damper
+    position is recomputed: modulating hours follow the set point, the others stay at
+    100 % or at the minimum.
+    """
     if control is EconomizerControl.NONE:
         return x_min, np.where(heating, MODE_HEATING, MODE_MINIMUM_OUTDOOR_AIR).astype(np.int8)
+    if mode is not None:
+        x_need = _fraction_for_setpoint(ts, w_o, h_o, w_r, h_r)
+        x_mod = np.clip(np.where(np.isfinite(x_need), x_need, 0.0), x_min, 1.0)
+        fraction = np.where(
+            mode == MODE_FREE_COOLING, x_mod, np.where(mode == MODE_INTEGRATED, 1.0, x_min)
+        )
+        return fraction, mode
     if control is EconomizerControl.FIXED_DRYBULB:
         exceeded = t_o > t_limit
     elif control is EconomizerControl.DIFFERENTIAL_DRYBULB:
@@ -296,11 +321,7 @@ def _damper_control(
         exceeded = (h_o > h_limit) | (t_o > t_limit)
     else:
         exceeded = (h_o > h_r) | (t_o > t_limit)
-    # Exact mass-basis damper position for t_mix = set point (see plantside.mixing).
-    numerator = h_r - LATENT_HEAT_0C * w_r - ts * (CP_DRY_AIR + CP_WATER_VAPOR * w_r)
-    denominator = (LATENT_HEAT_0C + CP_WATER_VAPOR * ts) * (w_o - w_r) - (h_o - h_r)
-    with np.errstate(divide="ignore", invalid="ignore"):
-        x_need = numerator / denominator
+    x_need = _fraction_for_setpoint(ts, w_o, h_o, w_r, h_r)
     cold = t_o <= ts
     # Cold outdoor air: modulate to the set point, never below the minimum.
     x_cold = np.clip(np.where(np.isfinite(x_need), x_need, 0.0), x_min, 1.0)
@@ -314,3 +335,11 @@ def _damper_control(
     )
     mode = np.where(heating, MODE_HEATING, np.where(exceeded, MODE_LOCKED_OUT, mode_open))
     return fraction, mode.astype(np.int8)
+
+
+def _fraction_for_setpoint(ts, w_o, h_o, w_r, h_r):
+    """Exact mass-basis damper position for t_mix = set point (see plantside.mixing)."""
+    numerator = h_r - LATENT_HEAT_0C * w_r - ts * (CP_DRY_AIR + CP_WATER_VAPOR * w_r)
+    denominator = (LATENT_HEAT_0C + CP_WATER_VAPOR * ts) * (w_o - w_r) - (h_o - h_r)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        return numerator / denominator

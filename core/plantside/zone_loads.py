@@ -182,6 +182,8 @@ class HourlyZoneLoads:
         Occupied hours. Defaults to all True.
     source : str
         Where the loads came from ("model" or a file name).
+    notes : tuple of str
+        Notes made while the loads were built (e.g. columns ignored on import).
     """
 
     sensible: np.ndarray
@@ -189,6 +191,7 @@ class HourlyZoneLoads:
     internal_sensible: np.ndarray | None = None
     occupied: np.ndarray | None = None
     source: str = ""
+    notes: tuple = ()
 
     def __post_init__(self):
         sensible = check_range(
