@@ -73,6 +73,8 @@ NEAR_CAPACITY_FRACTION = 0.75
 MAX_AUTO_BATCH = 16
 #: Batches aimed for per worker, so the last ones finish close together.
 BATCHES_PER_WORKER = 4
+#: How long to wait for a Dask scheduler to answer.
+CONNECT_TIMEOUT = "20s"
 
 
 class SweepCaseError(PlantsideError):
@@ -468,7 +470,7 @@ def _dask():
 def _open_client(scheduler: str):
     distributed = _dask()
     try:
-        return distributed.Client(scheduler, timeout="20s")
+        return distributed.Client(scheduler, timeout=CONNECT_TIMEOUT)
     except (OSError, TimeoutError, ValueError) as error:
         raise InputRangeError(
             "scheduler",
@@ -604,12 +606,12 @@ def run_sweep(
             raise InputRangeError(
                 "workers", f"workers = {workers} is outside 1 to 4096", "1 to 4096"
             )
-    folder = _Folder(Path(out), sweep, restart)
+    started = time.perf_counter()
     own_client = client is None and scheduler is not None
     if own_client:
-        client = _open_client(scheduler)
+        client = _open_client(scheduler)  # a clear message before anything is written
     try:
-        started = time.perf_counter()
+        folder = _Folder(Path(out), sweep, restart)
         done_ids = folder.done_ids()
         todo = [case for case in sweep.cases if case.case_id not in done_ids]
         skipped = sweep.size - len(todo)

@@ -1,0 +1,102 @@
+"""A sweep on a real Dask cluster (LocalCluster, loopback only) equals the single-process run.
+
+The reference is the same sweep run in this process (workers=1), itself checked case by
+case against :func:`plantside.study.run_study` in ``tests/test_sweep.py``.
+"""
+
+import sys
+from pathlib import Path
+
+import pandas as pd
+import pytest
+from plantside.errors import InputRangeError
+from plantside.sweep import load_sweep
+from plantside.sweep_run import run_sweep
+
+distributed = pytest.importorskip("dask.distributed", reason="needs the 'cluster' extra")
+
+ROOT = Path(__file__).parents[1]
+CLINIC = ROOT / "example_data" / "scenarios" / "quillon_clinic.toml"
+CLIMATES = ["Salvia Flats", "Korva Plains", "Port Calder"]
+
+
+@pytest.fixture(scope="module")
+def cluster():
+    """Two single-threaded worker processes on 127.0.0.1, no dashboard."""
+    with distributed.LocalCluster(
+        host="127.0.0.1",
+        n_workers=2,
+        threads_per_worker=1,
+        processes=True,
+        dashboard_address=None,
+    ) as local:
+        yield local
+
+
+@pytest.fixture(scope="module")
+def sweep(tmp_path_factory):
+    """3 climates x 4 outdoor-air fractions of the clinic's office unit: 12 cases."""
+    folder = tmp_path_factory.mktemp("sweep")
+    path = folder / "clinic.toml"
+    path.write_text(
+        f'[sweep]\nbase = "{CLINIC.as_posix()}"\nclimates = {CLIMATES!r}\n'.replace("'", '"')
+        + '[sweep.axes]\n"air_handler[2].minimum_outdoor_air_fraction" = [0.1, 0.2, 0.3, 0.4]\n',
+        encoding="utf-8",
+    )
+    return load_sweep(path)
+
+
+def _bundled_cache_calls():
+    """(lookups, loads) of the per-process bundled-climate cache, run on each worker."""
+    from plantside.climates import _load
+
+    info = _load.cache_info()
+    return info.hits + info.misses, info.misses
+
+
+def test_dask_local_cluster_equals_single_process_case_by_case(cluster, sweep, tmp_path):
+    single = run_sweep(sweep, tmp_path / "single", workers=1)
+    with distributed.Client(cluster) as client:
+        before = client.run(_bundled_cache_calls)
+        on_dask = run_sweep(sweep, tmp_path / "dask", client=client, batch_size=2)
+        after = client.run(_bundled_cache_calls)
+    assert on_dask.computed == single.computed == 12
+    assert on_dask.batches == 6
+    assert list(on_dask.table["case_id"]) == list(single.table["case_id"])
+    for (_, a), (_, b) in zip(single.table.iterrows(), on_dask.table.iterrows(), strict=True):
+        pd.testing.assert_series_equal(a, b, check_exact=False, rtol=1e-12, check_names=False)
+    # climates are loaded once per worker, not once per case: each worker read at most the
+    # three climates, and every one of the 12 cases looked its climate up in the cache
+    lookups = sum(after[w][0] - before[w][0] for w in after)
+    loads = [after[w][1] - before[w][1] for w in after]
+    assert lookups == 12
+    assert all(n <= len(CLIMATES) for n in loads)
+
+
+def test_rerun_on_the_cluster_skips_what_the_local_run_finished(cluster, sweep, tmp_path):
+    out = tmp_path / "out"
+    first = run_sweep(sweep, out, workers=1, batch_size=4)  # all 12 cases, here
+    with distributed.Client(cluster) as client:
+        again = run_sweep(sweep, out, client=client)
+    assert (again.computed, again.skipped) == (0, 12)
+    pd.testing.assert_frame_equal(first.table, again.table)
+
+
+def test_scheduler_address_runs_there(cluster, sweep, tmp_path):
+    run = run_sweep(sweep, tmp_path / "by_address", scheduler=cluster.scheduler_address)
+    assert run.computed == 12 and len(run.table) == 12
+
+
+def test_unreachable_scheduler_is_a_clear_error(sweep, tmp_path, monkeypatch):
+    import plantside.sweep_run as sweep_run
+
+    monkeypatch.setattr(sweep_run, "CONNECT_TIMEOUT", "2s")
+    with pytest.raises(InputRangeError, match="cannot reach the Dask scheduler"):
+        run_sweep(sweep, tmp_path / "out", scheduler="tcp://127.0.0.1:9")
+
+
+def test_missing_cluster_extra_is_a_clear_error(sweep, tmp_path, monkeypatch):
+    monkeypatch.setitem(sys.modules, "dask", None)  # as if the extra were not installed
+    with pytest.raises(InputRangeError, match=r"plantside\[cluster\]"):
+        run_sweep(sweep, tmp_path / "out", scheduler="tcp://127.0.0.1:8786")
+    assert not (tmp_path / "out").exists()  # refused before anything is written
