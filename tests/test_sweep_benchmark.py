@@ -1,0 +1,111 @@
+"""Benchmark: sweep throughput on 1 core, 2 local cores and a 2-worker Dask LocalCluster.
+
+Prints cases per second for each and the scaling ratios against the 1-core run measured
+in the same session; asserts only that all three give the same table (speed is reported,
+never asserted).
+
+The default is 100 cases (the clinic example, 3 air handlers, over the 5 bundled climates
+x 20 outdoor-air fractions): about 40 s on a 2-core machine. The issue's target is
+near-linear scaling for sweeps of 1,000+ cases; run the big version by hand with
+
+    PLANTSIDE_SWEEP_BENCH_CASES=1000 python -m pytest tests/test_sweep_benchmark.py -s
+    python tests/test_sweep_benchmark.py --cases 1000          # the same, without pytest
+
+(cases are rounded up to a multiple of 5, one per climate).
+"""
+
+from __future__ import annotations
+
+import math
+import os
+import sys
+import tempfile
+import time
+from pathlib import Path
+
+import pandas as pd
+import pytest
+from plantside.climates import BUNDLED_CLIMATES
+from plantside.sweep import load_sweep
+from plantside.sweep_run import run_sweep
+
+ROOT = Path(__file__).parents[1]
+CLINIC = ROOT / "example_data" / "scenarios" / "quillon_clinic.toml"
+#: Cases in the default benchmark (about 40 s on 2 cores); override with the variable.
+DEFAULT_CASES = 100
+CASES_VARIABLE = "PLANTSIDE_SWEEP_BENCH_CASES"
+
+
+def benchmark_sweep(folder: Path, cases: int):
+    """The clinic over every bundled climate x enough outdoor-air fractions for ``cases``."""
+    per_climate = max(1, math.ceil(cases / len(BUNDLED_CLIMATES)))
+    path = folder / "benchmark.toml"
+    path.write_text(
+        f'[sweep]\nbase = "{CLINIC.as_posix()}"\nclimates = "all"\n[sweep.axes]\n'
+        f'"air_handler[2].minimum_outdoor_air_fraction" = '
+        f"{{ start = 0.05, stop = 0.6, num = {per_climate} }}\n",
+        encoding="utf-8",
+    )
+    return load_sweep(path)
+
+
+def measure(cases: int, folder: Path, report=print) -> dict:
+    """Run the three set-ups on the same sweep; report and return cases/s and the tables."""
+    from dask.distributed import Client, LocalCluster
+
+    sweep = benchmark_sweep(folder, cases)
+    report(f"\nsweep benchmark: {sweep.size} cases ({sweep.title}); {os.cpu_count()} CPUs seen")
+    one = run_sweep(sweep, folder / "one", workers=1)
+    report(f"  1 core (this process):        {one.cases_per_second:7.2f} cases/s")
+    two = run_sweep(sweep, folder / "two", workers=2)
+    report(
+        f"  2 cores (process pool):        {two.cases_per_second:7.2f} cases/s"
+        f"  (x{two.cases_per_second / one.cases_per_second:.2f} of 1 core; pool start included)"
+    )
+    started = time.perf_counter()
+    with (
+        LocalCluster(
+            host="127.0.0.1",
+            n_workers=2,
+            threads_per_worker=1,
+            processes=True,
+            dashboard_address=None,
+        ) as cluster,
+        Client(cluster) as client,
+    ):
+        start_up = time.perf_counter() - started
+        dask = run_sweep(sweep, folder / "dask", client=client)
+    report(
+        f"  Dask LocalCluster, 2 workers:  {dask.cases_per_second:7.2f} cases/s"
+        f"  (x{dask.cases_per_second / one.cases_per_second:.2f} of 1 core; "
+        f"cluster start {start_up:.1f} s not included)"
+    )
+    report(
+        f"  scaling ratio 2 cores / 1 core: {two.cases_per_second / one.cases_per_second:.2f}"
+        f" (linear = 2.00); Dask / 1 core: {dask.cases_per_second / one.cases_per_second:.2f}"
+    )
+    return {"one": one, "two": two, "dask": dask}
+
+
+@pytest.mark.benchmark
+def test_sweep_throughput_1_core_2_cores_and_dask(tmp_path, capsys):
+    pytest.importorskip("dask.distributed", reason="needs the 'cluster' extra")
+    cases = int(os.environ.get(CASES_VARIABLE, DEFAULT_CASES))
+    with capsys.disabled():
+        runs = measure(cases, tmp_path)
+    one, two, dask = runs["one"].table, runs["two"].table, runs["dask"].table
+    assert runs["one"].computed == runs["two"].computed == runs["dask"].computed == len(one)
+    # the same cases, the same numbers, whichever way they ran
+    pd.testing.assert_frame_equal(one, two, check_exact=False, rtol=1e-12)
+    pd.testing.assert_frame_equal(one, dask, check_exact=False, rtol=1e-12)
+
+
+if __name__ == "__main__":
+    import argparse
+
+    parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
+    parser.add_argument("--cases", type=int, default=DEFAULT_CASES)
+    arguments = parser.parse_args()
+    with tempfile.TemporaryDirectory() as scratch:
+        measure(arguments.cases, Path(scratch))
+    sys.exit(0)
