@@ -22,7 +22,6 @@ spans 54 kPa at 5,000 m to 101.325 kPa at sea level; project rule rounded out).
 
 from __future__ import annotations
 
-import csv
 import math
 import re
 import traceback
@@ -229,13 +228,7 @@ _NAMES_PLACE = re.compile(r"\brows?\b|\bcolumns?\b", re.IGNORECASE)
 #: plantside function it was raised in) -> id. While unfixed they are counted, not failed,
 #: here; each has a strict xfail test below that turns red (XPASS) once the fix lands, and
 #: its entry must then be removed from this table.
-KNOWN_DEFECTS = {
-    (KeyError, "choose_columns"): "W1",
-    (NotImplementedError, "show"): "W2",
-    (csv.Error, "read"): "W3",
-    (ValueError, "build"): "W4",  # np.full of a huge hour span: "array is too big"
-    (MemoryError, "build"): "W4",
-}
+KNOWN_DEFECTS: dict[tuple[type, str], str] = {}  # W1-W4 fixed in dbfbede
 
 
 def _known_defect(error: BaseException) -> str | None:
@@ -555,7 +548,7 @@ def test_text_in_a_number_cell_is_reported_at_its_row_and_column(index, data, ju
 
 
 # ---------------------------------------------------------------------------------------
-# defects found by the fuzz (reported in /work/notes/robustness.md; strict xfail until fixed)
+# defects found by the fuzz (W1-W3 in /work/notes/robustness.md), fixed: kept as regressions
 # ---------------------------------------------------------------------------------------
 def _assert_clean_refusal(data: bytes, kwargs: dict, *words: str):
     with pytest.raises(InputFileError) as caught:
@@ -565,30 +558,20 @@ def _assert_clean_refusal(data: bytes, kwargs: dict, *words: str):
         assert word in text, text
 
 
-@pytest.mark.xfail(
-    strict=True, reason="defect: W1 ambiguous humidity column raises KeyError (reported)"
-)
-def test_defect_w1_ambiguous_humidity_column():
+def test_w1_ambiguous_humidity_column_is_reported():
     # Two wet-bulb columns and an RH column: the ambiguity must be reported by row and
     # column ("row 1: columns 'wb_C' and 'wet bulb_C' both look like the wet bulb").
     data = b"drybulb_C,wb_C,wet bulb_C,rh_%\n" + b"20,15,15,50\n" * 24
     _assert_clean_refusal(data, {"altitude": 0.0}, "row 1", "wb_C", "wet bulb_C")
 
 
-@pytest.mark.xfail(
-    strict=True,
-    reason="defect: W2 timestamp outside Python's years raises NotImplementedError (reported)",
-)
-def test_defect_w2_timestamp_outside_python_years():
+def test_w2_timestamp_outside_python_years_is_reported():
     # '-9999' (a missing-value marker) in a timestamp cell must be an unreadable time at row 2.
     rows = b"".join(f"2023-01-01T{h:02d}:00,20,10\n".encode() for h in range(1, 24))
     data = b"timestamp,drybulb_C,dew_point_C\n-9999,20,10\n" + rows
     _assert_clean_refusal(data, {"altitude": 0.0}, "row 2", "timestamp")
 
 
-@pytest.mark.xfail(
-    strict=True, reason="defect: W3 header field over 131072 characters raises csv.Error (reported)"
-)
-def test_defect_w3_huge_header_field():
+def test_w3_huge_header_field_is_reported():
     # Junk without a line break (e.g. a binary file renamed .csv): refused at row 1.
     _assert_clean_refusal(b"a" * 200_000 + b"\n1\n", {"altitude": 0.0}, "row 1")
