@@ -146,11 +146,14 @@ BASE = AirHandlerSettings(
         # (t_o, w_o) just below and just above each high limit; return 24 °C (no plenum)
         ("fixed_drybulb", (23.85, 0.008), (23.95, 0.008)),
         ("differential_drybulb", (23.95, 0.008), (24.05, 0.008)),
-        ("fixed_enthalpy", (20.0, float(_w_for_enthalpy(20.0, 47.2))),
-                           (20.0, float(_w_for_enthalpy(20.0, 47.4)))),
+        (
+            "fixed_enthalpy",
+            (20.0, float(_w_for_enthalpy(20.0, 47.2))),
+            (20.0, float(_w_for_enthalpy(20.0, 47.4))),
+        ),
         ("fixed_enthalpy", (23.85, 0.006), (23.95, 0.006)),
     ],
-)  # fmt: skip
+)
 def test_air_handler_modes_at_each_high_limit(control, below, above):
     for integrated, mode_below in ((True, "integrated"), (False, "locked_out")):
         settings = replace(BASE, economizer=control, economizer_integrated=integrated)

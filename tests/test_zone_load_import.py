@@ -33,7 +33,7 @@ def test_reads_si_file_with_comments_and_optional_columns():
     ]
     text = "# exported by the engineer's load program\n" + _csv(
         "Hour,Sensible [kW],latent_kW,Occupied,internal_sensible_kW,note", [(*r, "x") for r in rows]
-    )  # fmt: skip
+    )
     loads = read_zone_loads_csv(text, name="zone1.csv")
     assert loads.hours == 8760 and loads.source == "zone1.csv"
     np.testing.assert_allclose(loads.sensible, np.round(sensible, 4))

@@ -240,7 +240,7 @@ def design_point(settings: AirHandlerSettings, zone_loads, outdoor, *, occupied=
             f"below the lowest it can produce (apparatus_dew_point_min = "
             f"{settings.apparatus_dew_point_min:g} °C); raise the supply set point, use a coil "
             "with a smaller bypass factor, or lower apparatus_dew_point_min if the cooling "
-            "medium allows",
+            f"medium allows; allowed: at least {settings.apparatus_dew_point_min:g} °C",
             f"at least {settings.apparatus_dew_point_min:g} °C",
         )
     loads_out = {k: float(v) for k, v in values.items() if k.endswith(("_kW", "_kgs"))}

@@ -254,8 +254,13 @@ class AirHandlerSettings:
         )
         supply_high = float(self.zone_cooling_drybulb) - 0.5
         check_range("supply_drybulb", self.supply_drybulb, 4.0, supply_high, "°C")
-        _optional("supply_reset_drybulb", self.supply_reset_drybulb, self.supply_drybulb,
-                  supply_high, "°C")  # fmt: skip
+        _optional(
+            "supply_reset_drybulb",
+            self.supply_reset_drybulb,
+            self.supply_drybulb,
+            supply_high,
+            "°C",
+        )
         check_range("supply_reset_outdoor_low", self.supply_reset_outdoor_low, -40.0, 40.0, "°C")
         check_range(
             "supply_reset_outdoor_high",
@@ -300,7 +305,8 @@ class AirHandlerSettings:
             if self.apparatus_dew_point is None:
                 raise InputRangeError(
                     "apparatus_dew_point",
-                    "coil_model 'apparatus_dew_point' needs apparatus_dew_point [°C]",
+                    "coil_model 'apparatus_dew_point' needs apparatus_dew_point [°C]; "
+                    "allowed 0 to below supply_drybulb °C",
                     "0 to below supply_drybulb °C",
                 )
             check_range(
@@ -315,7 +321,8 @@ class AirHandlerSettings:
             if self.leaving_dew_point is None:
                 raise InputRangeError(
                     "leaving_dew_point",
-                    "coil_model 'leaving_dew_point' needs leaving_dew_point [°C]",
+                    "coil_model 'leaving_dew_point' needs leaving_dew_point [°C]; "
+                    "allowed 0 to supply_drybulb °C",
                     "0 to supply_drybulb °C",
                 )
             check_range(

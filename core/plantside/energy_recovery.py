@@ -196,7 +196,7 @@ def recovery_fraction_for_mixed_drybulb(
     A = _CP_V * x * a * b
     B = x * (a * c1 + _CP_V * b * (t1 - T))
     C = x * c1 * t1 + (1.0 - x) * cr * tr - T * (x * c1 + (1.0 - x) * cr)
-    with np.errstate(divide="ignore", invalid="ignore"):
+    with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
         root = np.sqrt(B * B - 4.0 * A * C)
         # Stable form of the root that tends to -C/B as A -> 0.
         return -2.0 * C / (B + np.copysign(root, B))
