@@ -24,6 +24,14 @@ __all__ = ["design_breakdown_chart"]
 _OTHER_COLOUR = STAGE
 
 
+def _value_text(value: float, kind: str, fmt: str) -> str:
+    """Bar label: signed for a step ("+16", "-8"), plain for a total; never "-0"."""
+    text = format(value, fmt)
+    if float(text.replace(",", "")) == 0.0:
+        return "0"
+    return format(value, "+" + fmt) if kind == "part" else text
+
+
 def _ratio_text(frame: pd.DataFrame) -> list[str]:
     lines = []
     for key in scenarios_in(frame) or [None]:
@@ -63,10 +71,7 @@ def design_breakdown_chart(frame: pd.DataFrame, system=None, title: str | None =
     compare = has_scenarios(frame)
     data = frame.assign(
         label_at=np.maximum(frame["start"], frame["end"]),
-        text=[
-            format(v, "+" + fmt if k == "part" else fmt)
-            for v, k in zip(frame["load"], frame["kind"], strict=True)
-        ],
+        text=[_value_text(v, k, fmt) for v, k in zip(frame["load"], frame["kind"], strict=True)],
     )
     base = alt.Chart()
     y = alt.Y("component:N", sort=order, title=None, axis=alt.Axis(labelLimit=260))

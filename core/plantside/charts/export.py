@@ -89,7 +89,9 @@ def _spec(chart) -> dict:
     if hasattr(chart, "to_dict"):
         return chart.to_dict(validate=False)
     raise InputRangeError(
-        "chart", f"cannot export a {type(chart).__name__}", "an Altair chart or a spec dict"
+        "chart",
+        f"chart: cannot export a {type(chart).__name__}; give an Altair chart or a Vega-Lite dict",
+        "an Altair chart or a Vega-Lite spec dict",
     )
 
 
@@ -177,10 +179,13 @@ def chart_bytes(
     fmt = _check_format(fmt)
     scale = float(scale)
     if not 1.0 <= scale <= 6.0:
-        raise InputRangeError("scale", f"scale = {scale:g}", "1 to 6")
+        raise InputRangeError("scale", f"scale = {scale:g} is outside 1 to 6", "1 to 6")
     spec = stamped_spec(chart, stamp, when=when)
     version = _vegalite_version()
-    options = {"vl_version": version} if version else {}
+    # no external data may be fetched: every chart carries its data inline
+    options = {"allowed_base_urls": []}
+    if version:
+        options["vl_version"] = version
     if fmt == "png":
         return vl_convert.vegalite_to_png(spec, scale=1.0, ppi=72.0 * scale, **options)
     return vl_convert.vegalite_to_svg(spec, **options).encode("utf-8")

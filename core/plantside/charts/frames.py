@@ -38,6 +38,7 @@ from ..units import UnitSystem, from_display, to_display, unit_label
 
 __all__ = [
     "BREAKDOWN_COMPONENTS",
+    "BREAKDOWN_OPTIONAL",
     "MAX_ROWS",
     "MODE_LABELS",
     "STATE_LABELS",
@@ -74,6 +75,15 @@ BREAKDOWN_COMPONENTS = (
     ("Ventilation latent", ("ventilation_latent_kW",), 1.0),
     ("Fan heat", ("fan_heat_kW",), 1.0),
     ("Economizer / recovery", ("economizer_effect_kW", "recovery_effect_kW"), -1.0),
+)
+
+#: Further terms of the air handler's energy balance, drawn as steps only where they are not
+#: zero at the design hour (coil = zone + ventilation + fan heat - economizer - recovery
+#: + reheat - condensate heat + preheat + heating coil; see the air-handler contract).
+BREAKDOWN_OPTIONAL = (
+    ("Reheat", ("reheat_kW",), 1.0),
+    ("Preheat and heating coil", ("preheat_kW", "heating_coil_kW"), 1.0),
+    ("Condensate heat", ("condensate_heat_kW",), -1.0),
 )
 
 #: Words for the economizer modes of :data:`plantside.economizer.ECONOMIZER_MODES`.
@@ -164,11 +174,12 @@ def design_breakdown_frame(loads: Mapping[str, float], system="SI") -> pd.DataFr
         ``zone_latent_kW``, ``ventilation_sensible_kW``,
         ``ventilation_latent_kW``, ``fan_heat_kW``, ``economizer_effect_kW``
         and ``recovery_effect_kW`` (both positive when they reduce the coil
-        load), optional ``reheat_kW``, and ``coil_total_kW``. A missing
-        component counts as 0 kW. Whatever the listed steps do not explain
-        (condensate heat, preheat, heating coil in the model's energy balance)
-        is drawn as an "Other" step, so the waterfall always ends exactly on
-        the model's coil load and never hides a discrepancy.
+        load), and ``coil_total_kW``; where not zero, also the terms of
+        :data:`BREAKDOWN_OPTIONAL` (reheat, preheat and heating coil,
+        condensate heat). A missing component counts as 0 kW. Whatever the
+        steps do not explain is drawn as an "Other" step, so the waterfall
+        always ends exactly on the model's coil load and never hides a
+        discrepancy.
     system : {"SI", "IP"}
         Display unit system.
 
@@ -193,12 +204,14 @@ def design_breakdown_frame(loads: Mapping[str, float], system="SI") -> pd.DataFr
     steps = [
         (label, sign * sum(read(key) for key in keys)) for label, keys, sign in BREAKDOWN_COMPONENTS
     ]
-    reheat = read("reheat_kW")
-    if abs(reheat) > 0.0:
-        steps.append(("Reheat", reheat))
     coil = read("coil_total_kW")
+    tiny = 1e-6 * max(1.0, abs(coil))
+    for label, keys, sign in BREAKDOWN_OPTIONAL:
+        value = sign * sum(read(key) for key in keys)
+        if abs(value) > tiny:
+            steps.append((label, value))
     other = coil - sum(value for _, value in steps)
-    if abs(other) > 1e-6 * max(1.0, abs(coil)):
+    if abs(other) > tiny:
         steps.append(("Other", other))
     rows = []
     running = 0.0

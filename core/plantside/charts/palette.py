@@ -102,6 +102,9 @@ COMPONENT_COLOURS = {
     "Ventilation latent": "#44AA99",  # teal
     "Fan heat": "#DDCC77",  # sand
     "Economizer / recovery": "#88CCEE",  # cyan: a load taken away
+    "Reheat": "#332288",  # indigo
+    "Preheat and heating coil": "#999933",  # olive
+    "Condensate heat": "#DDDDDD",  # pale grey: a small correction
     "Zone load": ZONE,
     "Coil load": COIL,
 }
