@@ -238,8 +238,44 @@ def _ln_pws_with_slope(drybulb):
     return np.where(on_ice, ice, water), np.where(on_ice, ice_slope, water_slope)
 
 
+# Eqs. 5 and 6 in one layout, ln pws = k0/T + k1 + k2 T + k3 T^2 + k4 T^3 + k5 T^4 + k6 ln T,
+# followed by 2 k3, 3 k4 and 4 k5 for the slope.
+_ICE_FORM = (_C1, _C2, _C3, _C4, _C5, _C6, _C7, 2 * _C4, 3 * _C5, 4 * _C6)
+_WATER_FORM = (_C8, _C9, _C10, _C11, _C12, 0.0, _C13, 2 * _C11, 3 * _C12, 0.0)
+
+
+def _form_coefficients(on_ice):
+    """Per-element coefficients of Eq. 5 (where ``on_ice``) or Eq. 6: scalars when every
+    element is on the same form. Chosen once, they let a Newton iteration evaluate a
+    single form per element instead of both forms and a selection."""
+    if not np.any(on_ice):
+        return _WATER_FORM
+    if np.all(on_ice):
+        return _ICE_FORM
+    return tuple(np.where(on_ice, i, w) for i, w in zip(_ICE_FORM, _WATER_FORM, strict=True))
+
+
+def _ln_pws_with_slope_on_form(drybulb, k):
+    """ln pws [ln Pa] and its slope [1/K] on the forms ``k`` of :func:`_form_coefficients`
+    (each form extrapolated past the triple point where an iterate strays there)."""
+    kelvin = drybulb + ZERO_CELSIUS
+    inverse = 1.0 / kelvin
+    value = (
+        k[0] * inverse
+        + k[1]
+        + kelvin * (k[2] + kelvin * (k[3] + kelvin * (k[4] + kelvin * k[5])))
+        + k[6] * np.log(kelvin)
+    )
+    slope = (
+        inverse * (k[6] - k[0] * inverse) + k[2] + kelvin * (k[7] + kelvin * (k[8] + kelvin * k[9]))
+    )
+    return value, slope
+
+
 #: Saturation pressure at 0 °C [Pa] as :func:`saturation_vapor_pressure` gives it (ice form).
 _PWS_0C = float(np.exp(_ln_pws_ice(ZERO_CELSIUS)))
+#: Saturation pressure at the triple point [Pa] (ice form, equal to the water form to 6e-9).
+_PWS_TRIPLE = float(np.exp(_ln_pws_ice(ZERO_CELSIUS + TRIPLE_POINT_C)))
 
 
 def saturation_vapor_pressure_over_ice(drybulb, *, check=True):
@@ -598,12 +634,18 @@ def dew_point_from_vapor_pressure(vapor_pressure, *, check=True):
     td = np.array(_dew_point_first_guess(pw), dtype=float)
     flat_td = td.reshape(-1)
     flat_target = np.log(np.clip(pw, 1e-300, None)).reshape(-1)
+    # pws is increasing, so the form of the answer is known from pw: ice (Eq. 5) at or
+    # below the triple-point pressure, water (Eq. 6) above.
+    form = _form_coefficients(np.reshape(pw <= _PWS_TRIPLE, -1))
     # Whole-array steps while most elements still move, then an active set.
     active = None
     for _ in range(40):
         x = flat_td if active is None else flat_td[active]
         target = flat_target if active is None else flat_target[active]
-        ln_pws, slope = _ln_pws_with_slope(x)
+        if active is None:
+            ln_pws, slope = _ln_pws_with_slope_on_form(x, form)
+        else:
+            ln_pws, slope = _ln_pws_with_slope(x)  # same root, no coefficients to gather
         step = (ln_pws - target) / slope
         x_new = np.clip(x - step, DRYBULB_MIN_C, DRYBULB_MAX_C)
         # ln pws is increasing and concave with |f''/(2 f')| = about 1/T < 0.006 /K, so
@@ -731,8 +773,8 @@ def _wet_bulb_first_guess(t, w, p):
 
     The dew point comes from the closed form of Eqs. 39/40 and the slope of ln pws from
     Clausius-Clapeyron (L/(Rv T^2), L over ice below 0 °C). Ws* is convex, so the
-    tangent under-estimates it and the guess lies at or above the root, where Newton
-    descends monotonically; the guess only saves iterations, it is never the answer.
+    tangent under-estimates it and the guess mostly lies at or above the root, where
+    Newton descends monotonically; the guess only saves iterations, never the answer.
     """
     pw = p * w / (MOLAR_MASS_RATIO + w)
     td = _dew_point_first_guess(pw)
@@ -747,8 +789,8 @@ def _wet_bulb_first_guess(t, w, p):
 def wet_bulb_from_humidity_ratio(drybulb, humidity_ratio, pressure, *, check=True):
     """Thermodynamic wet bulb from dry bulb and humidity ratio.
 
-    Solves Eq. 33/35 of [1] for the wet bulb by safeguarded Newton iteration on whole
-    arrays, bracketed between -100 °C and the dry bulb (and below the temperature at
+    Solves Eq. 33/35 of [1] for the wet bulb by Newton iteration on whole arrays,
+    clipped to a bracket between -100 °C and the dry bulb (and below the temperature at
     which the saturation pressure reaches 0.9 of the total pressure, where W would
     exceed 1 kg/kg). In the narrow band (about 0.3 K) just above 0 °C where both the
     water form (Eq. 33) and the ice form (Eq. 35) have a root, the root over water is
@@ -796,48 +838,61 @@ def wet_bulb_from_humidity_ratio(drybulb, humidity_ratio, pressure, *, check=Tru
     # the wet bulb over water (Eq. 33) whenever it exists, the ice form otherwise.
     # Eq. 33 at twb = 0: W = (2501 Ws*(0) - 1.006 t) / (2501 + 1.86 t).
     ws_0c = MOLAR_MASS_RATIO * _PWS_0C / (p - _PWS_0C)
-    water_root = (LATENT_HEAT_0C * ws_0c - CP_DRY_AIR * t) / (
-        LATENT_HEAT_0C + CP_WATER_VAPOR * t
-    ) <= w
-    above_freezing = t >= 0
-    lo = np.where(water_root & above_freezing, np.maximum(lo, 0.0), lo)
-    hi = np.where(~water_root & above_freezing, np.minimum(hi, -1e-9), hi)
+    water = (t >= 0) & (
+        (LATENT_HEAT_0C * ws_0c - CP_DRY_AIR * t) / (LATENT_HEAT_0C + CP_WATER_VAPOR * t) <= w
+    )
+    lo = np.where(water, 0.0, lo)
+    hi = np.where(~water & (t >= 0), np.minimum(hi, -1e-9), hi)
     lo = np.minimum(lo, hi)
-    # W(twb) is increasing and convex on each branch, so Newton started at or above the
-    # root descends monotonically onto it. It is safeguarded by bisection and run on
-    # the elements not yet converged only (an active set), so the few elements near
-    # the ice/water switch at 0 °C do not slow the whole array.
-    x = np.clip(_wet_bulb_first_guess(t, w, p), lo, hi)
-    # While most elements are still moving the whole array is iterated (indexing a
-    # nearly full active set costs more than the extra Newton steps on converged
-    # elements, which leave them where they are); then only the elements left.
+    # Each element stays on one form of the psychrometer equation: Eq. 33 (water,
+    # a = 2501, b = 2.326, c = 4.186) or Eq. 35 (ice, a = 2830, b = 0.24, c = 2.1).
+    # Multiplied through by its (positive) denominator, W(t*) = W reads
+    #   F(t*) = (a - b t*) Ws*(t*) + (1.006 + c W) t* - 1.006 t - W (a + 1.86 t) = 0.
+    a = np.where(water, LATENT_HEAT_0C, 2830.0)
+    b = np.where(water, CP_LIQUID_WATER - CP_WATER_VAPOR, 0.24)
+    linear = CP_DRY_AIR + np.where(water, CP_LIQUID_WATER, 2.1) * w
+    constant = -CP_DRY_AIR * t - w * (a + CP_WATER_VAPOR * t)
+    # The saturation form (Eq. 5 or 6) at the root is known too: ice if the root is at
+    # or below the triple point, that is if F(0.01 °C) >= 0 (pws there is _PWS_TRIPLE).
+    ws_triple = MOLAR_MASS_RATIO * _PWS_TRIPLE / (p - _PWS_TRIPLE)
+    f_triple = (a - b * TRIPLE_POINT_C) * ws_triple + linear * TRIPLE_POINT_C + constant
+    form = _form_coefficients(~water | (f_triple >= 0.0))
+    # On one form F is smooth, increasing and convex in t* (Ws* is convex; a - b t* > 0),
+    # so Newton from above the root descends monotonically onto it, and a step from
+    # below lands above it: clipped to the bracket [lo, hi], which holds the root, the
+    # plain Newton iteration converges without a bisection safeguard. (A root below
+    # -100 °C, very cold and dry air, converges onto lo = -100 °C.) Once most elements
+    # are done, the rest are iterated alone (an active set).
+    x = _wet_bulb_first_guess(t, w, p)
+    x = np.minimum(np.maximum(x, lo), hi)
+    rows = (lo, hi, p, a, b, linear, constant)
     active = None
     for _ in range(100):
-        whole = active is None
-        if whole:
-            ta, wa, pa, xa, lo_a, hi_a = t, w, p, x, lo, hi
+        if active is None:
+            xa, (lo_a, hi_a, pa, aa, ba, linear_a, constant_a), form_a = x, rows, form
         else:
-            ta, wa, pa, xa = t[active], w[active], p[active], x[active]
-            lo_a, hi_a = lo[active], hi[active]
-        f, slope = _humidity_ratio_from_wet_bulb(ta, xa, pa, with_slope=True)
-        f = f - wa
-        lo_a = np.where(f < 0, xa, lo_a)
-        hi_a = np.where(f >= 0, xa, hi_a)
-        with np.errstate(divide="ignore", invalid="ignore"):
-            newton = xa - f / slope
-        inside = np.isfinite(newton) & (newton >= lo_a) & (newton <= hi_a)
-        x_new = np.where(inside, newton, 0.5 * (lo_a + hi_a))
-        # Newton converges quadratically: |W''/(2 W')| stays below 0.11 /K from -100 to
+            xa = x[active]
+            lo_a, hi_a, pa, aa, ba, linear_a, constant_a = (row[active] for row in rows)
+            form_a = tuple(k[active] if np.ndim(k) else k for k in form)
+        ln_pws, dln_pws = _ln_pws_with_slope_on_form(xa, form_a)
+        pws = np.exp(ln_pws)
+        dry = pa - pws  # above 0.1 p inside the bracket
+        ws_star = MOLAR_MASS_RATIO * pws / dry
+        lever = aa - ba * xa
+        f = lever * ws_star + linear_a * xa + constant_a
+        slope = lever * ws_star * dln_pws * pa / dry - ba * ws_star + linear_a  # > 1
+        x_new = np.minimum(np.maximum(xa - f / slope, lo_a), hi_a)
+        # Newton converges quadratically: |F''/(2 F')| stays below 0.11 /K from -100 to
         # 200 °C and 30 to 120 kPa (about 0.03 /K at room conditions), so after a
         # Newton step under 1e-3 K the error left is below 1.1e-7 K: the element is done.
-        done = (inside & (np.abs(x_new - xa) < 1e-3)) | (hi_a - lo_a < 1e-7)
-        if whole:
-            lo, hi, x = lo_a, hi_a, x_new
-            left = np.flatnonzero(~done)
+        moving = np.abs(x_new - xa) >= 1e-3
+        if active is None:
+            x = x_new
+            left = np.flatnonzero(moving)
             active = None if left.size > x.size // 2 else left
         else:
-            lo[active], hi[active], x[active] = lo_a, hi_a, x_new
-            active = active[~done]
+            x[active] = x_new
+            active = active[moving]
         if active is not None and active.size == 0:
             break
     return _out(x.reshape(shape))
