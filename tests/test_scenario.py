@@ -151,3 +151,9 @@ def test_with_air_handler_changes_one_setting_only():
     assert changed.air_handlers[1].settings.supply_drybulb == 14.0
     assert changed.air_handlers[0] == scenario.air_handlers[0]
     assert changed.air_handlers[2] == scenario.air_handlers[2]
+
+
+def test_packaged_example_scenario_is_the_repository_example():
+    # The dashboard opens the copy shipped as package data; it must be the documented example.
+    packaged = Path(__file__).parents[1] / "core" / "plantside" / "data" / "example_scenario.toml"
+    assert packaged.read_bytes() == CLINIC.read_bytes()

@@ -108,6 +108,8 @@ def check_range(
     if np.any(bad):
         lo = "-inf" if low is None else f"{low:g}"
         hi = "+inf" if high is None else f"{high:g}"
+        lo = lo if low_inclusive or low is None else f"above {lo}"
+        hi = hi if high_inclusive or high is None else f"below {hi}"
         allowed = f"{lo} to {hi} {unit}".strip()
         if arr.ndim == 0:
             message = f"{field} = {float(arr):g} {unit} is outside the allowed range {allowed}"
