@@ -594,13 +594,12 @@ def _dew_point_first_guess(vapor_pressure):
     ASHRAE Handbook Fundamentals 2017, Ch. 1, Eq. 39 (dew point 0 to 93 °C) and Eq. 40
     (below 0 °C), with alpha = ln pw, pw in kPa.
     """
-    pw_kpa = np.clip(vapor_pressure, 1e-9, None) / 1000.0
-    alpha = np.log(pw_kpa)
+    alpha = np.log(np.maximum(vapor_pressure, 1e-6) * 1e-3)
     above_freezing = 6.54 + alpha * (14.526 + alpha * (0.7389 + alpha * 0.09486))
-    above_freezing = above_freezing + 0.4569 * pw_kpa**0.1984
+    above_freezing = above_freezing + 0.4569 * np.exp(0.1984 * alpha)  # pw^0.1984
     below_freezing = 6.09 + alpha * (12.608 + alpha * 0.4959)
     guess = np.where(above_freezing >= 0.0, above_freezing, below_freezing)
-    return np.clip(guess, DRYBULB_MIN_C, DRYBULB_MAX_C)
+    return np.minimum(np.maximum(guess, DRYBULB_MIN_C), DRYBULB_MAX_C)
 
 
 def dew_point_from_vapor_pressure(vapor_pressure, *, check=True):
@@ -816,14 +815,13 @@ def wet_bulb_from_humidity_ratio(drybulb, humidity_ratio, pressure, *, check=Tru
     ASHRAE Handbook Fundamentals 2017, Ch. 1, Eqs. 33 and 35; first guess from Eqs. 39
     and 40.
     """
-    t, w, p = np.broadcast_arrays(
-        _as_float(drybulb), _as_float(humidity_ratio), _as_float(pressure)
-    )
-    shape = t.shape
+    t, w, p = _as_float(drybulb), _as_float(humidity_ratio), _as_float(pressure)
     if check:
         _check_drybulb("drybulb", t)
         _check_pressure(p)
         _check_humidity_ratio(t, w, p)
+    t, w, p = np.broadcast_arrays(t, w, p)
+    shape = t.shape
     t, w, p = (np.array(a, dtype=float).ravel() for a in (t, w, p))
     lo = np.full_like(t, DRYBULB_MIN_C)
     hi = t.copy()
