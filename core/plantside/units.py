@@ -56,6 +56,7 @@ __all__ = [
     "psia_from_pa",
     "to_display",
     "tons_from_kw",
+    "unit_label",
 ]
 
 
