@@ -276,6 +276,11 @@ def _ln_pws_with_slope_on_form(drybulb, k):
 _PWS_0C = float(np.exp(_ln_pws_ice(ZERO_CELSIUS)))
 #: Saturation pressure at the triple point [Pa] (ice form, equal to the water form to 6e-9).
 _PWS_TRIPLE = float(np.exp(_ln_pws_ice(ZERO_CELSIUS + TRIPLE_POINT_C)))
+#: Saturation pressures at the ends of the formulation's range [Pa], widened by 1e-9 so
+#: that a vapour pressure computed from a humidity ratio at exactly -100 or 200 °C
+#: survives its rounding.
+_PWS_LOWEST = float(np.exp(_ln_pws_ice(ZERO_CELSIUS + DRYBULB_MIN_C))) * (1 - 1e-9)
+_PWS_HIGHEST = float(np.exp(_ln_pws_water(ZERO_CELSIUS + DRYBULB_MAX_C))) * (1 + 1e-9)
 
 
 def saturation_vapor_pressure_over_ice(drybulb, *, check=True):
@@ -625,11 +630,7 @@ def dew_point_from_vapor_pressure(vapor_pressure, *, check=True):
     """
     pw = _as_float(vapor_pressure)
     if check:
-        # The formulation's range, widened by 1e-9 so that a vapour pressure computed
-        # from a humidity ratio at exactly -100 or 200 °C survives its rounding.
-        low = float(np.exp(_ln_pws(np.asarray(DRYBULB_MIN_C)))) * (1 - 1e-9)
-        high = float(np.exp(_ln_pws(np.asarray(DRYBULB_MAX_C)))) * (1 + 1e-9)
-        check_range("vapor_pressure", pw, low, high, "Pa")
+        check_range("vapor_pressure", pw, _PWS_LOWEST, _PWS_HIGHEST, "Pa")
     td = np.array(_dew_point_first_guess(pw), dtype=float)
     flat_td = td.reshape(-1)
     flat_target = np.log(np.clip(pw, 1e-300, None)).reshape(-1)
