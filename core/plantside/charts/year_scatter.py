@@ -23,36 +23,63 @@ from .palette import INK_SOFT, WIDTH, chart_builder, concatenated, layered, mode
 __all__ = ["year_scatter_chart"]
 
 
-def _domain(frame: pd.DataFrame) -> list[float]:
-    values = np.concatenate(
-        [frame[c].to_numpy(dtype=float) for c in ("zone_low", "zone_high", "coil_low", "coil_high")]
-    )
-    if values.size == 0:
-        return [0.0, 1.0]
-    return [float(min(0.0, values.min())), float(max(values.max(), 1e-9))]
+def _domains(frame: pd.DataFrame) -> tuple[list[float], list[float]]:
+    """Axis extents: each axis from 0 (or below, for heating hours) to its own largest cell."""
+
+    def extent(low: str, high: str) -> list[float]:
+        if not len(frame):
+            return [0.0, 1.0]
+        lo = float(min(0.0, frame[low].min()))
+        hi = float(max(frame[high].max(), lo + 1e-9))
+        return [lo, hi]
+
+    return extent("zone_low", "zone_high"), extent("coil_low", "coil_high")
 
 
-def _panel(scenario, system, domain, modes, colours, size_max, fmt, width, height):
+def _ticks(domain: list[float]) -> list[float]:
+    """Round tick values (multiples of a 1-2-5 step, zero included) inside an extent."""
+    raw = (domain[1] - domain[0]) / 8
+    power = 10 ** np.floor(np.log10(max(raw, 1e-9)))
+    step = next(f * power for f in (1, 2, 5, 10) if raw <= f * power)
+    first = np.ceil(domain[0] / step) * step
+    return [float(v) for v in np.arange(first, domain[1] + 1e-9, step)]
+
+
+def _panel(scenario, system, domains, modes, colours, size_max, fmt, width, height):
     power = axis_title("Zone load", "power", system)
     coil_title = axis_title("Coil total load", "power", system)
-    diagonal = alt.Chart(
-        alt.Data(values=[{"x": domain[0], "y": domain[0]}, {"x": domain[1], "y": domain[1]}])
-    ).mark_line(color=INK_SOFT, strokeDash=[6, 4], strokeWidth=1.5)
+    x_domain, y_domain = domains
+    # the coil = zone diagonal across the part of the plot where both axes overlap
+    low = max(x_domain[0], y_domain[0])
+    high = min(x_domain[1], y_domain[1])
+    diagonal = alt.Chart(alt.Data(values=[{"x": low, "y": low}, {"x": high, "y": high}])).mark_line(
+        color=INK_SOFT, strokeDash=[6, 4], strokeWidth=1.5
+    )
     diagonal = diagonal.encode(
-        x=alt.X("x:Q", scale=alt.Scale(domain=domain, nice=False)),
-        y=alt.Y("y:Q", scale=alt.Scale(domain=domain, nice=False)),
+        x=alt.X("x:Q", scale=alt.Scale(domain=x_domain, nice=False)),
+        y=alt.Y("y:Q", scale=alt.Scale(domain=y_domain, nice=False)),
     )
     diagonal_label = (
-        alt.Chart(alt.Data(values=[{"x": domain[1], "y": domain[1], "t": "coil = zone"}]))
-        .mark_text(align="right", baseline="bottom", dx=-4, dy=-4, color=INK_SOFT, fontSize=14)
+        alt.Chart(alt.Data(values=[{"x": high, "y": high, "t": "coil = zone"}]))
+        .mark_text(align="right", baseline="top", dx=-4, dy=6, color=INK_SOFT, fontSize=14)
         .encode(x=alt.X("x:Q"), y=alt.Y("y:Q"), text=alt.Text("t:N"))
     )
     points = alt.Chart(alt.NamedData(name="year"))
     if scenario is not None:
         points = points.transform_filter(alt.datum[SCENARIO_COLUMN] == scenario)
     points = points.mark_circle(opacity=0.78, stroke="white", strokeWidth=0.6).encode(
-        x=alt.X("zone_load:Q", title=power, scale=alt.Scale(domain=domain, nice=False)),
-        y=alt.Y("coil_load:Q", title=coil_title, scale=alt.Scale(domain=domain, nice=False)),
+        x=alt.X(
+            "zone_load:Q",
+            title=power,
+            scale=alt.Scale(domain=x_domain, nice=False),
+            axis=alt.Axis(values=_ticks(x_domain)),
+        ),
+        y=alt.Y(
+            "coil_load:Q",
+            title=coil_title,
+            scale=alt.Scale(domain=y_domain, nice=False),
+            axis=alt.Axis(values=_ticks(y_domain)),
+        ),
         size=alt.Size(
             "hours:Q",
             title="Hours in cell",
@@ -126,9 +153,9 @@ def year_scatter_chart(frame: pd.DataFrame, system=None, title: str | None = Non
     present = set(frame["mode"]) if len(frame) else set()
     modes = [m for m in ECONOMIZER_MODES if m in present] + sorted(present - set(ECONOMIZER_MODES))
     colours = mode_colours(modes)
-    domain = _domain(frame)
+    domains = _domains(frame)
     size_max = int(frame["hours"].max()) if len(frame) else 1
-    fmt = value_format(domain)
+    fmt = value_format(domains[0] + domains[1])
     keys = scenarios_in(frame)
     side = WIDTH if not keys else int(WIDTH * 0.62)
     subtitle = []
@@ -142,10 +169,10 @@ def year_scatter_chart(frame: pd.DataFrame, system=None, title: str | None = Non
     if off:
         subtitle.append(f"Not shown: hours with the fan off ({off})")
     if not keys:
-        chart = _panel(None, system, domain, modes, colours, size_max, fmt, side, side * 0.6)
+        chart = _panel(None, system, domains, modes, colours, size_max, fmt, side, side * 0.6)
     else:
         panels = [
-            _panel(key, system, domain, modes, colours, size_max, fmt, side, side * 0.8)
+            _panel(key, system, domains, modes, colours, size_max, fmt, side, side * 0.8)
             for key in keys
         ]
         chart = concatenated(
