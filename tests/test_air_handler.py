@@ -523,12 +523,12 @@ def test_heating_design_point():
         ("minimum_outdoor_air_fraction", {"minimum_outdoor_air_fraction": 1.2}, "0 to 1"),
         ("minimum_outdoor_airflow", {"minimum_outdoor_airflow": 6.0}, "0 to 5"),
         ("supply_drybulb", {"supply_drybulb": 25.0}, "4 to 23.5"),
-        ("bypass_factor", {"bypass_factor": 1.2}, "0 to 1"),
-        ("bypass_factor", {"bypass_factor": -0.1}, "0 to 1"),
+        ("bypass_factor", {"bypass_factor": 1.2}, "0 to below 1"),
+        ("bypass_factor", {"bypass_factor": -0.1}, "0 to below 1"),
         (
             "apparatus_dew_point",
             {"coil_model": "apparatus_dew_point", "apparatus_dew_point": 14.0},
-            "to 13",
+            "to below 13",
         ),
         (
             "leaving_dew_point",

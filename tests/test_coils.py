@@ -145,7 +145,7 @@ def test_bypass_factor_out_of_range(bad):
     with pytest.raises(InputRangeError) as info:
         cooling_coil_leaving_humidity_ratio(27.0, 0.011, 12.0, P, bypass_factor=bad)
     assert info.value.field == "bypass_factor"
-    assert "0 to 1" in str(info.value)
+    assert "0 to below 1" in str(info.value)
 
 
 def test_impossible_apparatus_dew_point_and_leaving_dew_point():

@@ -90,7 +90,7 @@ from .constants import STANDARD_AIR_DENSITY as _RHO_STD
 from .economizer import MODE_ALL_OUTDOOR_AIR, MODE_HEATING, MODE_OFF, _damper_control
 from .energy_recovery import recovery_fraction_for_mixed_drybulb
 from .errors import InputRangeError, check_range
-from .moist_air import saturation_humidity_ratio, saturation_vapor_pressure
+from .moist_air import _ln_pws_water, saturation_humidity_ratio, saturation_vapor_pressure
 from .zone_loads import HourlyZoneLoads
 
 __all__ = ["HOURLY_COLUMNS", "air_handler_hours"]
@@ -318,7 +318,11 @@ def air_handler_hours(
     reheat_mode = s.low_load_response == "reheat"
     blow_through = s.fan_position == "blow_through"
     has_fan = s.supply_fan_power > 0.0
-    ws_zone = saturation_humidity_ratio(t_z, p, check=False)
+    # saturation at the two zone set points (Eq. 23 of ASHRAE Handbook Fundamentals Ch. 1)
+    pws_cool = float(saturation_vapor_pressure(t_cool, check=False))
+    pws_heat = float(saturation_vapor_pressure(t_heat, check=False))
+    pws_zone = np.where(heating, pws_heat, pws_cool)
+    ws_zone = MOLAR_MASS_RATIO * pws_zone / (p - pws_zone)
     h_o = _h(t_o, w_o)
 
     # --- outdoor air ---------------------------------------------------------------------
@@ -349,7 +353,8 @@ def air_handler_hours(
 
     # Initial humidity guess: supply near saturation at the supply set point (or the
     # outdoor humidity if drier), plus the zone moisture pickup at design airflow.
-    w_s = np.minimum(w_o, saturation_humidity_ratio(t_ss, p, check=False))
+    pws_supply = float(saturation_vapor_pressure(s.supply_drybulb, check=False))
+    w_s = np.minimum(w_o, MOLAR_MASS_RATIO * pws_supply / (p - pws_supply))
     w_z = np.minimum(w_s + moisture / m_design, ws_zone)
     change, previous_change, estimated_error = np.inf, np.inf, np.inf
     # Control decisions (economizer mode, recovery on/off) are taken in the first two
@@ -360,7 +365,7 @@ def air_handler_hours(
         c_s = CP_DRY_AIR + CP_WATER_VAPOR * w_s
         # airflow
         if s.variable_volume:
-            m = np.clip(load_per_kelvin / c_s, m_low, m_design)
+            m = np.minimum(np.maximum(load_per_kelvin / c_s, m_low), m_design)
         else:
             m = m_design * np.ones_like(c_s)
         mc_s = m * c_s
@@ -417,7 +422,7 @@ def air_handler_hours(
             f_heat = recovery_fraction_for_mixed_drybulb(
                 t_ma, x, t_o, w_o, t_r, w_z, t_r, w_z, eps_s, eps_l
             )
-            f_heat = np.clip(np.nan_to_num(f_heat, nan=1.0), 0.0, 1.0)
+            f_heat = np.where(np.isnan(f_heat), 1.0, np.fmin(np.fmax(f_heat, 0.0), 1.0))
             f = np.where(heat_branch, f_heat, 1.0 * cool_branch)
             t_o2 = t_o + f * eps_s * (t_r - t_o)
             w_o2 = w_o + f * eps_l * (w_z - w_o)
@@ -437,7 +442,7 @@ def air_handler_hours(
         if coil_model == "bypass_factor":
             t_adp = (t_cl - bf_setting * t_e) / (1.0 - bf_setting)
             a = bf = bf_setting
-            w_adp = saturation_humidity_ratio(np.clip(t_adp, -100.0, 100.0), p, check=False)
+            w_adp = _saturation_humidity_ratio(t_adp, p)
         elif coil_model == "apparatus_dew_point":
             t_adp, w_adp = t_adp_fixed, w_adp_fixed
             with np.errstate(divide="ignore", invalid="ignore"):
@@ -445,14 +450,15 @@ def air_handler_hours(
         else:
             t_adp, a, w_adp, bf = t_adp_fixed, 0.0, w_adp_fixed, np.nan
         b = (1.0 - a) * w_adp
-        ws_cl = saturation_humidity_ratio(t_cl, p, check=False)
+        if pass_number <= 1:  # t_cl moves by the iteration tolerance only after that
+            ws_cl = _saturation_humidity_ratio(t_cl, p)
         mu = moisture / m
         # closed-form zone humidity: smallest of the branch solutions (module notes)
         with np.errstate(divide="ignore", invalid="ignore"):
-            z_dry = np.where(alpha > 0.0, w_o + mu / alpha, np.sign(mu) * np.inf)
+            z_dry = w_o + mu / alpha  # +-inf (no steady state) or NaN (any) when alpha = 0
             z_wet = (a * alpha * w_o + b + mu) / (1.0 - a * (1.0 - alpha))
         z = np.where(cooling, np.minimum(np.minimum(z_dry, z_wet), ws_cl + mu), z_dry)
-        w_z_new = np.clip(np.where(np.isnan(z), w_z, z), _W_FLOOR, ws_zone)
+        w_z_new = np.minimum(np.maximum(np.where(np.isnan(z), w_z, z), _W_FLOOR), ws_zone)
         previous_change, change = change, float(np.max(np.abs(w_z_new - w_z)))
         w_z = w_z_new
         w_e = w_z + alpha * (w_o - w_z)
@@ -539,7 +545,7 @@ def air_handler_hours(
         "zone_drybulb_C": t_z,
         "zone_humidity_ratio_kgkg": w_z,
         "zone_enthalpy_kJkg": _h(t_z, w_z),
-        "zone_relative_humidity": _relative_humidity(t_z, w_z, p, heating, t_cool, t_heat),
+        "zone_relative_humidity": np.minimum(p * w_z / ((MOLAR_MASS_RATIO + w_z) * pws_zone), 1.0),
         "return_drybulb_C": t_r,
         "return_humidity_ratio_kgkg": w_z,
         "return_enthalpy_kJkg": h_r,
@@ -601,13 +607,12 @@ def air_handler_hours(
     return out
 
 
-def _relative_humidity(t, w, p, heating, t_cool, t_heat):
-    """Relative humidity [-] at the zone set points (Eqs. 20, 24 of ASHRAE Handbook
-    Fundamentals 2017 Ch. 1); the saturation pressure is evaluated at the two set points."""
-    pws = np.where(
-        heating,
-        saturation_vapor_pressure(t_heat, check=False),
-        saturation_vapor_pressure(t_cool, check=False),
-    )
-    pw = p * w / (MOLAR_MASS_RATIO + w)
-    return np.minimum(pw / pws, 1.0)
+def _saturation_humidity_ratio(t, p):
+    """Saturation humidity ratio [kg/kg], Eqs. 6 and 23 of ASHRAE Handbook Fundamentals
+    2017 Ch. 1, evaluated directly over water when every temperature is above the triple
+    point (coil temperatures), else by :func:`plantside.moist_air.saturation_humidity_ratio`."""
+    t = np.asarray(t, dtype=float)
+    if np.all(t > 0.01) and np.all(t < 100.0):
+        pws = np.exp(_ln_pws_water(t + ZERO_CELSIUS))
+        return MOLAR_MASS_RATIO * pws / (p - pws)
+    return saturation_humidity_ratio(np.clip(t, -100.0, 100.0), p, check=False)

@@ -308,7 +308,7 @@ def _damper_control(
         return x_min, np.where(heating, MODE_HEATING, MODE_MINIMUM_OUTDOOR_AIR).astype(np.int8)
     if mode is not None:
         x_need = _fraction_for_setpoint(ts, w_o, h_o, w_r, h_r)
-        x_mod = np.clip(np.where(np.isfinite(x_need), x_need, 0.0), x_min, 1.0)
+        x_mod = np.fmin(np.fmax(x_need, x_min), 1.0)  # fmax: NaN (no solution) -> minimum
         fraction = np.where(
             mode == MODE_FREE_COOLING, x_mod, np.where(mode == MODE_INTEGRATED, 1.0, x_min)
         )
@@ -324,7 +324,7 @@ def _damper_control(
     x_need = _fraction_for_setpoint(ts, w_o, h_o, w_r, h_r)
     cold = t_o <= ts
     # Cold outdoor air: modulate to the set point, never below the minimum.
-    x_cold = np.clip(np.where(np.isfinite(x_need), x_need, 0.0), x_min, 1.0)
+    x_cold = np.fmin(np.fmax(x_need, x_min), 1.0)  # fmax: NaN (no solution) -> minimum
     modulating = cold & (x_cold > x_min)
     closed = exceeded | heating
     fraction = np.where(closed, x_min, np.where(cold, x_cold, 1.0 if integrated else x_min))
