@@ -14,6 +14,9 @@ import numpy as np
 import pandas as pd
 import psychrolib
 import pytest
+from hypothesis import given, settings
+from hypothesis import strategies as st
+from hypothesis.extra import numpy as hnp
 from plantside.air_handler import (
     AirHandlerSettings,
     design_point,
@@ -372,3 +375,47 @@ def test_frames_name_their_unit_system():
     with pytest.raises(InputRangeError, match="unit system"):
         frames.frame_system(frame)
     assert frames.axis_title("Coil total load", "power", "IP") == "Coil total load [tons]"
+
+
+# ---------------------------------------------------------------------------------------
+# properties: binning never loses or invents an hour, whatever the loads
+# ---------------------------------------------------------------------------------------
+_loads = hnp.arrays(
+    np.float64,
+    st.integers(1, 400),
+    elements=st.floats(-500.0, 5000.0, allow_nan=False, allow_infinity=False),
+)
+
+
+@settings(max_examples=60, deadline=None)
+@given(zone=_loads, seed=st.integers(0, 2**16), system=st.sampled_from(["SI", "IP"]))
+def test_binned_year_keeps_every_hour(zone, seed, system):
+    rng = np.random.default_rng(seed)
+    coil = np.abs(zone * rng.uniform(0.5, 2.0, zone.size))
+    modes = rng.choice(["minimum_outdoor_air", "integrated", "locked_out"], zone.size)
+    year = pd.DataFrame(
+        {
+            "coil_total_kW": coil,
+            "zone_sensible_kW": zone,
+            "zone_latent_kW": 0.0,
+            "economizer_mode": modes,
+        }
+    )
+    frame = frames.year_scatter_frame(year, system, max_rows=200)
+    assert frame["hours"].sum() == zone.size
+    assert len(frame) <= 200
+    factor = 1.0 if system == "SI" else 1.0 / KW_PER_TON
+    assert frame["coil_low"].min() <= coil.min() * factor + 1e-9
+    assert frame["coil_high"].max() >= coil.max() * factor - 1e-9
+
+
+@settings(max_examples=60, deadline=None)
+@given(
+    drybulb=hnp.arrays(np.float64, st.integers(1, 300), elements=st.floats(-40.0, 50.0)),
+    system=st.sampled_from(["SI", "IP"]),
+)
+def test_outdoor_density_keeps_every_hour(drybulb, system):
+    humidity = np.clip(0.0002 * (drybulb + 45.0), 0.0, 0.03)
+    frame = frames.outdoor_density_frame(drybulb, humidity, system, max_rows=50)
+    assert frame["hours"].sum() == drybulb.size
+    assert len(frame) <= 50

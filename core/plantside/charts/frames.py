@@ -267,7 +267,8 @@ def year_scatter_frame(
         About how many cells along the longer axis. Both axes share one
         round cell width, so the coil-equals-zone diagonal stays a diagonal.
     max_rows : int
-        Largest number of rows; cells are made coarser until the frame fits.
+        Largest number of rows, 50 to 1000; cells are made coarser until the
+        frame fits.
     include_off : bool
         Count the hours with the fan off (all loads 0) too. Default False:
         they are reported in ``attrs["hours_off"]`` instead.
@@ -297,7 +298,8 @@ def year_scatter_frame(
     coil = _display("power", check_range("coil_total_kW", coil_si[keep], None, None, "kW"), system)
     modes = modes[keep]
     bins = int(check_range("bins", bins, 2, 200, "bins"))
-    max_rows = int(check_range("max_rows", max_rows, 10, MAX_ROWS, "rows"))
+    # at one cell per axis (two edges' worth) every mode fits in 4 rows: 7 modes x 4 < 50
+    max_rows = int(check_range("max_rows", max_rows, 50, MAX_ROWS, "rows"))
     if zone.size == 0:
         empty = {name: pd.Series(dtype=float) for name in _SCATTER_NUMBERS}
         frame = pd.DataFrame(empty).assign(
@@ -316,9 +318,9 @@ def year_scatter_frame(
         coil_index = np.clip(np.searchsorted(coil_edges, coil, "right") - 1, 0, nc - 1)
         code = (mode_code * nz + zone_index) * nc + coil_index
         cells, hours = np.unique(code, return_counts=True)
-        if cells.size <= max_rows or bins <= 4:
+        if cells.size <= max_rows or bins <= 1:
             break
-        bins = max(4, int(bins * 0.8))
+        bins = max(1, int(bins * 0.8))
     coil_cell = cells % nc
     zone_cell = (cells // nc) % nz
     mode_cell = mode_names[cells // (nc * nz)]
