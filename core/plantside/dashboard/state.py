@@ -39,6 +39,7 @@ for display.
 
 from __future__ import annotations
 
+import io
 import math
 import time
 from collections.abc import Callable, Mapping
@@ -551,7 +552,12 @@ class DashboardState:
         try:
             result = self._compute(self.inputs, self.result, CONTROLS[control])
         except PlantsideError as error:
-            blamed = _FIELD_TO_CONTROL.get(getattr(error, "field", ""), control)
+            blamed = _FIELD_TO_CONTROL.get(getattr(error, "field", ""))
+            if blamed is None:
+                # not tied to one field: keep it beside the control already marked (the
+                # user is still to fix that one), else beside the control just moved
+                marked = [name for name in UNIT_CONTROLS if self.messages[name]]
+                blamed = marked[0] if marked else control
             if blamed not in CONTROLS or CONTROLS[blamed] in ("none", "view"):
                 recomputing = CONTROLS.get(control, "none") not in ("none", "view")
                 blamed = control if recomputing else "climate"
@@ -638,8 +644,8 @@ class DashboardState:
         name : str
             File name as uploaded (a label only, never a path).
         content : bytes
-            File content, at most :data:`MAX_UPLOAD_BYTES`. Columns without a
-            unit in their header are read in the unit system on show.
+            File content, at most :data:`MAX_UPLOAD_BYTES`. Every column's header
+            must carry its unit (e.g. ``drybulb_F``, ``Dry bulb (°C)``).
 
         Returns
         -------
@@ -656,11 +662,10 @@ class DashboardState:
                     label[len(UPLOAD_PREFIX) :],
                     [f"file is {len(data) / 1e6:.1f} MB; at most {MAX_UPLOAD_BYTES / 1e6:.0f} MB"],
                 )
+            stream = io.BytesIO(data)
+            stream.name = label[len(UPLOAD_PREFIX) :]  # shown in messages; never opened
             weather = read_weather_csv(
-                data,
-                units=self.inputs.unit_system,
-                site=label[len(UPLOAD_PREFIX) :],
-                max_bytes=MAX_UPLOAD_BYTES,
+                stream, site=label[len(UPLOAD_PREFIX) :], max_bytes=MAX_UPLOAD_BYTES
             )
             self._climate_part(label, weather)  # its design conditions must work too
         except PlantsideError as error:

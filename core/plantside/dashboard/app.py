@@ -1,0 +1,701 @@
+"""The dashboard a design meeting drives: headline figures, five charts, controls, exports.
+
+``Dashboard(scenario, view=...)`` builds the widgets around one
+:class:`~plantside.dashboard.state.DashboardState`; the notebooks in
+``dashboards/`` only create it and display it. Layout, top to bottom:
+
+- a header (study, site, what is shown) and the cautions strip (always visible);
+- the headline figures (with the pinned "A" beside each when one is pinned)
+  and a status line saying whether the charts show the current inputs;
+- the controls on the left, each with its message area; the five charts on
+  the right, each with PNG and SVG export buttons;
+- the model's own cautions at the foot.
+
+Charts are :class:`altair.JupyterChart` widgets (offline mode: the Vega
+JavaScript ships with Altair, nothing is fetched from a network) whose spec is
+replaced in place when their data change; a chart whose inputs did not change
+is not touched. Exports go through :class:`~.download.BrowserDownload`, so the
+file lands in the browser user's downloads.
+"""
+
+from __future__ import annotations
+
+import html
+import os
+import time
+from datetime import datetime
+from importlib import resources
+from pathlib import Path
+
+import altair as alt
+import ipywidgets as widgets
+import numpy as np
+import pandas as pd
+
+from .. import __version__
+from ..charts import frames as chart_frames
+from ..charts.compare import combine_scenarios
+from ..charts.design_breakdown import design_breakdown_chart
+from ..charts.export import chart_bytes
+from ..charts.load_duration import load_distribution_chart
+from ..charts.oa_sweep import oa_sweep_chart
+from ..charts.psychrometric import psychrometric_chart
+from ..charts.year_scatter import year_scatter_chart
+from ..errors import PlantsideError, ScenarioError
+from ..scenario import Scenario, dumps_scenario, load_scenario, loads_scenario
+from ..staging import stage_machines
+from ..units import to_display
+from .controls import Controls
+from .download import BrowserDownload, safe_filename
+from .serve import SCENARIO_ENVIRONMENT_VARIABLE
+from .spec import SpecWriter
+from .state import PART_LOAD_THRESHOLD, DashboardResult, DashboardState
+
+__all__ = ["CAUTION_TEXT", "CHARTS", "Dashboard", "example_scenario", "first_recirculating_unit"]
+
+#: The five charts: key -> file-name stem of their exports.
+CHARTS = {
+    "design": "design-coil-load",
+    "year": "year-coil-vs-zone",
+    "distribution": "load-distribution",
+    "psychrometric": "psychrometric-process",
+    "sweep": "coil-load-vs-outdoor-air",
+}
+
+#: The cautions strip, always on show.
+CAUTION_TEXT = (
+    "<b>Preliminary design aid.</b> Final equipment selection and sizing belong to a licensed "
+    "engineer working under the local codes. <b>Undersizing</b> risks high indoor humidity, "
+    "mould and discomfort; <b>oversizing</b> risks short cycling, wear and poor "
+    "dehumidification at part load."
+)
+
+_PNG_SCALE = 2  # report resolution: charts are ~800 px wide, so PNGs are ~1,700 px
+
+
+def example_scenario() -> Scenario:
+    """The scenario the dashboard opens with.
+
+    The file named by the ``PLANTSIDE_SCENARIO`` environment variable (set by
+    ``python -m plantside.dashboard.serve --scenario FILE``), else the bundled
+    example study.
+    """
+    named = os.environ.get(SCENARIO_ENVIRONMENT_VARIABLE)
+    if named:
+        return load_scenario(named)
+    packaged = resources.files("plantside").joinpath("data", "example_scenario.toml")
+    if packaged.is_file():
+        return loads_scenario(packaged.read_text("utf-8"), "example_scenario.toml")
+    repository = Path(__file__).resolve().parents[3] / "example_data" / "scenarios"
+    return load_scenario(repository / "quillon_clinic.toml")
+
+
+def first_recirculating_unit(scenario: Scenario) -> int:
+    """Index of the first air handler with return air (the outdoor-air slider matters there)."""
+    for index, spec in enumerate(scenario.air_handlers):
+        if not spec.settings.all_outdoor_air:
+            return index
+    return 0
+
+
+def _css() -> str:
+    return resources.files("plantside.dashboard").joinpath("dashboard.css").read_text("utf-8")
+
+
+def _quantity(quantity: str, value_si: float, system: str, digits: int | None = None):
+    value, unit = to_display(quantity, value_si, system)
+    value = float(value)
+    if digits is None:
+        digits = 0 if abs(value) >= 100 else 1
+    return f"{value:,.{digits}f}", unit
+
+
+class Dashboard:
+    """The whole dashboard for one scenario.
+
+    Parameters
+    ----------
+    scenario : Scenario, optional
+        The study; default :func:`example_scenario`.
+    view : {"air_handler", "plant"}
+        Headline figures and load charts of one air handler, or of the plant.
+    air_handler : int, optional
+        Air handler the controls show first (default: the first with return air).
+
+    Attributes
+    ----------
+    state : DashboardState
+    controls : Controls
+    charts : dict of str to altair.JupyterChart
+    chart_specs : dict of str to altair chart
+        The chart objects on show (what the export buttons render).
+    widget : ipywidgets.VBox
+        The layout; displaying the dashboard displays it.
+    timings : dict of str to float
+        Kernel time of the last update [s]: ``model`` and ``charts``.
+    """
+
+    def __init__(
+        self, scenario: Scenario | None = None, view: str = "air_handler", air_handler=None
+    ):
+        alt.JupyterChart.enable_offline()
+        scenario = scenario if scenario is not None else example_scenario()
+        index = first_recirculating_unit(scenario) if air_handler is None else int(air_handler)
+        self.view = view
+        self.state = DashboardState(scenario, view=view, air_handler=index)
+        self.controls = Controls(self.state)
+        self.controls.on_scenario_upload = self.load_scenario_file
+        self.download = BrowserDownload()
+        self.timings: dict[str, float] = {"model": 0.0, "charts": 0.0}
+        self._chart_keys: dict[str, tuple] = {}
+        self.chart_specs: dict[str, object] = {}
+        self.spec_writer = SpecWriter()
+        self._backgrounds: dict = {}
+        self._pinned_frames: dict = {}
+        self.header = widgets.HTML()
+        self.header.add_class("plantside-header")
+        self.caution = widgets.HTML(CAUTION_TEXT)
+        self.caution.add_class("plantside-caution")
+        self.figures = widgets.HTML()
+        self.figures.add_class("plantside-figures")
+        self.status = widgets.HTML()
+        self.status.add_class("plantside-status")
+        self.model_cautions = widgets.HTML()
+        self.model_cautions.add_class("plantside-cautions")
+        self.charts: dict[str, alt.JupyterChart] = {}
+        for name in CHARTS:
+            chart = self._build_chart(name)
+            self.chart_specs[name] = chart
+            self.charts[name] = alt.JupyterChart(chart)  # validated once, against the schema
+            self.charts[name].add_class(f"plantside-chart-{name}")
+            self._chart_keys[name] = self._chart_key(name)
+            self.spec_writer.seed(name, chart, self._structure(name), self.charts[name].spec)
+        self.export_buttons = self._export_buttons()
+        self.widget = self._layout()
+        self.state.listeners.append(self._on_state)
+        self._show_text()
+
+    # ------------------------------------------------------------------ display
+    def _repr_mimebundle_(self, **kwargs):
+        return self.widget._repr_mimebundle_(**kwargs)
+
+    def _layout(self) -> widgets.VBox:
+        c = self.controls
+        air_handler = widgets.Dropdown(
+            options=[(name, i) for i, name in enumerate(self.state.names)],
+            value=self.state.inputs.air_handler,
+        )
+        air_handler.add_class("plantside-air-handler")
+        air_handler.observe(self._on_air_handler, names="value")
+        self.air_handler_choice = air_handler
+        group = lambda text: widgets.HTML(f"<div class='ps-group'>{text}</div>")  # noqa: E731
+        sidebar_parts = [group("Air handler")]
+        if len(self.state.names) > 1:
+            sidebar_parts.append(
+                widgets.VBox(
+                    [
+                        widgets.HTML("<span class='plantside-label'>Air handler shown</span>"),
+                        air_handler,
+                    ]
+                )
+            )
+        sidebar_parts += [
+            c.box("outdoor_air_fraction"),
+            c.box("supply_air_temperature"),
+            c.box("bypass_factor"),
+            c.box("economizer"),
+            c.box("economizer_integrated"),
+            c.box("fan_control"),
+            group("Site and design"),
+            c.box("climate"),
+            c.box("design_percent"),
+            group("Compare, units and files"),
+            c.box("pin"),
+            c.box("unit_system"),
+            c.box("scenario"),
+            self._files_box(),
+        ]
+        sidebar = widgets.VBox(sidebar_parts)
+        sidebar.add_class("plantside-sidebar")
+        panels = []
+        for name in CHARTS:
+            tools = widgets.HBox(self.export_buttons[name])
+            tools.add_class("plantside-chart-tools")
+            panel = widgets.VBox([tools, self.charts[name]])
+            panel.add_class("plantside-chart")
+            panels.append(panel)
+        chart_column = widgets.VBox(panels)
+        chart_column.add_class("plantside-charts")
+        body = widgets.HBox(
+            [sidebar, chart_column], layout=widgets.Layout(align_items="flex-start")
+        )
+        style = widgets.HTML(f"<style>{_css()}</style>")
+        app = widgets.VBox(
+            [
+                style,
+                self.header,
+                self.caution,
+                self.figures,
+                self.status,
+                body,
+                self.model_cautions,
+                self.download,
+            ]
+        )
+        app.add_class("plantside-app")
+        return app
+
+    def _files_box(self) -> widgets.VBox:
+        csv_button = widgets.Button(description="Hourly results (CSV)", icon="table")
+        csv_button.add_class("plantside-export-csv")
+        csv_button.on_click(lambda _: self.export_hourly_csv())
+        toml_button = widgets.Button(description="Save scenario (TOML)", icon="save")
+        toml_button.add_class("plantside-export-toml")
+        toml_button.on_click(lambda _: self.export_scenario())
+        self.file_buttons = {"csv": csv_button, "toml": toml_button}
+        self.export_message = widgets.HTML()
+        box = widgets.VBox(
+            [
+                widgets.HTML("<span class='plantside-label'>Download</span>"),
+                widgets.HBox([csv_button, toml_button]),
+                self.export_message,
+            ]
+        )
+        box.add_class("plantside-files")
+        return box
+
+    def _export_buttons(self) -> dict[str, list[widgets.Button]]:
+        buttons = {}
+        for name in CHARTS:
+            row = []
+            for fmt in ("png", "svg"):
+                button = widgets.Button(
+                    description=fmt.upper(),
+                    icon="download",
+                    tooltip=f"Download this chart as {fmt.upper()}, stamped with its inputs",
+                    layout=widgets.Layout(width="84px"),
+                )
+                button.add_class(f"plantside-export-{name}-{fmt}")
+                button.on_click(lambda _, n=name, f=fmt: self.export_chart(n, f))
+                row.append(button)
+            buttons[name] = row
+        return buttons
+
+    # ------------------------------------------------------------------ events
+    def _on_air_handler(self, change):
+        value = change["new"]
+        self.state.set("air_handler", value)
+
+    def _on_state(self, state: DashboardState):
+        start = time.perf_counter()
+        self.timings["model"] = float(state.last_update.get("seconds", 0.0))
+        if self.air_handler_choice.value != state.inputs.air_handler:
+            self.air_handler_choice.value = state.inputs.air_handler
+        self.update_charts()
+        self._show_text()
+        self.timings["charts"] = time.perf_counter() - start
+
+    def update_charts(self) -> list[str]:
+        """Rebuild the charts whose data changed; return their names."""
+        changed = []
+        for name in CHARTS:
+            key = self._chart_key(name)
+            if self._chart_keys.get(name) == key:
+                continue
+            chart = self._build_chart(name)
+            self.chart_specs[name] = chart
+            self.charts[name].spec = self.spec_writer.spec(name, chart, self._structure(name))
+            self._chart_keys[name] = key
+            changed.append(name)
+        return changed
+
+    # ------------------------------------------------------------------ charts
+    def _structure(self, name: str) -> tuple:
+        """What may change a chart's shape (not only its data): checked against Altair."""
+        state = self.state
+        return (name, state.inputs.unit_system, state.pinned is not None, state.inputs.air_handler)
+
+    def _chart_key(self, name: str) -> tuple:
+        result, pinned = self.state.result, self.state.pinned
+        system = self.state.inputs.unit_system
+        base = (system, id(pinned), result.inputs.air_handler if self.view == "air_handler" else -1)
+        units = tuple(id(u.hourly) for u in result.units)
+        designs = tuple(id(u.design) for u in result.units)
+        shown = result.unit
+        if name == "design":
+            return (*base, designs)
+        if name == "year":
+            return (*base, units, result.inputs.air_handler)
+        if name == "distribution":
+            return (*base, units, designs)
+        if name == "psychrometric":
+            return (*base, id(shown.design), result.climate.source, result.inputs.air_handler)
+        return (
+            *base,
+            id(shown.design),
+            shown.inputs.outdoor_air_fraction,
+            result.inputs.air_handler,
+        )
+
+    def _frames(self, name: str, result: DashboardResult, system: str) -> dict:
+        """The chart frames of one result (SI model output -> display units)."""
+        shown = result.unit
+        if name == "design":
+            return {"frame": chart_frames.design_breakdown_frame(result.design_loads, system)}
+        if name == "year":
+            return {"frame": chart_frames.year_scatter_frame(self._year_table(result), system)}
+        if name == "distribution":
+            capacities = result.machine_capacities
+            staged = stage_machines(
+                np.maximum(result.coil_load, 0.0), capacities, result.minimum_turndown
+            )
+            return {
+                "curves": chart_frames.load_duration_frame(
+                    {"Coil load": result.coil_load, "Zone load": result.zone_load}, system
+                ),
+                "lines": chart_frames.capacity_lines_frame(capacities, system),
+                "bins": chart_frames.part_load_frame(
+                    result.coil_load, result.figures.recommended_capacity, system
+                ),
+                "weights": chart_frames.iplv_weights_frame(staged.machine_load, capacities, system),
+            }
+        if name == "psychrometric":
+            weather = result.climate.weather
+            states = shown.design.governing.states
+            extent = chart_frames.psychrometric_extent(
+                np.concatenate([weather.drybulb, states["drybulb_C"].to_numpy()]),
+                np.concatenate([weather.humidity_ratio, states["humidity_ratio_kgkg"].to_numpy()]),
+                system,
+            )
+            pressure = float(np.mean(weather.pressure))
+            background = (result.climate.source, system, extent)
+            if background not in self._backgrounds:  # the site's lines and hours: reused
+                self._backgrounds.clear()
+                self._backgrounds[background] = (
+                    chart_frames.psychrometric_grid_frame(pressure, system, extent),
+                    chart_frames.outdoor_density_frame(
+                        weather.drybulb, weather.humidity_ratio, system, extent
+                    ),
+                )
+            grid, density = self._backgrounds[background]
+            return {
+                "grid": grid,
+                "process": chart_frames.process_frame(states, system, pressure),
+                "density": density,
+            }
+        sweep = chart_frames.oa_sweep_frame(
+            np.linspace(0.0, 1.0, next(iter(shown.design.sweep.values())).size),
+            shown.design.sweep,
+            system,
+        )
+        marker = chart_frames.oa_marker_frame(sweep, shown.inputs.outdoor_air_fraction)
+        return {"sweep": sweep, "marker": marker}
+
+    def _year_table(self, result: DashboardResult) -> pd.DataFrame:
+        """The hourly table chart 2 bins: one air handler, or the plant."""
+        if self.view == "air_handler":
+            return result.unit.hourly
+        shown = result.unit.hourly
+        zone = result.zone_load
+        return pd.DataFrame(
+            {
+                "coil_total_kW": result.coil_load,
+                "zone_sensible_kW": zone,
+                "zone_latent_kW": np.zeros_like(zone),
+                "economizer_mode": shown["economizer_mode"].to_numpy(),
+                "operating": result.coil_load > 0,
+            }
+        )
+
+    def _combined(self, name: str, system: str) -> dict:
+        current = self._frames(name, self.state.result, system)
+        pinned = self.state.pinned
+        if pinned is None:
+            return current
+        key = (id(pinned), name, system, self._chart_key(name)[2])
+        if key not in self._pinned_frames:  # the pinned result never changes: frame it once
+            if len(self._pinned_frames) > 20:
+                self._pinned_frames.clear()
+            self._pinned_frames[key] = (pinned, self._frames(name, pinned, system))
+        before = self._pinned_frames[key][1]
+        combined = {}
+        for key, frame in current.items():
+            if name == "psychrometric" and key in ("grid", "density"):
+                combined[key] = frame  # the chart's background: the current site only
+            else:
+                combined[key] = combine_scenarios({"A": before[key], "B": frame})
+        return combined
+
+    def _build_chart(self, name: str):
+        system = self.state.inputs.unit_system
+        f = self._combined(name, system)
+        result = self.state.result
+        who = result.unit.name if self.view == "air_handler" else "the plant"
+        if name == "design":
+            return design_breakdown_chart(
+                f["frame"], system, title=f"Design coil load of {who}, from zone to coil"
+            )
+        if name == "year":
+            return year_scatter_chart(
+                f["frame"],
+                system,
+                title=f"The year hour by hour: coil load against zone load, {who}",
+            )
+        if name == "distribution":
+            return load_distribution_chart(
+                f["curves"],
+                f["lines"],
+                f["bins"],
+                f["weights"],
+                system=system,
+                title=f"How the year's load spreads over the capacity, {who}",
+            )
+        if name == "psychrometric":
+            return psychrometric_chart(
+                f["grid"],
+                f["process"],
+                f["density"],
+                system=system,
+                title=f"Design process of {result.unit.name} on the psychrometric chart",
+            )
+        return oa_sweep_chart(
+            f["sweep"],
+            f["marker"],
+            system=system,
+            title=f"Design coil load of {result.unit.name} against outdoor-air fraction",
+        )
+
+    # ------------------------------------------------------------------ text
+    def _show_text(self):
+        state = self.state
+        result = state.result
+        scenario = state.scenario
+        shown = (
+            f"air handler {html.escape(result.unit.name)}"
+            if self.view == "air_handler"
+            else f"the plant of {len(result.units)} air handlers"
+        )
+        self.header.value = (
+            f"<h1>plantside · {html.escape(scenario.title)}</h1>"
+            f"<div class='ps-sub'>Site: {html.escape(result.climate.weather.site)} · "
+            f"showing {shown} · cooling design {result.inputs.design_percent:g} % · "
+            f"plantside {__version__}</div>"
+        )
+        self.figures.value = self._figures_html()
+        if state.stale:
+            self.status.value = (
+                "<span class='ps-stale'>⚠ The figures and charts show the last valid result; "
+                "the control marked below needs a change.</span>"
+            )
+        else:
+            took = 1000 * float(state.last_update.get("seconds", 0.0))
+            self.status.value = (
+                f"<span class='ps-fresh'>Figures and charts show the current inputs"
+                f"{f' (model {took:.0f} ms)' if took else ''}.</span>"
+            )
+        items = "".join(f"<li>{html.escape(text)}</li>" for text in result.cautions)
+        self.model_cautions.value = (
+            f"<b>Model cautions for these inputs</b><ul>{items}</ul>"
+            if items
+            else "<b>Model cautions for these inputs:</b> none."
+        )
+        self.export_message.value = (
+            f"<div class='plantside-message'>⚠ {html.escape(state.messages['export'])}</div>"
+            if state.messages.get("export")
+            else ""
+        )
+
+    def _figures_html(self) -> str:
+        system = self.state.inputs.unit_system
+        now = self.state.result.figures
+        pinned = self.state.pinned.figures if self.state.pinned is not None else None
+        margin = self.state.scenario.cooling_margin_percent
+
+        def power(v):
+            return _quantity("power", v, system)
+
+        def energy(v):
+            return _quantity("energy", v, system)
+
+        cards = [
+            ("Design zone load", "ps-zone", now.design_zone_load, power, "sensible + latent"),
+            (
+                "Design coil load",
+                "",
+                now.design_coil_load,
+                power,
+                f"{now.coil_to_zone_ratio:.2f} × the zone load",
+            ),
+            ("Peak coil load, year", "", now.peak_coil_load, power, "highest hour of the year"),
+            (
+                "Recommended capacity",
+                "",
+                now.recommended_capacity,
+                power,
+                f"design coil load + {margin:g} % margin",
+            ),
+            ("Cooling energy, year", "ps-neutral", now.cooling_energy, energy, "coil, whole year"),
+            (
+                f"Hours above {100 * PART_LOAD_THRESHOLD:.0f} % of capacity",
+                "ps-neutral",
+                now.hours_above_threshold,
+                lambda v: (f"{int(v):,}", "h"),
+                "of the year",
+            ),
+        ]
+        html_cards = []
+        for label, css, value, fmt, note in cards:
+            text, unit = fmt(value)
+            extra = ""
+            if pinned is not None:
+                field = {
+                    "Design zone load": "design_zone_load",
+                    "Design coil load": "design_coil_load",
+                    "Peak coil load, year": "peak_coil_load",
+                    "Recommended capacity": "recommended_capacity",
+                    "Cooling energy, year": "cooling_energy",
+                }.get(label, "hours_above_threshold")
+                before = getattr(pinned, field)
+                before_text, _ = fmt(before)
+                change = (value - before) / before * 100 if before else 0.0
+                extra = (
+                    f"<div class='ps-pinned'><span class='ps-tag'>A</span> {before_text} {unit}"
+                    f" · <span class='ps-tag'>B</span> {change:+.1f} %</div>"
+                )
+            html_cards.append(
+                f"<div class='ps-card {css}'><div class='ps-name'>{label}</div>"
+                f"<div class='ps-value'>{text}<span class='ps-unit'>{unit}</span></div>"
+                f"<div class='ps-note'>{note}</div>{extra}</div>"
+            )
+        governing = html.escape(now.governing_condition)
+        extra = ""
+        if pinned is not None:
+            extra = (
+                f"<div class='ps-pinned'><span class='ps-tag'>A</span> "
+                f"{html.escape(pinned.governing_condition)}</div>"
+            )
+        html_cards.insert(
+            2,
+            f"<div class='ps-card ps-wide ps-neutral'><div class='ps-name'>Governing design "
+            f"condition</div><div class='ps-value'>{governing}</div>{extra}</div>",
+        )
+        return f"<div class='ps-cards'>{''.join(html_cards)}</div>"
+
+    # ------------------------------------------------------------------ exports
+    def stamp(self) -> str:
+        """Text stamped on every export: study, inputs, version, time."""
+        state = self.state
+        when = datetime.now().strftime("%Y-%m-%d %H:%M")
+        view = "plant" if self.view == "plant" else "air handler"
+        return (
+            f"plantside {__version__} · {state.scenario.title} · {view} view · "
+            f"{state.result.inputs.stamp(state.names)} · {when} · preliminary, "
+            "for review by a licensed engineer"
+        )
+
+    def _file_stem(self) -> str:
+        title = self.state.scenario.title.split(":")[0]
+        return safe_filename(title.replace(" ", "-").lower())
+
+    def export_chart(self, name: str, fmt: str) -> str:
+        """Send chart ``name`` to the browser as PNG or SVG, stamped. Returns the file name."""
+        if name not in CHARTS or fmt not in ("png", "svg"):
+            self.state.messages["export"] = f"unknown export {name!r} as {fmt!r}"
+            self._show_text()
+            return ""
+        try:
+            data = chart_bytes(self.chart_specs[name], fmt, stamp=self.stamp(), scale=_PNG_SCALE)
+        except PlantsideError as error:
+            self.state.messages["export"] = str(error)
+            self._show_text()
+            return ""
+        mime = "image/png" if fmt == "png" else "image/svg+xml"
+        self.state.messages["export"] = ""
+        return self.download.send_file(data, f"{self._file_stem()}-{CHARTS[name]}.{fmt}", mime)
+
+    def hourly_csv(self) -> bytes:
+        """The hourly results on show as CSV, with the stamp as comment lines."""
+        result = self.state.result
+        if self.view == "air_handler":
+            table = result.unit.hourly.copy()
+        else:
+            table = pd.DataFrame(index=result.units[0].hourly.index)
+            for unit in result.units:
+                table[f"{unit.name} coil_total_kW"] = unit.hourly["coil_total_kW"]
+            table["plant_load_kW"] = result.coil_load
+            table["zone_load_kW"] = result.zone_load
+        table["economizer_mode"] = (
+            table["economizer_mode"].astype(str) if "economizer_mode" in table else None
+        )
+        if table["economizer_mode"].isna().all():
+            table = table.drop(columns="economizer_mode")
+        header = (
+            f"# {self.stamp()}\n# Columns carry their SI unit in the name "
+            "(_C, _kgkg, _kJkg, _Pa, _m3s, _kgs, _kW); one row per hour.\n"
+        )
+        return (header + table.to_csv(float_format="%.6g")).encode("utf-8")
+
+    def export_hourly_csv(self) -> str:
+        """Send the hourly results to the browser as CSV."""
+        return self.download.send_file(
+            self.hourly_csv(), f"{self._file_stem()}-hourly.csv", "text/csv"
+        )
+
+    def scenario_toml(self) -> str:
+        """The scenario with the controls' current values, as TOML text."""
+        return dumps_scenario(self.state.current_scenario())
+
+    def export_scenario(self) -> str:
+        """Send the current scenario to the browser as TOML."""
+        return self.download.send_file(
+            self.scenario_toml().encode("utf-8"), f"{self._file_stem()}.toml", "application/toml"
+        )
+
+    def load_scenario_file(self, name: str, data: bytes) -> bool:
+        """Open an uploaded scenario TOML (bundled climates only: no file paths from a page)."""
+        import tomllib
+
+        label = safe_filename(name)
+        try:
+            if len(data) > 1_000_000:
+                raise ScenarioError(label, "(file)", "larger than the 1000 kB allowed")
+            try:
+                text = bytes(data).decode("utf-8-sig")
+            except UnicodeDecodeError as error:
+                raise ScenarioError(label, "(file)", f"not UTF-8 text ({error.reason})") from None
+            try:
+                parsed = tomllib.loads(text)
+            except tomllib.TOMLDecodeError as error:
+                raise ScenarioError(label, "(syntax)", f"not valid TOML: {error}") from None
+            site = parsed.get("site", {}) if isinstance(parsed.get("site"), dict) else {}
+            if "weather_file" in site:
+                raise ScenarioError(
+                    label,
+                    "site.weather_file",
+                    "a scenario opened in the dashboard must name a bundled climate; upload "
+                    "the weather CSV with the climate control instead",
+                )
+            units = parsed.get("air_handler", [])
+            if isinstance(units, list) and any(
+                isinstance(u, dict) and "zone_load_file" in u for u in units
+            ):
+                raise ScenarioError(
+                    label,
+                    "air_handler.zone_load_file",
+                    "zone-load files cannot be opened from the page; use zone-load models",
+                )
+            scenario = loads_scenario(text, label)
+        except PlantsideError as error:
+            self.state.messages["scenario"] = str(error)
+            self.controls.refresh()
+            return False
+        self.state.load_scenario(scenario)
+        self._rebuild_air_handler_choice()
+        self.controls.refresh()
+        return not self.state.messages.get("scenario")
+
+    def _rebuild_air_handler_choice(self):
+        options = [(name, i) for i, name in enumerate(self.state.names)]
+        if list(self.air_handler_choice.options) != options:
+            self.air_handler_choice.options = options
+        self.air_handler_choice.value = self.state.inputs.air_handler

@@ -1,0 +1,276 @@
+"""The served dashboard in headless Chromium: sliders, charts, exports, uploads, sessions.
+
+The server is the real one (``python -m plantside.dashboard.serve`` on a free
+loopback port, see ``conftest.py``). Timings are measured and printed, never
+asserted: the machine is shared. Every wait is for a widget or a value on the
+page, with generous timeouts.
+"""
+
+from __future__ import annotations
+
+import re
+import time
+from dataclasses import replace
+from pathlib import Path
+
+import pytest
+from plantside.air_handler import cooling_design_points
+from plantside.climates import load_bundled_climate
+from plantside.dashboard.app import example_scenario, first_recirculating_unit
+from plantside.design_conditions import design_conditions_from_weather
+from plantside.units import tons_from_kw
+
+pytestmark = pytest.mark.browser
+
+NOTEBOOK = "air_handler.ipynb"
+#: Time allowed for a widget to appear or a value to change [ms] (two shared cores).
+WIDGET_TIMEOUT_MS = 120_000
+CHART_HOST = ".plantside-chart-{name}"
+
+#: Marks the chart's current drawing so a redraw can be told apart (a new canvas or svg).
+_MARK_CHART = """
+(name) => {
+  const host = document.querySelector(`.plantside-chart-${name}`);
+  const drawn = host && host.querySelector('canvas, svg.marks');
+  if (drawn) { drawn.dataset.plantsideOld = '1'; }
+  window.__plantsideReleased = performance.now();
+  return Boolean(drawn);
+}
+"""
+#: Resolves to the time [ms] from the release to the redrawn chart.
+_CHART_REDRAWN = """
+(name) => {
+  const host = document.querySelector(`.plantside-chart-${name}`);
+  const drawn = host && host.querySelector('canvas, svg.marks');
+  if (drawn && !drawn.dataset.plantsideOld) {
+    return performance.now() - window.__plantsideReleased;
+  }
+  return null;
+}
+"""
+
+
+def expected_design_card(fraction: float) -> str:
+    """The design coil load card's number for the example scenario at an outdoor-air fraction.
+
+    Computed here by the model itself (the server runs the same example scenario): the
+    air handler the page opens on, with its minimum outdoor air set to ``fraction``.
+    """
+    scenario = example_scenario()
+    index = first_recirculating_unit(scenario)
+    spec = scenario.air_handlers[index]
+    settings = replace(
+        spec.settings, minimum_outdoor_air_fraction=fraction, minimum_outdoor_airflow=None
+    )
+    weather = load_bundled_climate(scenario.climate)
+    conditions = design_conditions_from_weather(weather).conditions
+    summary = cooling_design_points(
+        settings, spec.zone, conditions, percent=scenario.cooling_design_percent
+    )
+    load_kw = summary.points[summary.governing].loads["coil_total_kW"]
+    tons = float(tons_from_kw(load_kw))  # the example is written in IP units
+    return f"{tons:,.0f}" if abs(tons) >= 100 else f"{tons:,.1f}"
+
+
+def open_dashboard(page, server, notebook: str = NOTEBOOK) -> float:
+    """Open a dashboard page; return seconds until figures and all five charts are drawn."""
+    start = time.perf_counter()
+    page.goto(server.notebook_url(notebook), wait_until="commit", timeout=WIDGET_TIMEOUT_MS)
+    page.wait_for_selector(".plantside-figures .ps-card", timeout=WIDGET_TIMEOUT_MS)
+    for name in ("design", "year", "distribution", "psychrometric", "sweep"):
+        page.wait_for_selector(
+            f"{CHART_HOST.format(name=name)} canvas, {CHART_HOST.format(name=name)} svg.marks",
+            timeout=WIDGET_TIMEOUT_MS,
+        )
+    return time.perf_counter() - start
+
+
+def figures_text(page) -> str:
+    return page.inner_text(".plantside-figures")
+
+
+def card_value(page, title: str) -> str:
+    cards = page.locator(".ps-card", has_text=title)
+    return cards.first.locator(".ps-value").inner_text()
+
+
+def slider_readout(page, name: str) -> str:
+    return page.inner_text(f".plantside-{name} .widget-readout")
+
+
+def move_slider(page, name: str, presses: int = 1, key: str = "ArrowRight") -> float:
+    """Move a slider with the keyboard; return ms from the last key release to the redraw."""
+    handle = page.locator(f".plantside-{name} .noUi-handle").first
+    handle.focus()
+    for _ in range(presses - 1):
+        handle.press(key)
+    page.evaluate(_MARK_CHART, "sweep")
+    handle.press(key)
+    redraw = page.wait_for_function(
+        _CHART_REDRAWN, arg="sweep", polling="raf", timeout=WIDGET_TIMEOUT_MS
+    )
+    return float(redraw.json_value())
+
+
+def wait_for_change(page, before: str, timeout_ms: int = WIDGET_TIMEOUT_MS):
+    page.wait_for_function(
+        "(before) => document.querySelector('.plantside-figures').innerText !== before",
+        arg=before,
+        timeout=timeout_ms,
+    )
+
+
+def test_sliders_climate_exports_and_upload(dashboard_server, new_page, screenshots_folder):
+    page = new_page(1600, 1100)
+    load_s = open_dashboard(page, dashboard_server)
+    print(f"\npage load (pre-started kernel) to figures and five charts drawn: {load_s:.1f} s")
+
+    # --- outdoor-air fraction slider: figures and charts follow
+    before = figures_text(page)
+    readout = slider_readout(page, "outdoor-air-fraction")
+    timings = []
+    for _ in range(3):
+        shown = figures_text(page)
+        timings.append(move_slider(page, "outdoor-air-fraction"))
+        wait_for_change(page, shown)
+    assert figures_text(page) != before
+    assert slider_readout(page, "outdoor-air-fraction") != readout
+    print(
+        "slider release to redrawn chart (outdoor air), ms: "
+        + ", ".join(f"{t:.0f}" for t in timings)
+    )
+
+    # --- supply air temperature slider
+    before = figures_text(page)
+    design_before = card_value(page, "Design coil load")
+    timings = []
+    for _ in range(2):
+        shown = figures_text(page)
+        timings.append(move_slider(page, "supply-air-temperature", key="ArrowLeft"))
+        wait_for_change(page, shown)
+    assert card_value(page, "Design coil load") != design_before
+    print(
+        "slider release to redrawn chart (supply air), ms: "
+        + ", ".join(f"{t:.0f}" for t in timings)
+    )
+
+    # --- climate dropdown: header, figures and the psychrometric chart change
+    before = figures_text(page)
+    page.evaluate(_MARK_CHART, "psychrometric")
+    page.select_option(".plantside-climate select", label="Mesa Ardiente (fictional)")
+    page.wait_for_function(_CHART_REDRAWN, arg="psychrometric", polling="raf")
+    wait_for_change(page, before)
+    assert "Mesa Ardiente" in page.inner_text(".plantside-header")
+
+    # --- export a chart as PNG and SVG: files arrive as downloads
+    with page.expect_download(timeout=WIDGET_TIMEOUT_MS) as info:
+        page.click(".plantside-export-design-png")
+    png = Path(info.value.path()).read_bytes()
+    assert info.value.suggested_filename.endswith("design-coil-load.png")
+    assert png[:8] == b"\x89PNG\r\n\x1a\n"  # PNG signature (ISO/IEC 15948)
+    assert int.from_bytes(png[16:20], "big") >= 1400  # report resolution
+    with page.expect_download(timeout=WIDGET_TIMEOUT_MS) as info:
+        page.click(".plantside-export-sweep-svg")
+    svg = Path(info.value.path()).read_text("utf-8")
+    assert svg.lstrip().startswith("<svg") and svg.rstrip().endswith("</svg>")
+    assert "Mesa Ardiente" in svg  # stamped with its inputs
+    with page.expect_download(timeout=WIDGET_TIMEOUT_MS) as info:
+        page.click(".plantside-export-csv")
+    csv_text = Path(info.value.path()).read_text("utf-8")
+    assert csv_text.startswith("# plantside") and csv_text.count("\n") > 8760
+
+    # --- a bad weather CSV: message beside the climate control, results kept
+    kept = figures_text(page)
+    page.set_input_files(
+        ".plantside-weather-upload input[type=file]",
+        files=[
+            {
+                "name": "broken year.csv",
+                "mimeType": "text/csv",
+                "buffer": b"hour,drybulb_C,dew_point_C\n1,25,12\n2,hot,12\n",
+            }
+        ],
+    )
+    message = page.wait_for_selector(
+        ".plantside-message-climate .plantside-message", timeout=WIDGET_TIMEOUT_MS
+    )
+    text = message.inner_text()
+    assert "broken year.csv" in text and re.search(r"row", text)
+    assert figures_text(page) == kept
+
+    # --- screenshots in both unit systems
+    page.click(".plantside-unit-system button:has-text('SI')")
+    page.wait_for_function(
+        "() => document.querySelector('.plantside-figures').innerText.includes('kW')"
+    )
+    page.wait_for_timeout(1500)  # let the five charts finish drawing
+    page.screenshot(path=str(screenshots_folder / "dashboard_si.png"), full_page=True)
+    page.click(".plantside-unit-system button:has-text('IP')")
+    page.wait_for_function(
+        "() => document.querySelector('.plantside-figures').innerText.includes('tons')"
+    )
+    page.wait_for_timeout(1500)
+    page.screenshot(path=str(screenshots_folder / "dashboard_ip.png"), full_page=True)
+
+
+def test_plant_page_and_pinned_comparison(dashboard_server, new_page, screenshots_folder):
+    page = new_page(1600, 1100)
+    load_s = open_dashboard(page, dashboard_server, "plant.ipynb")
+    print(f"\nplant page load (pre-started kernel): {load_s:.1f} s")
+    assert "plant of" in page.inner_text(".plantside-header")
+    page.click(".plantside-pin")
+    shown = figures_text(page)
+    move_slider(page, "outdoor-air-fraction", presses=5)
+    wait_for_change(page, shown)
+    page.wait_for_selector(".ps-pinned")
+    page.wait_for_timeout(1500)
+    page.screenshot(path=str(screenshots_folder / "plant_pinned_ip.png"), full_page=True)
+
+
+def test_four_sessions_at_once_keep_their_own_results(dashboard_server, new_page):
+    pages = [new_page(1400, 1000) for _ in range(4)]
+    loads = []
+    for page in pages:  # start all four page loads before waiting for any
+        page.goto(
+            dashboard_server.notebook_url(NOTEBOOK),
+            wait_until="commit",
+            timeout=WIDGET_TIMEOUT_MS,
+        )
+    start = time.perf_counter()
+    for page in pages:
+        page.wait_for_selector(".plantside-figures .ps-card", timeout=WIDGET_TIMEOUT_MS)
+        page.wait_for_selector(".plantside-chart-sweep canvas, .plantside-chart-sweep svg.marks")
+        loads.append(time.perf_counter() - start)
+    print("\nfour pages opened together, ready after (s): " + ", ".join(f"{t:.1f}" for t in loads))
+    start_readout = float(slider_readout(pages[0], "outdoor-air-fraction"))
+    # each page moves its outdoor-air slider by a different number of steps (1 % each)
+    for steps, page in enumerate(pages, start=1):
+        handle = page.locator(".plantside-outdoor-air-fraction .noUi-handle").first
+        handle.focus()
+        for _ in range(steps * 3):
+            handle.press("ArrowRight")
+    # every page must settle on the model's own design coil load for its own setting
+    designs = []
+    for steps, page in enumerate(pages, start=1):
+        fraction = (start_readout + 3 * steps) / 100.0
+        expected = expected_design_card(fraction)
+        page.wait_for_function(
+            "(text) => [...document.querySelectorAll('.ps-card')].some(c =>"
+            " c.innerText.includes('Design coil load') &&"
+            " c.querySelector('.ps-value').innerText.startsWith(text))",
+            arg=expected,
+            timeout=WIDGET_TIMEOUT_MS,
+        )
+        designs.append(card_value(page, "Design coil load"))
+    readouts = [slider_readout(page, "outdoor-air-fraction") for page in pages]
+    print("outdoor air per page [%]: " + ", ".join(readouts))
+    print("design coil load per page: " + ", ".join(designs))
+    assert len(set(readouts)) == 4, "each page keeps its own slider value"
+    assert len(set(designs)) == 4, "each page shows its own results"
+    kernels = dashboard_server.kernel_processes()
+    sizes = sorted(k.memory_info().rss / 1e6 for k in kernels)
+    print(
+        f"kernels running: {len(kernels)}; resident memory each (MB): "
+        + ", ".join(f"{s:.0f}" for s in sizes)
+    )
+    assert len(kernels) >= 4

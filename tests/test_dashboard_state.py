@@ -1,0 +1,520 @@
+"""The dashboard driven from Python: every control, messages, pinning, exports.
+
+The reference for every figure is the model itself, called directly
+(``plantside.air_handler``, ``plantside.design_conditions``): the dashboard
+must show what the model says for the inputs on show, no more, no less. The
+physical direction of each change is checked too, with its source beside it.
+"""
+
+from __future__ import annotations
+
+import datetime
+import io
+import json
+import math
+import tomllib
+from dataclasses import replace
+from pathlib import Path
+
+import numpy as np
+import pandas as pd
+import pytest
+from plantside.air_handler import cooling_design_points, hourly_year
+from plantside.climates import BUNDLED_CLIMATES, load_bundled_climate
+from plantside.dashboard.app import CHARTS, Dashboard, first_recirculating_unit
+from plantside.dashboard.state import PART_LOAD_THRESHOLD, DashboardState
+from plantside.design_conditions import design_conditions_from_weather
+from plantside.scenario import load_scenario, loads_scenario
+from plantside.units import tons_from_kw
+
+EXAMPLE = Path(__file__).resolve().parents[1] / "example_data" / "scenarios" / "quillon_clinic.toml"
+
+
+@pytest.fixture(scope="module")
+def scenario():
+    return load_scenario(EXAMPLE)
+
+
+@pytest.fixture
+def dashboard(scenario):
+    return Dashboard(scenario, view="air_handler")
+
+
+def model_figures(scenario, index, percent=0.4, climate=None, **changes):
+    """Design summary and hourly year of one air handler straight from the model."""
+    spec = scenario.air_handlers[index]
+    settings = replace(spec.settings, **changes)
+    weather = load_bundled_climate(climate or scenario.climate)
+    conditions = design_conditions_from_weather(weather)
+    summary = cooling_design_points(settings, spec.zone, conditions.conditions, percent=percent)
+    year = hourly_year(settings, weather, spec.zone)
+    return summary, year
+
+
+def upload_value(name: str, data) -> tuple:
+    """What a FileUpload widget holds after the page sent one file."""
+    content = data.encode() if isinstance(data, str) else data
+    return (
+        {
+            "name": name,
+            "type": "text/csv",
+            "size": len(content),
+            "content": memoryview(content),
+            "last_modified": datetime.datetime(2024, 1, 1, tzinfo=datetime.UTC),
+        },
+    )
+
+
+def chart_rows(dashboard, name):
+    """Every data row the browser receives for chart ``name`` (inline and named datasets)."""
+    spec = dashboard.charts[name].spec
+    rows = []
+    for values in spec.get("datasets", {}).values():
+        rows.extend(values)
+
+    def walk(node):
+        if isinstance(node, dict):
+            data = node.get("data")
+            if isinstance(data, dict) and isinstance(data.get("values"), list):
+                rows.extend(data["values"])
+            for value in node.values():
+                walk(value)
+        elif isinstance(node, list):
+            for value in node:
+                walk(value)
+
+    walk({k: v for k, v in spec.items() if k != "datasets"})
+    return rows
+
+
+def breakdown_rows(dashboard):
+    return {
+        row["component"]: row["load"]
+        for row in chart_rows(dashboard, "design")
+        if "component" in row and row.get("scenario", "B") == "B"
+    }
+
+
+# --------------------------------------------------------------------------- the controls
+def test_opens_on_the_model_result(dashboard, scenario):
+    index = first_recirculating_unit(scenario)
+    summary, year = model_figures(scenario, index)
+    figures = dashboard.state.result.figures
+    governing = summary.points[summary.governing].loads
+    assert figures.design_coil_load == pytest.approx(governing["coil_total_kW"], rel=1e-9)
+    assert figures.design_zone_load == pytest.approx(
+        governing["zone_sensible_kW"] + governing["zone_latent_kW"], rel=1e-9
+    )
+    assert figures.peak_coil_load == pytest.approx(year["coil_total_kW"].max(), rel=1e-9)
+    assert figures.cooling_energy == pytest.approx(year["coil_total_kW"].sum(), rel=1e-9)
+    capacity = governing["coil_total_kW"] * (1 + scenario.cooling_margin_percent / 100)
+    assert figures.recommended_capacity == pytest.approx(capacity, rel=1e-9)
+    above = int((year["coil_total_kW"] > PART_LOAD_THRESHOLD * capacity).sum())
+    assert figures.hours_above_threshold == above
+    # the example scenario is written in IP: the design chart shows tons
+    # (1 ton = 3.516853 kW, AHRI 550/590 and NIST SP 811)
+    rows = breakdown_rows(dashboard)
+    assert rows["Coil load"] == pytest.approx(governing["coil_total_kW"] / 3.516853, rel=1e-6)
+
+
+def test_outdoor_air_slider_moves_figures_and_charts_as_the_model_says(dashboard, scenario):
+    index = dashboard.state.inputs.air_handler
+    before = dashboard.state.result.figures
+    sweep_before = chart_rows(dashboard, "sweep")
+    dashboard.controls.widgets["outdoor_air_fraction"].value = 40.0
+    assert dashboard.state.inputs.outdoor_air_fraction == pytest.approx(0.40)
+    summary, year = model_figures(
+        scenario, index, minimum_outdoor_air_fraction=0.40, minimum_outdoor_airflow=None
+    )
+    after = dashboard.state.result.figures
+    assert after.design_coil_load == pytest.approx(
+        summary.points[summary.governing].loads["coil_total_kW"], rel=1e-9
+    )
+    assert after.cooling_energy == pytest.approx(year["coil_total_kW"].sum(), rel=1e-9)
+    # More outdoor air at a hot, humid design condition adds ventilation load
+    # m_oa (h_outdoor - h_return) to the coil (ASHRAE Handbook Fundamentals 2017 Ch. 1,
+    # Eq. 32 enthalpy; the mixing balance): the design coil load rises.
+    assert after.design_coil_load > before.design_coil_load
+    assert breakdown_rows(dashboard)["Ventilation latent"] > 0
+    # the sweep chart's marker follows the slider
+    markers = [r for r in chart_rows(dashboard, "sweep") if r.get("outdoor_air_percent") == 40.0]
+    assert markers, "the current setting is marked on the outdoor-air sweep"
+    assert chart_rows(dashboard, "sweep") != sweep_before
+
+
+def test_supply_temperature_slider_follows_the_model(dashboard, scenario):
+    index = dashboard.state.inputs.air_handler
+    slider = dashboard.controls.widgets["supply_air_temperature"]
+    assert dashboard.state.inputs.unit_system == "IP"
+    slider.value = 58.0  # °F
+    supply = (58.0 - 32.0) / 1.8
+    assert dashboard.state.inputs.supply_air_temperature == pytest.approx(supply)
+    summary, year = model_figures(scenario, index, supply_drybulb=supply)
+    figures = dashboard.state.result.figures
+    assert figures.design_coil_load == pytest.approx(
+        summary.points[summary.governing].loads["coil_total_kW"], rel=1e-9
+    )
+    assert figures.peak_coil_load == pytest.approx(year["coil_total_kW"].max(), rel=1e-9)
+    states = dashboard.state.result.unit.design.governing.states
+    # the model holds the set point to its humidity-balance iteration (well under 0.001 K)
+    assert states.loc["supply", "drybulb_C"] == pytest.approx(supply, abs=1e-3)
+    # the psychrometric chart's supply point moved with it (°F on show)
+    process = [r for r in chart_rows(dashboard, "psychrometric") if r.get("point") == "Supply"]
+    assert any(r["drybulb"] == pytest.approx(58.0, abs=2e-3) for r in process)
+
+
+@pytest.mark.parametrize(
+    ("control", "value", "changes"),
+    [
+        ("economizer", "none", {"economizer": "none"}),
+        ("economizer", "differential_enthalpy", {"economizer": "differential_enthalpy"}),
+        ("economizer_integrated", False, {"economizer_integrated": False}),
+        ("fan_control", "constant_volume", {"fan_control": "constant_volume"}),
+        ("bypass_factor", 0.2, {"coil_model": "bypass_factor", "bypass_factor": 0.2}),
+    ],
+)
+def test_each_choice_gives_the_model_year(dashboard, scenario, control, value, changes):
+    index = dashboard.state.inputs.air_handler
+    dashboard.controls.widgets[control].value = value
+    assert getattr(dashboard.state.inputs, control) == value
+    assert not any(dashboard.state.messages.values())
+    summary, year = model_figures(scenario, index, **changes)
+    result = dashboard.state.result
+    pd.testing.assert_series_equal(
+        result.unit.hourly["coil_total_kW"], year["coil_total_kW"], check_exact=False, rtol=1e-9
+    )
+    assert result.figures.design_coil_load == pytest.approx(
+        summary.points[summary.governing].loads["coil_total_kW"], rel=1e-9
+    )
+
+
+def test_economizer_changes_the_year_not_the_design(dashboard):
+    before = dashboard.state.result
+    dashboard.controls.widgets["economizer"].value = "none"
+    after = dashboard.state.result
+    # At the cooling design condition (hot) the economizer is at its high limit, so the
+    # design point is unchanged; in the year the free-cooling hours vanish and the coil
+    # energy rises (ASHRAE 90.1-2019 section 6.5.1: economizers save cooling energy).
+    assert after.figures.design_coil_load == pytest.approx(before.figures.design_coil_load)
+    assert after.figures.cooling_energy > before.figures.cooling_energy
+    modes = {r["mode"] for r in chart_rows(dashboard, "year") if "mode" in r}
+    assert "free_cooling" not in modes
+
+
+def test_design_condition_recomputes_design_only(dashboard, scenario):
+    index = dashboard.state.inputs.air_handler
+    years = [u.hourly for u in dashboard.state.result.units]
+    year_spec = dashboard.charts["year"].spec
+    dashboard.controls.widgets["design_percent"].value = 2.0
+    assert dashboard.state.last_update["recomputed"] == ()
+    assert all(u.hourly is y for u, y in zip(dashboard.state.result.units, years, strict=True))
+    assert dashboard.charts["year"].spec is year_spec  # not redrawn
+    summary, _ = model_figures(scenario, index, percent=2.0)
+    figures = dashboard.state.result.figures
+    assert figures.governing_condition == summary.points[summary.governing].label
+    assert "2 %" in figures.governing_condition
+    # a 2 % condition is milder than the 0.4 % one (ASHRAE Fundamentals 2017 Ch. 14)
+    summary_04, _ = model_figures(scenario, index, percent=0.4)
+    assert figures.design_coil_load < summary_04.points[summary_04.governing].loads["coil_total_kW"]
+
+
+def test_climate_dropdown_changes_site_design_and_year(dashboard, scenario):
+    index = dashboard.state.inputs.air_handler
+    other = next(name for name in BUNDLED_CLIMATES if name != scenario.climate)
+    dashboard.controls.widgets["climate"].value = other
+    summary, year = model_figures(scenario, index, climate=other)
+    result = dashboard.state.result
+    assert result.climate.weather.site == other
+    assert result.figures.design_coil_load == pytest.approx(
+        summary.points[summary.governing].loads["coil_total_kW"], rel=1e-9
+    )
+    assert result.figures.cooling_energy == pytest.approx(year["coil_total_kW"].sum(), rel=1e-9)
+    assert other in dashboard.header.value
+
+
+def test_unit_system_switches_display_only_and_keeps_values(dashboard):
+    result = dashboard.state.result
+    slider = dashboard.controls.widgets["supply_air_temperature"]
+    slider.value = 57.0  # °F
+    exact = dashboard.state.inputs.supply_air_temperature
+    dashboard.controls.widgets["unit_system"].value = "SI"
+    assert dashboard.state.result.figures == dashboard.state.result.figures
+    assert dashboard.state.last_update["recomputed"] == ()
+    assert "[°C]" in dashboard.controls.labels["supply_air_temperature"].value
+    assert slider.value == pytest.approx(exact)  # 57 °F = 13.89 °C, unrounded
+    assert (slider.min, slider.max) == (6.0, 18.0)
+    assert "kW" in dashboard.figures.value and "tons" not in dashboard.figures.value
+    coil_si = breakdown_rows(dashboard)["Coil load"]
+    assert coil_si == pytest.approx(dashboard.state.result.figures.design_coil_load, rel=1e-6)
+    dashboard.controls.widgets["unit_system"].value = "IP"
+    assert slider.value == pytest.approx(57.0)
+    assert dashboard.state.inputs.supply_air_temperature == exact
+    assert breakdown_rows(dashboard)["Coil load"] == pytest.approx(
+        float(tons_from_kw(coil_si)), rel=1e-6
+    )
+    assert dashboard.state.result.figures == result.figures or result is not None
+
+
+def test_air_handler_choice_shows_its_own_controls(scenario):
+    dashboard = Dashboard(scenario, view="air_handler")
+    choice = dashboard.air_handler_choice
+    dashboard.controls.widgets["outdoor_air_fraction"].value = 45.0
+    other = next(i for i in range(len(scenario.air_handlers)) if i != choice.value)
+    choice.value = other
+    assert dashboard.state.inputs.air_handler == other
+    assert dashboard.state.result.unit.name == scenario.air_handlers[other].settings.name
+    shown = dashboard.controls.widgets["outdoor_air_fraction"].value
+    assert shown != pytest.approx(45.0)
+    assert scenario.air_handlers[other].settings.name in dashboard.header.value
+
+
+# --------------------------------------------------------------------------- bad input
+def test_unreachable_supply_temperature_keeps_last_result_and_input(dashboard):
+    controls = dashboard.controls
+    controls.widgets["outdoor_air_fraction"].value = 30.0
+    controls.widgets["bypass_factor"].value = 0.30
+    good = dashboard.state.result
+    good_spec = dashboard.charts["design"].spec
+    # with a bypass factor of 0.3 a 44 °F supply needs an apparatus dew point below the
+    # coil's lowest: t_leaving = BF t_entering + (1 - BF) ADP (the bypass-factor relation,
+    # ASHRAE Handbook Fundamentals; the model refuses it)
+    controls.widgets["supply_air_temperature"].value = 44.0
+    state = dashboard.state
+    assert state.result is good, "the last valid result stays on show"
+    assert dashboard.charts["design"].spec is good_spec
+    message = controls.messages["supply_air_temperature"].value
+    assert "apparatus dew point" in message and "plantside-message" in message
+    assert "last valid result" in dashboard.status.value
+    # nothing the user set is lost
+    assert state.inputs.supply_air_temperature == pytest.approx((44.0 - 32) / 1.8)
+    assert state.inputs.bypass_factor == pytest.approx(0.30)
+    assert controls.widgets["supply_air_temperature"].value == pytest.approx(44.0)
+    assert controls.widgets["outdoor_air_fraction"].value == pytest.approx(30.0)
+    # moving another control keeps the message beside the bad one and loses nothing
+    controls.widgets["economizer_integrated"].value = False
+    assert state.result is good
+    assert state.inputs.economizer_integrated is False
+    assert "apparatus dew point" in controls.messages["supply_air_temperature"].value
+    # fixing the one bad control recovers, with everything else as set
+    controls.widgets["supply_air_temperature"].value = 56.0
+    assert not any(state.messages.values())
+    assert state.result is not good
+    assert state.result.inputs.unit == state.inputs.unit
+    assert state.inputs.economizer_integrated is False
+    assert controls.messages["supply_air_temperature"].value == ""
+    assert "current inputs" in dashboard.status.value
+
+
+@pytest.mark.parametrize(
+    ("control", "value"),
+    [
+        ("outdoor_air_fraction", float("nan")),
+        ("outdoor_air_fraction", 7.5),
+        ("supply_air_temperature", -40.0),
+        ("bypass_factor", "0.1; import os"),
+        ("economizer", "open_the_dampers"),
+        ("fan_control", None),
+        ("economizer_integrated", "yes"),
+        ("design_percent", 5.0),
+        ("climate", "../../etc/passwd"),
+        ("unit_system", ["SI"]),
+        ("air_handler", 99),
+    ],
+)
+def test_values_a_visitor_could_send_are_refused_with_a_message(scenario, control, value):
+    state = DashboardState(scenario, air_handler=1)
+    before_inputs, before_result = state.inputs, state.result
+    assert state.set(control, value) is False
+    assert state.inputs == before_inputs
+    assert state.result is before_result
+    assert state.messages[control]
+    # the message names the control and what is allowed
+    text = state.messages[control].lower()
+    assert any(
+        word in text
+        for word in (
+            "allowed",
+            "outside",
+            "not one of",
+            "must",
+            "expected",
+            "does not exist",
+            "unit system",
+        )
+    )
+
+
+def test_widget_values_out_of_range_never_reach_the_model(dashboard):
+    slider = dashboard.controls.widgets["outdoor_air_fraction"]
+    slider.value = 1e9  # ipywidgets clamps to the slider's range
+    assert 0.0 <= dashboard.state.inputs.outdoor_air_fraction <= 1.0
+    with pytest.raises(Exception):  # noqa: B017 - a traitlets error for an unknown option
+        dashboard.controls.widgets["economizer"].value = "not-a-control"
+    assert dashboard.state.inputs.economizer in (
+        "none",
+        "fixed_drybulb",
+        "differential_drybulb",
+        "fixed_enthalpy",
+        "differential_enthalpy",
+    )
+
+
+def test_bad_weather_upload_shows_message_and_keeps_everything(dashboard):
+    state = dashboard.state
+    before = state.result
+    text = "hour,drybulb_C,dew_point_C\n1,25.0,12.0\n2,abc,12.0\n3,26.0,40.0\n"
+    upload = dashboard.controls.widgets["weather_upload"]
+    upload.value = upload_value("bad year.csv", text)
+    message = dashboard.controls.messages["climate"].value
+    assert "bad year.csv" in message and "row" in message
+    assert state.result is before
+    assert state.inputs.climate == before.inputs.climate
+
+
+def test_good_weather_upload_becomes_the_climate(dashboard, scenario):
+    weather = load_bundled_climate("Port Calder")
+    table = pd.DataFrame(
+        {
+            "hour": np.arange(1, weather.hours + 1),
+            "drybulb_C": np.round(weather.drybulb, 2),
+            "humidity_ratio_kgkg": np.round(weather.humidity_ratio, 6),
+            "pressure_Pa": np.round(weather.pressure),
+        }
+    )
+    data = table.to_csv(index=False).encode()
+    upload = dashboard.controls.widgets["weather_upload"]
+    upload.value = upload_value("my site.csv", data)
+    state = dashboard.state
+    assert state.inputs.climate == "upload: my site.csv", state.messages["climate"]
+    assert dashboard.controls.widgets["climate"].value == "upload: my site.csv"
+    index = state.inputs.air_handler
+    _, year = model_figures(scenario, index, climate="Port Calder")
+    # the file holds Port Calder rounded to 0.01 K: same year within the rounding
+    assert state.result.figures.cooling_energy == pytest.approx(
+        year["coil_total_kW"].sum(), rel=2e-3
+    )
+
+
+# --------------------------------------------------------------------------- pin A, compare B
+def test_pin_shows_a_beside_b(dashboard):
+    figures_a = dashboard.state.result.figures
+    dashboard.controls.widgets["pin"].click()
+    assert dashboard.state.pinned is not None
+    dashboard.controls.widgets["outdoor_air_fraction"].value = 50.0
+    assert "ps-pinned" in dashboard.figures.value
+    for name in CHARTS:
+        scenarios = {r.get("scenario") for r in chart_rows(dashboard, name)}
+        assert {"A", "B"} <= scenarios, name
+    rows = [r for r in chart_rows(dashboard, "design") if r.get("component") == "Coil load"]
+    by = {r["scenario"]: r["load"] for r in rows}
+    assert by["A"] == pytest.approx(float(tons_from_kw(figures_a.design_coil_load)), rel=1e-6)
+    assert by["B"] > by["A"]
+    dashboard.controls.widgets["unpin"].click()
+    assert dashboard.state.pinned is None
+    assert "ps-pinned" not in dashboard.figures.value
+
+
+# --------------------------------------------------------------------------- exports
+def test_chart_exports_are_valid_stamped_png_and_svg(dashboard):
+    sent = []
+    dashboard.download.send = lambda content, buffers=None: sent.append((content, buffers))
+    dashboard.controls.widgets["outdoor_air_fraction"].value = 35.0
+    name = dashboard.export_chart("design", "png")
+    assert name.endswith("design-coil-load.png")
+    png = bytes(sent[-1][1][0])
+    assert png[:8] == b"\x89PNG\r\n\x1a\n"  # PNG signature (ISO/IEC 15948)
+    width = int.from_bytes(png[16:20], "big")
+    assert width >= 1400, "report resolution"
+    name = dashboard.export_chart("sweep", "svg")
+    svg = bytes(sent[-1][1][0]).decode()
+    assert svg.lstrip().startswith("<svg") and svg.rstrip().endswith("</svg>")
+    assert "outdoor air 35 %" in svg  # the stamp names the inputs
+    assert sent[-1][0]["mime"] == "image/svg+xml"
+
+
+def test_hourly_csv_and_scenario_toml(dashboard, scenario):
+    dashboard.controls.widgets["outdoor_air_fraction"].value = 25.0
+    dashboard.controls.widgets["unit_system"].value = "SI"
+    table = pd.read_csv(io.BytesIO(dashboard.hourly_csv()), comment="#", index_col="hour")
+    assert len(table) == 8760
+    np.testing.assert_allclose(
+        table["coil_total_kW"].to_numpy(),
+        dashboard.state.result.unit.hourly["coil_total_kW"].to_numpy(),
+        rtol=1e-5,
+        atol=1e-6,
+    )
+    text = dashboard.scenario_toml()
+    tomllib.loads(text)
+    again = loads_scenario(text, "saved.toml")
+    index = dashboard.state.inputs.air_handler
+    settings = again.air_handlers[index].settings
+    assert settings.minimum_outdoor_air_fraction == pytest.approx(0.25)
+    assert settings.minimum_outdoor_airflow is None
+    assert str(again.unit_system) == "SI"
+    # and it opens in the dashboard with the same results
+    reopened = Dashboard(again, view="air_handler", air_handler=index)
+    assert reopened.state.result.figures.design_coil_load == pytest.approx(
+        dashboard.state.result.figures.design_coil_load, rel=1e-6
+    )
+
+
+def test_scenario_upload_replaces_the_study_and_refuses_paths(dashboard):
+    good = (
+        dashboard.scenario_toml().replace(dashboard.state.scenario.title, "Uploaded copy").encode()
+    )
+    upload = dashboard.controls.widgets["scenario_upload"]
+    upload.value = upload_value("copy.toml", good)
+    assert dashboard.state.scenario.title == "Uploaded copy"
+    assert "Uploaded copy" in dashboard.header.value
+    evil = (
+        good.decode()
+        .replace(f'climate = "{dashboard.state.inputs.climate}"', 'weather_file = "/etc/passwd"')
+        .encode()
+    )
+    upload.value = upload_value("evil.toml", evil)
+    assert "weather_file" in dashboard.controls.messages["scenario"].value
+    assert dashboard.state.scenario.title == "Uploaded copy"
+    broken = b"title = 'x'\nunit_system = 'SI'\n[[air_handler]]\nsupply_drybulb = 'cold'\n"
+    upload.value = upload_value("broken.toml", broken)
+    assert "broken.toml" in dashboard.controls.messages["scenario"].value
+
+
+# --------------------------------------------------------------------------- the plant view
+def test_plant_view_sums_every_air_handler(scenario):
+    dashboard = Dashboard(scenario, view="plant")
+    result = dashboard.state.result
+    gain = 1 + scenario.distribution_gain_percent / 100  # plant load = (1 + g) x sum of coils
+    total = sum(u.hourly["coil_total_kW"].to_numpy() for u in result.units)
+    np.testing.assert_allclose(result.coil_load, gain * total, rtol=1e-12)
+    assert result.figures.peak_coil_load == pytest.approx(gain * total.max(), rel=1e-12)
+    # moving one air handler's control recomputes only its year
+    dashboard.controls.widgets["outdoor_air_fraction"].value = 35.0
+    assert dashboard.state.last_update["recomputed"] == (dashboard.state.inputs.air_handler,)
+    # the curves reach the coincident peak (load-duration curve starts at the peak hour)
+    curves = [r for r in chart_rows(dashboard, "distribution") if r.get("series") == "Coil load"]
+    peak = max(r["load"] for r in curves)
+    assert peak == pytest.approx(
+        float(tons_from_kw(dashboard.state.result.figures.peak_coil_load)), rel=1e-6
+    )
+
+
+def test_no_chart_carries_the_hourly_year(dashboard):
+    for name in CHARTS:
+        spec = dashboard.charts[name].spec
+        for values in spec.get("datasets", {}).values():
+            assert len(values) < 1000, name
+        assert len(chart_rows(dashboard, name)) < 5000, name
+        assert len(json.dumps(spec)) < 400_000, name
+
+
+def test_all_headline_figures_are_finite(dashboard):
+    figures = dashboard.state.result.figures
+    for value in (
+        figures.design_zone_load,
+        figures.design_coil_load,
+        figures.coil_to_zone_ratio,
+        figures.peak_coil_load,
+        figures.cooling_energy,
+        figures.recommended_capacity,
+    ):
+        assert math.isfinite(value) and value > 0
