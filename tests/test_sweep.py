@@ -11,6 +11,10 @@ import dataclasses
 import io
 import json
 import shutil
+import signal
+import subprocess
+import sys
+import time
 from pathlib import Path
 
 import altair as alt
@@ -485,6 +489,37 @@ def test_command_line_sweep_runs_and_resumes(tmp_path, capsys):
     assert "2/2 cases 100 %" in captured.err  # the progress bar, on stderr
     assert main(["sweep", str(path), "--plan"]) == 0
     assert "2 cases" in capsys.readouterr().out
+
+
+@pytest.mark.skipif(sys.platform == "win32", reason="sends SIGINT to a child process")
+def test_ctrl_c_on_the_command_line_keeps_finished_cases(tmp_path):
+    values = ", ".join(f"{v:.2f}" for v in np.linspace(0.05, 0.6, 20))
+    path = write_sweep(
+        tmp_path, f'climates = ["Linden Vale", "Port Calder"]\n[sweep.axes]\n"{OA}" = [{values}]\n'
+    )
+    out = tmp_path / "out"
+    command = [sys.executable, "-m", "plantside.cli", "sweep", str(path), "--out", str(out)]
+    child = subprocess.Popen(
+        [*command, "--workers", "2", "--batch-size", "1"],
+        stdout=subprocess.PIPE,
+        stderr=subprocess.PIPE,
+        text=True,
+    )
+    deadline = time.monotonic() + 120
+    while time.monotonic() < deadline and child.poll() is None:
+        if any((out / PARTS_FOLDER).glob("part-*.parquet")):
+            break
+        time.sleep(0.05)
+    child.send_signal(signal.SIGINT)
+    _, err = child.communicate(timeout=120)
+    assert child.returncode == 130, err
+    assert "sweep interrupted" in err and "run the same command again" in err
+    assert "Traceback" not in err
+    kept = len(results_table(out, load_sweep(path)))
+    assert 1 <= kept < 40
+    assert json.loads((out / "manifest.json").read_text())["state"] == "interrupted"
+    resumed = run_sweep(load_sweep(path), out, workers=1)
+    assert (resumed.skipped, resumed.computed) == (kept, 40 - kept)
 
 
 def test_progress_bar_text():

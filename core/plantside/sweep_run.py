@@ -239,7 +239,7 @@ def run_batch(sweep: Sweep, cases: Sequence[SweepCase]) -> pd.DataFrame:
             scenario = sweep.scenario_for(case)
             weather = _weather_for(scenario, case.climate.digest)
             result = run_study(scenario, weather)
-        except (PlantsideError, InputRangeError, InputFileError) as error:
+        except (PlantsideError, OSError) as error:  # a bad file, a refused value
             values = ", ".join(
                 f"{a.field} = {'none' if v is None else f'{v:g}'}"
                 for a, v in zip(sweep.axes, case.values, strict=True)
