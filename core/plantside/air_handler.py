@@ -188,12 +188,14 @@ def _frame(settings, weather, result) -> pd.DataFrame:
 
 
 def outdoor_air_sweep(
-    settings: AirHandlerSettings, weather, zone_loads, fractions=None, *, chunk=17
+    settings: AirHandlerSettings, weather, zone_loads, fractions=None, *, chunk=4
 ) -> pd.DataFrame:
     """Annual totals for a range of minimum outdoor-air fractions.
 
     All fractions and hours are computed as 2-D arrays (fractions x hours), a few
-    fractions per block to bound memory.
+    fractions per block: the model is bound by memory traffic, and blocks of about
+    35,000 values keep the working set in cache (measured: 4 fractions per block ran
+    about 1.4 times faster than 17).
 
     Parameters
     ----------
