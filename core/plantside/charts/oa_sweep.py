@@ -17,6 +17,7 @@ import pandas as pd
 from .compare import SCENARIO_COLUMN, SCENARIO_LABELS, has_scenarios, scenario_dash, scenarios_in
 from .frames import axis_title, frame_system, value_format
 from .palette import (
+    BACKGROUND,
     CATEGORY_COLOURS,
     COIL,
     INK,
@@ -80,6 +81,7 @@ def oa_sweep_chart(
         "outdoor_air_percent:Q",
         title="Outdoor air fraction [%]",
         scale=alt.Scale(domain=[0, 100], nice=False),
+        axis=alt.Axis(values=list(range(0, 101, 10))),
     )
     y = alt.Y("load:Q", title=power)
     colour = alt.Color("series:N", title=None, scale=_scale(names))
@@ -125,11 +127,24 @@ def oa_sweep_chart(
             .mark_point(filled=True, size=130, stroke="white", strokeWidth=1.2, opacity=1)
             .encode(x=x, y=y, color=colour, tooltip=encoding["tooltip"])
         )
-        layers.append(
-            alt.Chart(named)
-            .mark_text(align="left", dx=9, dy=-9, fontSize=14, color=INK)
-            .encode(x=x, y=y, text=alt.Text("text:N"))
-        )
+        for halo in (True, False):  # a white halo under the label keeps it clear of the line
+            layers.append(
+                alt.Chart(named)
+                .mark_text(
+                    align="left",
+                    dx=9,
+                    dy=-9,
+                    fontSize=15,
+                    fontWeight="bold",
+                    color=INK,
+                    **(
+                        {"stroke": BACKGROUND, "strokeWidth": 4, "strokeJoin": "round"}
+                        if halo
+                        else {}
+                    ),
+                )
+                .encode(x=x, y=y, text=alt.Text("text:N"))
+            )
         subtitle = _marker_text(marker)
     chart = layered(layers, width=WIDTH, height=400)
     return themed(

@@ -26,6 +26,7 @@ from ..units import to_display
 from .compare import SCENARIO_COLUMN, SCENARIO_LABELS, has_scenarios, scenarios_in
 from .frames import axis_title, frame_system
 from .palette import (
+    BACKGROUND,
     DENSITY_SCHEME,
     INK,
     INK_SOFT,
@@ -155,19 +156,25 @@ def _process_layers(process: pd.DataFrame, x, y, system):
         )
         if not pinned:
             for position, (align, baseline, dx, dy) in _LABEL_POSITIONS.items():
-                layers.append(
-                    base.transform_filter(alt.datum.label_position == position)
-                    .mark_text(
-                        align=align,
-                        baseline=baseline,
-                        dx=dx,
-                        dy=dy,
-                        fontSize=15,
-                        color=INK,
-                        fontWeight="bold",
+                placed = base.transform_filter(alt.datum.label_position == position)
+                for halo in (True, False):  # white halo first: labels stay legible on shading
+                    style = (
+                        {"stroke": BACKGROUND, "strokeWidth": 4, "strokeJoin": "round"}
+                        if halo
+                        else {}
                     )
-                    .encode(x=x, y=y, text=alt.Text("point:N"))
-                )
+                    layers.append(
+                        placed.mark_text(
+                            align=align,
+                            baseline=baseline,
+                            dx=dx,
+                            dy=dy,
+                            fontSize=15,
+                            color=INK,
+                            fontWeight="bold",
+                            **style,
+                        ).encode(x=x, y=y, text=alt.Text("point:N"))
+                    )
     return layers
 
 
