@@ -23,6 +23,7 @@ import pandas as pd
 import pytest
 from plantside.charts.sweep import (
     column_quantity,
+    sweep_charts,
     sweep_heatmap_chart,
     sweep_heatmap_frame,
     sweep_line_chart,
@@ -489,6 +490,15 @@ def test_command_line_sweep_runs_and_resumes(tmp_path, capsys):
     assert "2/2 cases 100 %" in captured.err  # the progress bar, on stderr
     assert main(["sweep", str(path), "--plan"]) == 0
     assert "2 cases" in capsys.readouterr().out
+    # the charts of a finished sweep, as PNG and SVG
+    assert main(["sweep", str(path), "--out", str(out), "--charts", "--quiet"]) == 0
+    charts = sorted(p.name for p in (out / "charts").iterdir())
+    assert charts == [
+        "sweep_coil_load_1.png",
+        "sweep_coil_load_1.svg",
+        "sweep_plant_capacity.png",
+        "sweep_plant_capacity.svg",
+    ]
 
 
 @pytest.mark.skipif(sys.platform == "win32", reason="sends SIGINT to a child process")
@@ -594,6 +604,32 @@ def test_charts_refuse_several_cases_per_point(clinic_table):
     assert len(frame) == 6
     with pytest.raises(InputRangeError, match="no column 'nope'"):
         sweep_line_frame(clinic_table, x, "nope")
+
+
+def test_standard_sweep_charts(clinic_table):
+    oa = "air_handler[2].minimum_outdoor_air_fraction"
+    charts = sweep_charts(clinic_table, [oa], system="IP")
+    assert sorted(charts) == [
+        "sweep_coil_load_1",
+        "sweep_plant_capacity",
+        "sweep_plant_capacity_map",
+    ]
+    for chart in charts.values():
+        spec = chart.to_dict()  # validates against the Vega-Lite schema
+        assert json.loads(json.dumps(spec)) == spec
+    # a second axis is held at its first value, and the subtitle says so
+    doubled = pd.concat(
+        [clinic_table.assign(**{"plant.cooling_margin_percent": m}) for m in (5.0, 15.0)]
+    )
+    charts = sweep_charts(doubled, [oa, "plant.cooling_margin_percent"])
+    subtitle = charts["sweep_plant_capacity"].to_dict()["title"]["subtitle"]
+    assert "Other axes held at: Cooling margin percent (plant) = 5" in subtitle[1]
+    cells = charts["sweep_plant_capacity_map"].data  # 3 fractions x 2 margins, first climate
+    assert len(cells) == 6 and set(cells["y"]) == {"5", "15"}
+    assert (
+        "Climate = Salvia Flats"
+        in charts["sweep_plant_capacity_map"].to_dict()["title"]["subtitle"][1]
+    )
 
 
 def test_column_quantities_follow_the_unit_suffix():

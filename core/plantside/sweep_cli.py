@@ -3,7 +3,7 @@
 ::
 
     plantside sweep SWEEP.toml --out DIR [--workers N | --scheduler ADDRESS]
-                    [--batch-size N] [--restart] [--plan] [--quiet] [--json]
+                    [--batch-size N] [--restart] [--plan] [--charts] [--quiet] [--json]
 
 Runs on all local cores by default; ``--scheduler tcp://host:8786`` runs on a Dask
 cluster. Finished cases are written as they finish; Ctrl-C keeps them (exit 130) and
@@ -133,6 +133,9 @@ def cmd_sweep(args) -> int:
     except SweepInterruptedError as stopped:
         print(f"\nplantside: {stopped}", file=sys.stderr)
         return EXIT_INTERRUPTED
+    written = list(run.files)
+    if args.charts:
+        written += _write_charts(sweep, run.table, Path(args.out) / "charts")
     if args.json:
         print(
             json.dumps(
@@ -141,7 +144,7 @@ def cmd_sweep(args) -> int:
                     "computed": run.computed,
                     "skipped_already_done": run.skipped,
                     "seconds": round(run.seconds, 3),
-                    "written": [str(p) for p in run.files],
+                    "written": [str(p) for p in written],
                 },
                 indent=2,
             )
@@ -151,9 +154,21 @@ def cmd_sweep(args) -> int:
             f"{run.computed} case(s) computed, {run.skipped} already done, "
             f"{run.total} in all ({run.seconds:.1f} s)"
         )
-        for path in run.files:
+        for path in written:
             print(path)
     return EXIT_OK
+
+
+def _write_charts(sweep, table, folder: Path) -> list[Path]:
+    """The sweep's standard charts as PNG and SVG, in the base scenario's units."""
+    from .charts.export import save_chart
+    from .charts.sweep import sweep_charts
+
+    charts = sweep_charts(table, [a.column for a in sweep.axes], system=sweep.base.unit_system)
+    written = []
+    for name, chart in charts.items():
+        written += save_chart(chart, folder, name, formats=("png", "svg"), stamp=sweep.title)
+    return written
 
 
 def add_sweep_parser(subparsers) -> None:
@@ -182,6 +197,9 @@ def add_sweep_parser(subparsers) -> None:
     )
     sweep.add_argument(
         "--plan", action="store_true", help="show the climates, axes and case count; run nothing"
+    )
+    sweep.add_argument(
+        "--charts", action="store_true", help="also write the sweep charts (PNG, SVG) in DIR/charts"
     )
     sweep.add_argument("--quiet", action="store_true", help="no progress bar")
     sweep.add_argument("--json", action="store_true", help="machine-readable summary")

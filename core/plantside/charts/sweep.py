@@ -33,6 +33,7 @@ from .palette import CATEGORY_COLOURS, DENSITY_SCHEME, INK, WIDTH, themed
 __all__ = [
     "column_label",
     "column_quantity",
+    "sweep_charts",
     "sweep_heatmap_chart",
     "sweep_heatmap_frame",
     "sweep_line_chart",
@@ -441,3 +442,85 @@ def sweep_heatmap_chart(frame: pd.DataFrame, *, title: str | None = None, subtit
             f"{attrs['y_title'].split(' [')[0].lower()}; one case per cell"
         )
     return themed(chart, title=title, subtitle=subtitle)
+
+
+# ---------------------------------------------------------------------------------------
+# the standard set for a finished sweep
+# ---------------------------------------------------------------------------------------
+def _first_values(table: pd.DataFrame, columns) -> dict:
+    return {c: table[c].iloc[0] for c in columns}
+
+
+def _fixed_note(where: Mapping, system: UnitSystem) -> str | None:
+    if not where:
+        return None
+    shown = []
+    for column, value in where.items():
+        quantity = column_quantity(column)
+        if quantity is not None:
+            value = float(to_display(quantity, value, system)[0])
+            shown.append(f"{column_label(column)} = {value:.4g} {unit_label(quantity, system)}")
+        else:
+            shown.append(
+                f"{column_label(column)} = {value:.4g}"
+                if isinstance(value, float)
+                else f"{column_label(column)} = {value}"
+            )
+    return "Other axes held at: " + "; ".join(shown)
+
+
+def sweep_charts(table: pd.DataFrame, axis_columns, *, system="SI") -> dict:
+    """The sweep's standard charts, by file name: each air handler's design coil load and
+    the cooling plant's design capacity against the first axis (one line per climate),
+    and a heat map of the capacity over the first two axes (or the first axis and the
+    climate). Other axes are held at their first value, as the subtitle says.
+
+    Parameters
+    ----------
+    table : pandas.DataFrame
+        The sweep table (:func:`plantside.sweep_run.results_table`).
+    axis_columns : sequence of str
+        The axis columns of the table, in the sweep's order (``SweepAxis.column``).
+    system : {"SI", "IP"}
+        Display units.
+
+    Returns
+    -------
+    dict
+        File name (without extension) -> chart; empty if the table is empty.
+    """
+    system = UnitSystem.parse(system)
+    axes = [c for c in axis_columns if c in table.columns]
+    charts = {}
+    if table.empty:
+        return charts
+    climates = table["climate"].nunique() > 1
+    if axes:
+        x, others = axes[0], axes[1:]
+        where = _first_values(table, others)
+        loads = [c for c in table.columns if c.startswith("design_coil_total_kW[")]
+        for index, y in enumerate([*loads, "cooling_design_capacity_kW"]):
+            frame = sweep_line_frame(table, x, y, system=system, where=where)
+            subtitle = ["One line per climate"]
+            if where:
+                subtitle.append(_fixed_note(where, system))
+            name = f"coil_load_{index + 1}" if y in loads else "plant_capacity"
+            charts[f"sweep_{name}"] = sweep_line_chart(frame, subtitle=subtitle)
+    pair = None
+    if len(axes) >= 2:
+        pair = (axes[0], axes[1])
+    elif axes and climates:
+        pair = (axes[0], "climate")
+    if pair is not None:
+        rest = [c for c in axes if c not in pair]
+        where = _first_values(
+            table, rest + ([] if "climate" in pair or not climates else ["climate"])
+        )
+        frame = sweep_heatmap_frame(
+            table, pair[0], pair[1], "cooling_design_capacity_kW", system=system, where=where
+        )
+        note = _fixed_note(where, system)
+        charts["sweep_plant_capacity_map"] = sweep_heatmap_chart(
+            frame, subtitle=[s for s in ("One case per cell", note) if s]
+        )
+    return charts
