@@ -35,7 +35,7 @@ import tomllib
 import types
 import typing
 from dataclasses import dataclass, fields, replace
-from functools import cached_property
+from functools import cached_property, lru_cache
 from itertools import product
 from pathlib import Path
 
@@ -250,8 +250,8 @@ class Sweep:
     @cached_property
     def fingerprint(self) -> str:
         """Hash of what every case shares: the base scenario (less what the axes vary)
-        and its input files, and the plantside version. Results computed under another
-        fingerprint are not reused."""
+        and its input files, the plantside version and the model's source. Results
+        computed under another fingerprint are not reused."""
         data = scenario_to_dict(self.base)
         if not self.climates[0].is_base:
             for key in ("climate", "weather_file", "weather_units"):
@@ -263,7 +263,7 @@ class Sweep:
             if spec.zone_load_file:
                 path = _resolved(self.base, spec.zone_load_file)
                 files.append(f"{index}:{_file_digest(path)}")
-        text = json.dumps([__version__, data, files], sort_keys=True, default=str)
+        text = json.dumps([__version__, _model_digest(), data, files], sort_keys=True, default=str)
         return hashlib.sha256(text.encode("utf-8")).hexdigest()[:20]
 
     def describe(self) -> str:
@@ -338,6 +338,21 @@ def _file_digest(path: Path) -> str:
     with open(path, "rb") as handle:
         for block in iter(lambda: handle.read(1 << 20), b""):
             digest.update(block)
+    return digest.hexdigest()[:20]
+
+
+@lru_cache(maxsize=1)
+def _model_digest() -> str:
+    """Hash of the model's source (every module but the charts, dashboard and command
+    line), so results computed by an edited model are not taken for current ones."""
+    package = Path(__file__).parent
+    digest = hashlib.sha256()
+    for path in sorted(package.rglob("*.py")):
+        relative = path.relative_to(package).as_posix()
+        if relative.startswith(("charts/", "dashboard/")) or "cli" in path.stem:
+            continue
+        digest.update(relative.encode("utf-8"))
+        digest.update(path.read_bytes())
     return digest.hexdigest()[:20]
 
 

@@ -319,7 +319,7 @@ class _Folder:
                     str(manifest),
                     [
                         "this folder holds results of another sweep (its base scenario, "
-                        "input files or plantside version differ); choose another output "
+                        "input files or the plantside model differ); choose another output "
                         "folder, or restart to discard them"
                     ],
                 )
