@@ -30,6 +30,7 @@ import difflib
 import hashlib
 import json
 import math
+import os
 import re
 import tomllib
 import types
@@ -784,7 +785,7 @@ def loads_sweep(text: str, source: str = "<sweep>", base_dir=None) -> Sweep:
             raise ScenarioError(source, "sweep.base", f"expected a file name, got {base_name!r}")
         path = Path(base_name)
         if not path.is_absolute():
-            path = base_dir / path
+            path = Path(os.path.normpath(base_dir / path))
         if not path.is_file():
             raise ScenarioError(
                 source, "sweep.base", f"file {base_name!r} not found (looked in {path.parent})"
