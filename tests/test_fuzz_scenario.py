@@ -18,6 +18,7 @@ never any other exception. The number of cases run is printed at the end of the 
 from __future__ import annotations
 
 import math
+import os
 import re
 import tomllib
 import traceback
@@ -37,6 +38,15 @@ EXAMPLES = sorted(SCENARIOS.glob("*.toml"))
 BASES = {path.name: tomllib.loads(path.read_text(encoding="utf-8")) for path in EXAMPLES}
 
 OUTCOMES: Counter = Counter()
+
+#: Multiplies every max_examples here (default 1; e.g. PLANTSIDE_FUZZ_SCALE=20 for a long
+#: hunt by hand; CI keeps the default so the three fuzz files stay under a minute).
+FUZZ_SCALE = float(os.environ.get("PLANTSIDE_FUZZ_SCALE", "1"))
+
+
+def _examples(count: int) -> int:
+    return max(1, round(count * FUZZ_SCALE))
+
 
 #: Defects found here, reported in /work/notes/robustness.md: (exception type, plantside
 #: function in the traceback, text of its line) -> id. Counted, not failed, while unfixed;
@@ -268,7 +278,7 @@ def test_the_examples_load():
         assert isinstance(judge(lambda p=path: load_scenario(p), str(path)), Scenario)
 
 
-@settings(max_examples=200, deadline=None, suppress_health_check=[HealthCheck.too_slow])
+@settings(max_examples=_examples(200), deadline=None, suppress_health_check=[HealthCheck.too_slow])
 @given(mutated_documents())
 def test_mutated_scenarios_load_or_fail_with_a_field(case):
     name, document = case
@@ -279,7 +289,7 @@ def test_mutated_scenarios_load_or_fail_with_a_field(case):
     judge(lambda: loads_scenario(text, name, SCENARIOS), name)
 
 
-@settings(max_examples=120, deadline=None, suppress_health_check=[HealthCheck.too_slow])
+@settings(max_examples=_examples(120), deadline=None, suppress_health_check=[HealthCheck.too_slow])
 @given(
     path=st.sampled_from(EXAMPLES),
     damage=st.sampled_from(["none", "truncate", "junk", "crlf", "bom", "replace"]),
@@ -318,7 +328,7 @@ def test_damaged_scenario_files_load_or_fail_with_a_field(
     judge(lambda: load_scenario(target), str(target))
 
 
-@settings(max_examples=100, deadline=None)
+@settings(max_examples=_examples(100), deadline=None)
 @given(st.text(max_size=400))
 def test_arbitrary_text_never_raises_anything_else(text):
     judge(lambda: loads_scenario(text, "upload.toml", SCENARIOS), "upload.toml")

@@ -23,6 +23,7 @@ spans 54 kPa at 5,000 m to 101.325 kPa at sea level; project rule rounded out).
 from __future__ import annotations
 
 import math
+import os
 import re
 import traceback
 from collections import Counter
@@ -41,6 +42,15 @@ BUNDLED = Path(__file__).parents[1] / "core" / "plantside" / "data" / "linden_va
 
 #: Cases run per outcome; printed at the end of the module.
 OUTCOMES: Counter = Counter()
+
+#: Multiplies every max_examples here (default 1; e.g. PLANTSIDE_FUZZ_SCALE=20 for a long
+#: hunt by hand; CI keeps the default so the three fuzz files stay under a minute).
+FUZZ_SCALE = float(os.environ.get("PLANTSIDE_FUZZ_SCALE", "1"))
+
+
+def _examples(count: int) -> int:
+    return max(1, round(count * FUZZ_SCALE))
+
 
 # Text a person or a spreadsheet might leave in a number cell, including formula-
 # injection and path-like strings (they must be read as text, never acted on).
@@ -435,14 +445,14 @@ def test_the_unmutated_bases_load():
         assert weather.hours == 48
 
 
-@settings(max_examples=200, deadline=None, suppress_health_check=[HealthCheck.too_slow])
+@settings(max_examples=_examples(200), deadline=None, suppress_health_check=[HealthCheck.too_slow])
 @given(file_bytes(mutated_tables()))
 def test_mutated_two_day_files_load_or_fail_cleanly(case):
     data, kwargs = case
     read_and_judge(data, kwargs)
 
 
-@settings(max_examples=60, deadline=None, suppress_health_check=[HealthCheck.too_slow])
+@settings(max_examples=_examples(60), deadline=None, suppress_health_check=[HealthCheck.too_slow])
 @given(
     file_bytes(
         mutated_tables(
@@ -456,13 +466,13 @@ def test_mutated_bundled_file_loads_or_fails_cleanly(case):
     read_and_judge(data, kwargs)
 
 
-@settings(max_examples=150, deadline=None)
+@settings(max_examples=_examples(150), deadline=None)
 @given(st.binary(max_size=2048))
 def test_arbitrary_bytes_never_raise_anything_else(data):
     read_and_judge(data, {"altitude": 0.0})
 
 
-@settings(max_examples=100, deadline=None)
+@settings(max_examples=_examples(100), deadline=None)
 @given(
     st.text(alphabet=st.sampled_from(list('0123456789.,;-+eE \t\r\n"#abcCF%()_'))), st.booleans()
 )
@@ -480,7 +490,7 @@ def _same_year(a, b):
     )
 
 
-@settings(max_examples=80, deadline=None)
+@settings(max_examples=_examples(80), deadline=None)
 @given(
     st.sampled_from(range(len(BASES))),
     st.permutations(range(4)),
@@ -507,7 +517,7 @@ def test_meaning_preserving_changes_give_the_same_year(index, order, newline, en
     assert _same_year(weather, reference)
 
 
-@settings(max_examples=80, deadline=None)
+@settings(max_examples=_examples(80), deadline=None)
 @given(
     st.sampled_from(range(len(BASES))),
     st.data(),

@@ -20,6 +20,7 @@ from __future__ import annotations
 
 import csv
 import math
+import os
 import re
 import traceback
 from collections import Counter
@@ -38,6 +39,15 @@ EXAMPLE = Path(__file__).parents[1] / "example_data" / "scenarios" / "korva_scho
 HOURS = 48
 
 OUTCOMES: Counter = Counter()
+
+#: Multiplies every max_examples here (default 1; e.g. PLANTSIDE_FUZZ_SCALE=20 for a long
+#: hunt by hand; CI keeps the default so the three fuzz files stay under a minute).
+FUZZ_SCALE = float(os.environ.get("PLANTSIDE_FUZZ_SCALE", "1"))
+
+
+def _examples(count: int) -> int:
+    return max(1, round(count * FUZZ_SCALE))
+
 
 JUNK_CELLS = [
     "abc",
@@ -378,14 +388,14 @@ def test_the_unmutated_bases_load():
     np.testing.assert_array_equal(ip.occupied, si.occupied)
 
 
-@settings(max_examples=200, deadline=None, suppress_health_check=[HealthCheck.too_slow])
+@settings(max_examples=_examples(200), deadline=None, suppress_health_check=[HealthCheck.too_slow])
 @given(file_bytes(mutated_tables()))
 def test_mutated_files_load_or_fail_cleanly(case):
     data, kwargs = case
     read_and_judge(data, kwargs)
 
 
-@settings(max_examples=30, deadline=None, suppress_health_check=[HealthCheck.too_slow])
+@settings(max_examples=_examples(30), deadline=None, suppress_health_check=[HealthCheck.too_slow])
 @given(file_bytes(mutated_tables(base=EXAMPLE_TABLE)))
 def test_mutated_example_year_loads_or_fails_cleanly(case):
     # The bundled example (a full year, 8,760 rows) mutated the same way.
@@ -393,13 +403,13 @@ def test_mutated_example_year_loads_or_fails_cleanly(case):
     read_and_judge(data, kwargs)
 
 
-@settings(max_examples=120, deadline=None)
+@settings(max_examples=_examples(120), deadline=None)
 @given(st.binary(max_size=2048), st.sampled_from([None, 1, 24, 8760]))
 def test_arbitrary_bytes_never_raise_anything_else(data, hours):
     read_and_judge(data, {"expected_hours": hours})
 
 
-@settings(max_examples=80, deadline=None)
+@settings(max_examples=_examples(80), deadline=None)
 @given(
     st.text(alphabet=st.sampled_from(list('0123456789.,;-+eE \t\r\n"#kWsensibllatntBuh_[]'))),
     st.sampled_from([None, 1, 2, 3]),
@@ -408,7 +418,7 @@ def test_csv_like_text_never_raises_anything_else(text, hours):
     read_and_judge(text.encode("utf-8"), {"expected_hours": hours, "units": "SI"})
 
 
-@settings(max_examples=60, deadline=None)
+@settings(max_examples=_examples(60), deadline=None)
 @given(
     st.sampled_from(range(len(BASES))),
     st.data(),
@@ -434,7 +444,7 @@ def test_meaning_preserving_changes_give_the_same_loads(index, data, newline, en
         np.testing.assert_array_equal(getattr(loads, name), getattr(reference, name))
 
 
-@settings(max_examples=80, deadline=None)
+@settings(max_examples=_examples(80), deadline=None)
 @given(
     st.sampled_from(range(len(BASES))),
     st.data(),

@@ -339,12 +339,8 @@ def test_there_is_no_ventilation_floor_setting_to_refuse_against():
 
 
 # ---------------------------------------------------------------------------------------
-# clear messages: exclusive bounds and wrong types (defects reported)
+# clear messages: exclusive bounds (E1, fixed in b60000d) and wrong types (A1, reported)
 # ---------------------------------------------------------------------------------------
-@pytest.mark.xfail(
-    strict=True,
-    reason="defect: E1 exclusive bounds stated as inclusive in check_range messages (reported)",
-)
 def test_exclusive_bounds_are_stated_as_exclusive():
     # 'supply_airflow = 0 m³/s is outside the allowed range 0 to 500 m³/s' reads as if 0
     # were allowed. The message must say the bound is excluded.
