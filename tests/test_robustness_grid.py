@@ -27,8 +27,9 @@ For every combination:
   of the gross flows (/work/notes/CONTRACT_air_handler.md; the model states < 1e-6);
 - the dashboard's headline figures are finite: design zone load, design coil load, their
   ratio, annual peak coil load, cooling energy, hours above 75 % of the recommended
-  capacity (the definitions of ``plantside.dashboard.state.DashboardState._figures``,
-  evaluated for all five fractions at once at the three cooling design conditions);
+  capacity (the definitions of ``plantside.dashboard.state.DashboardState._assemble``,
+  evaluated for all five fractions at once at the three cooling design conditions; a
+  second test drives the dashboard's own state object to every control's ends);
   where the design coil would need an apparatus dew point below what it can produce the
   design point must be refused (``InputRangeError`` naming ``apparatus_dew_point``),
   which the dashboard shows as a message.
@@ -44,6 +45,7 @@ import itertools
 from collections import Counter
 from dataclasses import replace
 from functools import lru_cache
+from pathlib import Path
 
 import numpy as np
 import pytest
@@ -124,7 +126,9 @@ def _print_counts(request):
         f"({COUNTS['settings']} settings x {OUTDOOR_AIR_FRACTIONS.size} outdoor-air fractions, "
         f"{COUNTS['hours']:,} air-handler hours); design points refused for an apparatus dew "
         f"point below the coil's limit: {COUNTS['design refused (ADP)']}; cross-checked "
-        f"against cooling_design_points: {COUNTS['cross-checked']}"
+        f"against cooling_design_points: {COUNTS['cross-checked']}; dashboard state changes: "
+        f"{COUNTS['dashboard changes']} ({COUNTS['dashboard changes refused with a message']} "
+        f"refused with a message)"
     )
     print(line)
     capture = request.config.pluginmanager.getplugin("capturemanager")
@@ -250,7 +254,7 @@ def _headline(settings, r_year, design, where):
             design_coil, design_zone, out=np.full(k, np.nan), where=design_zone > 0
         ),
         "annual peak coil load": hourly.max(axis=1),
-        "cooling energy": hourly.sum(axis=1),
+        "cooling energy": np.maximum(hourly, 0.0).sum(axis=1),
         "hours above 75 %": np.count_nonzero(
             hourly > PART_LOAD_THRESHOLD * capacity[:, None], axis=1
         ).astype(float),
@@ -385,3 +389,62 @@ def test_the_grid_checks_can_fail():
 
     _, _, found = _headline(settings, {"coil_total_kW": np.full((5, 8760), np.inf)}, design, "x")
     assert any("annual peak" in p for p in found)
+
+
+@pytest.mark.parametrize("climate", BUNDLED_CLIMATES)
+def test_dashboard_headline_figures_stay_finite_at_every_control_end(climate):
+    # The dashboard's own state object (no browser): each control set to each end of its
+    # range in turn, one after the other (so the ends combine). Every accepted change
+    # shows finite headline figures; a refused one keeps the last valid (finite) figures
+    # and puts a message beside a control.
+    from plantside.dashboard.state import DashboardState
+    from plantside.scenario import loads_scenario
+
+    # The SI example without its supply reset (16 °C) and with preheat at 4 °C, so that the
+    # dashboard's whole supply range is open to the model (see D1 in
+    # /work/notes/robustness.md for the example as it is).
+    path = Path(__file__).parents[1] / "example_data" / "scenarios" / "linden_office_si.toml"
+    text = path.read_text(encoding="utf-8")
+    text = "\n".join(line for line in text.splitlines() if "supply_reset" not in line)
+    text = text.replace("bypass_factor = 0.12", "bypass_factor = 0.12\npreheat_drybulb = 4.0")
+    assert "preheat_drybulb = 4.0" in text
+    state = DashboardState(loads_scenario(text, "grid.toml", path.parent))
+    assert state.set("climate", climate), state.messages
+    low, high = state.supply_temperature_range()
+    bypass_low, bypass_high = state.bypass_factor_range()
+    changes = [
+        ("outdoor_air_fraction", 0.0),
+        ("outdoor_air_fraction", 1.0),
+        ("supply_air_temperature", high),
+        ("bypass_factor", bypass_high),
+        ("fan_control", "constant_volume"),
+        ("economizer", "differential_enthalpy"),
+        ("economizer_integrated", False),
+        ("outdoor_air_fraction", 0.0),
+        ("supply_air_temperature", low),
+        ("bypass_factor", bypass_low),
+        ("economizer", "fixed_enthalpy"),
+        ("fan_control", "variable_volume"),
+        ("economizer", "none"),
+        ("design_percent", 2.0),
+        ("supply_air_temperature", low),
+        ("bypass_factor", bypass_high),
+    ]
+    for control, value in changes:
+        ok = state.set(control, value)
+        figures = state.result.figures
+        numbers = {
+            "design zone load": figures.design_zone_load,
+            "design coil load": figures.design_coil_load,
+            "ratio": figures.coil_to_zone_ratio,
+            "annual peak": figures.peak_coil_load,
+            "cooling energy": figures.cooling_energy,
+            "hours above 75 %": figures.hours_above_threshold,
+            "recommended capacity": figures.recommended_capacity,
+        }
+        bad = {k: v for k, v in numbers.items() if not np.isfinite(v)}
+        assert not bad, f"{climate}: {control} = {value!r} shows {bad}"
+        if not ok:
+            assert any(state.messages.values()), f"{climate}: {control} refused silently"
+            COUNTS["dashboard changes refused with a message"] += 1
+        COUNTS["dashboard changes"] += 1
