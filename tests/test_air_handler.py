@@ -43,7 +43,17 @@ from plantside.constants import M3S_PER_CFM, STANDARD_AIR_DENSITY, W_PER_BTUH
 from plantside.errors import InputRangeError
 from plantside.zone_loads import HourlyZoneLoads, ZoneLoadModel, zone_loads_for_weather
 
-psychrolib.SetUnitSystem(psychrolib.SI)
+
+@pytest.fixture(autouse=True)
+def _psychrolib_in_si():
+    """psychrolib's unit system is global; other test modules may leave it in IP."""
+    previous = psychrolib.GetUnitSystem()
+    psychrolib.SetUnitSystem(psychrolib.SI)
+    yield
+    if previous is not None:
+        psychrolib.SetUnitSystem(previous)
+
+
 P = 101325.0  # Pa, ASHRAE 2017 Ch. 1 Table 1
 
 ZONE = ZoneLoadModel(
@@ -410,6 +420,10 @@ def test_fan_off_hours(years):
 
 def test_bad_hourly_inputs():
     loads = HourlyZoneLoads(sensible=[10.0, 10.0], latent=1.0)
+    # the weather importer's range (-70 to 60 °C) is the model's range too
+    air_handler_hours(VAV, [-70.0, 60.0], [0.0, 0.02], P, loads)
+    with pytest.raises(InputRangeError, match="outdoor_drybulb"):
+        air_handler_hours(VAV, [-71.0, 10.0], [0.0, 0.002], P, loads)
     with pytest.raises(InputRangeError, match="outdoor_humidity_ratio"):
         air_handler_hours(VAV, [10.0, 10.0], [0.002, 0.05], P, loads)
     with pytest.raises(InputRangeError, match="zone_loads"):

@@ -27,7 +27,17 @@ from plantside.design_conditions import design_conditions_from_weather
 from plantside.errors import InputRangeError
 from plantside.zone_loads import ZoneLoadModel
 
-psychrolib.SetUnitSystem(psychrolib.SI)
+
+@pytest.fixture(autouse=True)
+def _psychrolib_in_si():
+    """psychrolib's unit system is global; other test modules may leave it in IP."""
+    previous = psychrolib.GetUnitSystem()
+    psychrolib.SetUnitSystem(psychrolib.SI)
+    yield
+    if previous is not None:
+        psychrolib.SetUnitSystem(previous)
+
+
 P = 101325.0  # Pa, ASHRAE 2017 Ch. 1 Table 1
 
 ZONE = ZoneLoadModel(
@@ -193,3 +203,37 @@ def test_apparatus_dew_point_the_coil_cannot_produce():
         design_point(unit, (10.0, 2.0), (40.0, 0.02, P))
     assert info.value.field == "apparatus_dew_point"
     assert "at least 3 °C" in str(info.value)
+
+
+@pytest.mark.parametrize("value", ["5", True, None])
+def test_numbers_must_be_numbers(value):
+    # A number field given as text or true/false is refused where it enters.
+    with pytest.raises(InputRangeError) as info:
+        replace(VAV, supply_airflow=value)
+    assert info.value.field == "supply_airflow"
+    with pytest.raises(InputRangeError) as info:
+        replace(VAV, all_outdoor_air="yes")
+    assert info.value.field == "all_outdoor_air"
+    with pytest.raises(InputRangeError) as info:
+        replace(ZONE, cooling_design_sensible="60")
+    assert info.value.field == "cooling_design_sensible"
+
+
+@pytest.mark.parametrize(
+    ("changes", "field", "allowed"),
+    [
+        # VAV at 30 % of 5 m³/s = 1.5 m³/s; 20 % of it is 0.3 m³/s of outdoor air
+        ({}, "minimum_outdoor_air_fraction", "at least 0.333"),
+        ({"minimum_outdoor_airflow": 0.4}, "minimum_outdoor_airflow", "at least 0.5 m³/s"),
+        ({"all_outdoor_air": True, "minimum_airflow_fraction": 0.05}, "minimum_airflow_fraction",
+         "at least 0.1"),
+    ],
+)  # fmt: skip
+def test_outdoor_air_below_the_ventilation_need_is_refused(changes, field, allowed):
+    with pytest.raises(InputRangeError) as info:
+        replace(VAV, ventilation_airflow_required=0.5, **changes)
+    assert info.value.field == field
+    assert allowed in str(info.value) and "ventilation" in str(info.value)
+    # enough outdoor air at the lowest airflow: accepted
+    replace(VAV, ventilation_airflow_required=0.5, minimum_outdoor_air_fraction=0.34)
+    replace(VAV, ventilation_airflow_required=0.5, minimum_outdoor_airflow=0.5)

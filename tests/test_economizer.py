@@ -35,6 +35,16 @@ from plantside.zone_loads import HourlyZoneLoads, ZoneLoadModel
 P = 101325.0  # Pa, ASHRAE 2017 Ch. 1 Table 1
 
 
+@pytest.fixture(autouse=True)
+def _psychrolib_in_si():
+    """psychrolib's unit system is global; other test modules may leave it in IP."""
+    previous = psychrolib.GetUnitSystem()
+    psychrolib.SetUnitSystem(psychrolib.SI)
+    yield
+    if previous is not None:
+        psychrolib.SetUnitSystem(previous)
+
+
 def _w_for_enthalpy(t, h):
     return ma.humidity_ratio_from_enthalpy(t, h)
 
@@ -51,11 +61,9 @@ def test_enthalpy_limit_conversion_with_psychrolib():
     # psychrolib in IP (0 °F dry-air reference) and SI (0 °C reference) for the same state:
     # the SI value of an IP enthalpy follows from enthalpy_si_from_ip_table.
     w = 0.0095
-    try:
-        psychrolib.SetUnitSystem(psychrolib.IP)
-        h_ip = psychrolib.GetMoistAirEnthalpy(75.0, w)  # Btu/lb
-    finally:
-        psychrolib.SetUnitSystem(psychrolib.SI)
+    psychrolib.SetUnitSystem(psychrolib.IP)  # the autouse fixture restores the system
+    h_ip = psychrolib.GetMoistAirEnthalpy(75.0, w)  # Btu/lb
+    psychrolib.SetUnitSystem(psychrolib.SI)
     h_si = psychrolib.GetMoistAirEnthalpy((75.0 - 32.0) / 1.8, w) / 1000.0
     # The IP and SI forms of Eq. 32 use 0.240 Btu/(lb °F) and 1.006 kJ/(kg K) for dry air,
     # 0.12 % apart: about 0.03 kJ/kg at 24 °C.

@@ -30,7 +30,17 @@ from plantside.errors import InputRangeError
 from plantside.mixing import mixed_state
 from plantside.zone_loads import ZoneLoadModel
 
-psychrolib.SetUnitSystem(psychrolib.SI)
+
+@pytest.fixture(autouse=True)
+def _psychrolib_in_si():
+    """psychrolib's unit system is global; other test modules may leave it in IP."""
+    previous = psychrolib.GetUnitSystem()
+    psychrolib.SetUnitSystem(psychrolib.SI)
+    yield
+    if previous is not None:
+        psychrolib.SetUnitSystem(previous)
+
+
 P = 101325.0  # Pa, ASHRAE 2017 Ch. 1 Table 1
 
 

@@ -109,3 +109,37 @@ def test_missing_column_unit_and_length():
         read_zone_loads_csv(_csv("sensible_kW,latent_kW,occupied", [(1, 2, "maybe")] * 8760))
     with pytest.raises(InputFileError, match="internal"):
         read_zone_loads_csv(_csv("sensible_kW,latent_kW,internal_kW", [(1, 2, -3)] * 8760))
+
+
+def test_file_problems_are_input_file_errors(tmp_path):
+    # A missing path, a folder, content over max_bytes (any source kind), a field too long
+    # for CSV, a binary file: each an InputFileError naming the problem, never a traceback.
+    with pytest.raises(InputFileError, match=r"no file 'missing\.csv'"):
+        read_zone_loads_csv(tmp_path / "missing.csv")
+    with pytest.raises(InputFileError, match="folder"):
+        read_zone_loads_csv(tmp_path)
+    data = b"sensible_kW,latent_kW\n" + b"10,1\n" * 100
+    for source in (data, data.decode(), io.BytesIO(data)):
+        with pytest.raises(InputFileError, match="100"):
+            read_zone_loads_csv(source, max_bytes=100, expected_hours=100)
+    with pytest.raises(InputFileError, match="row 2: cannot be read as CSV"):
+        read_zone_loads_csv(b"sensible_kW,latent_kW\n" + b"1" * 200_000 + b",1\n", expected_hours=1)
+    with pytest.raises(InputFileError, match="NUL bytes"):
+        read_zone_loads_csv(b"sensible_kW,latent_kW\n1,\x002\n", expected_hours=1)
+
+
+def test_utf16_file_is_read():
+    # Spreadsheet "Unicode text" export: UTF-16 with a byte-order mark.
+    text = "sensible_kW\tlatent_kW\n" + "2,5\t1\n" * 24
+    loads = read_zone_loads_csv(text.encode("utf-16"), expected_hours=24)
+    np.testing.assert_allclose(loads.sensible, 2.5)
+
+
+def test_too_many_rows_refused_before_parsing():
+    import time
+
+    data = b"sensible_kW,latent_kW\n" + b"10,1\n" * 200_000
+    start = time.perf_counter()
+    with pytest.raises(InputFileError, match="200000 data rows"):
+        read_zone_loads_csv(data)
+    assert time.perf_counter() - start < 2.0  # counted, not parsed (generous on shared CI)

@@ -111,13 +111,14 @@ def hourly_cautions(settings: AirHandlerSettings, result) -> list[str]:
             "discomfort and mould. Check the coil leaving dew point, latent loads and outdoor air."
         )
     unmet = np.asarray(result["zone_sensible_unmet_kW"], dtype=float)
-    warm = operating & (unmet > 0)
+    # shortfalls under 0.05 kW (a fraction of a percent of any zone load) are not flagged
+    warm = operating & (unmet > 0.05)
     if np.any(warm):
         cautions.append(
             f"In {int(warm.sum())} hours the zone cooling load exceeds what the design airflow at "
             f"the supply set point removes (up to {np.max(unmet[warm]):.1f} kW unmet)."
         )
-    cold = operating & (unmet < 0)
+    cold = operating & (unmet < -0.05)
     if np.any(cold):
         cautions.append(
             f"In {int(cold.sum())} hours the zone heat loss exceeds what the unit delivers at its "

@@ -112,7 +112,8 @@ def _t_from_h(h, w):
 
 
 def _check_outdoor(t_o, w_o, p):
-    check_range("outdoor_drybulb", t_o, -60.0, 60.0, "°C")
+    # the range of the weather importer (plantside.weather_import)
+    check_range("outdoor_drybulb", t_o, -70.0, 60.0, "°C")
     check_range("pressure", p, 30_000.0, 120_000.0, "Pa")
     check_range("outdoor_humidity_ratio", w_o, 0.0, 0.1, "kg/kg")
     ws = saturation_humidity_ratio(t_o, p, check=False)
@@ -158,7 +159,7 @@ def air_handler_hours(
     settings : AirHandlerSettings
         The air handler.
     outdoor_drybulb : array_like
-        Outdoor dry bulb of each hour [°C], -60 to 60.
+        Outdoor dry bulb of each hour [°C], -70 to 60.
     outdoor_humidity_ratio : array_like
         Outdoor humidity ratio [kg/kg dry air], 0 to saturation.
     pressure : array_like

@@ -88,6 +88,30 @@ def _choice(field, value, allowed):
         raise InputRangeError(field, f"{field} = {value!r}; allowed: {text}", text)
 
 
+_TEXT_FIELDS = ("name", "airflow_basis", "fan_control", "fan_position", "economizer",
+                "coil_model", "fan_schedule", "low_load_response")  # fmt: skip
+_FLAG_FIELDS = ("all_outdoor_air", "economizer_integrated")
+
+
+def _check_types(settings):
+    """Numbers must be numbers (not text, not true/false) and flags true or false."""
+    for field, value in vars(settings).items():
+        if field in _TEXT_FIELDS:
+            if not isinstance(value, str):
+                raise InputRangeError(field, f"{field} = {value!r} must be text", "text")
+        elif field in _FLAG_FIELDS:
+            if not isinstance(value, bool | np.bool_):
+                raise InputRangeError(
+                    field, f"{field} = {value!r} must be true or false", "true or false"
+                )
+        elif value is not None and (
+            isinstance(value, bool | np.bool_) or not isinstance(value, int | float | np.number)
+        ):
+            raise InputRangeError(
+                field, f"{field} = {value!r} must be a number, not text or true/false", "a number"
+            )
+
+
 def _optional(field, value, low, high, unit):
     if value is not None:
         check_range(field, value, low, high, unit)
@@ -116,6 +140,11 @@ class AirHandlerSettings:
     minimum_outdoor_airflow : float or None
         Fixed minimum outdoor airflow [m³/s], 0 to ``supply_airflow``, same basis. With
         variable volume it becomes a larger fraction as the supply airflow drops.
+    ventilation_airflow_required : float or None
+        The zone's outdoor-air need [m³/s, same basis], 0 to ``supply_airflow`` (e.g. from
+        the ASHRAE 62.1 ventilation rate procedure, worked out by the engineer). When given,
+        settings whose minimum outdoor air falls below it at the lowest supply airflow are
+        refused.
     all_outdoor_air : bool
         A 100 % outdoor-air unit (no return air, no economizer).
     zone_cooling_drybulb : float
@@ -189,6 +218,7 @@ class AirHandlerSettings:
     minimum_outdoor_air_fraction: float = 0.2
     minimum_outdoor_airflow: float | None = None
     all_outdoor_air: bool = False
+    ventilation_airflow_required: float | None = None
     zone_cooling_drybulb: float = 24.0
     zone_heating_drybulb: float = 21.0
     zone_relative_humidity_limit: float = 0.60
@@ -217,6 +247,7 @@ class AirHandlerSettings:
     low_load_response: str = "raise_supply_temperature"
 
     def __post_init__(self):
+        _check_types(self)
         check_range("supply_airflow", self.supply_airflow, 0.0, 500.0, "m³/s", low_inclusive=False)
         _choice("airflow_basis", self.airflow_basis, AIRFLOW_BASES)
         _choice("fan_control", self.fan_control, FAN_CONTROLS)
@@ -237,10 +268,6 @@ class AirHandlerSettings:
             self.supply_airflow,
             "m³/s",
         )
-        if not isinstance(self.all_outdoor_air, bool | np.bool_):
-            raise InputRangeError(
-                "all_outdoor_air", "all_outdoor_air must be true or false", "true or false"
-            )
         check_range("zone_cooling_drybulb", self.zone_cooling_drybulb, 15.0, 32.0, "°C")
         check_range(
             "zone_heating_drybulb", self.zone_heating_drybulb, 5.0, self.zone_cooling_drybulb, "°C"
@@ -334,6 +361,43 @@ class AirHandlerSettings:
             )
         _choice("fan_schedule", self.fan_schedule, FAN_SCHEDULES)
         _choice("low_load_response", self.low_load_response, LOW_LOAD_RESPONSES)
+        _optional(
+            "ventilation_airflow_required",
+            self.ventilation_airflow_required,
+            0.0,
+            self.supply_airflow,
+            "m³/s",
+        )
+        self._check_ventilation_floor()
+
+    def _check_ventilation_floor(self):
+        """Refuse minimum outdoor air below the ventilation need at the lowest airflow."""
+        need = self.ventilation_airflow_required
+        if need is None:
+            return
+        lowest = self.supply_airflow * (
+            self.minimum_airflow_fraction if self.fan_control == "variable_volume" else 1.0
+        )
+        if self.all_outdoor_air:
+            field, given = "minimum_airflow_fraction", lowest
+            allowed = f"at least {need / self.supply_airflow:.3g} (fraction)"
+        elif self.minimum_outdoor_airflow is not None:
+            field, given = "minimum_outdoor_airflow", min(self.minimum_outdoor_airflow, lowest)
+            allowed = f"at least {need:.4g} m³/s"
+        else:
+            field, given = (
+                "minimum_outdoor_air_fraction",
+                self.minimum_outdoor_air_fraction * lowest,
+            )
+            allowed = f"at least {need / lowest:.3g} (fraction)"
+        if given < need * (1.0 - 1e-9):
+            raise InputRangeError(
+                field,
+                f"{field} gives {given:.4g} m³/s of outdoor air at the lowest supply airflow "
+                f"({lowest:.4g} m³/s), below the ventilation need "
+                f"(ventilation_airflow_required = {need:.4g} m³/s); allowed: {allowed}",
+                allowed,
+            )
 
     # ------------------------------------------------------------------ derived values
     @property

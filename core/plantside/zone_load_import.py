@@ -86,28 +86,61 @@ _RANGES = {
 }
 
 
-def _read(source, max_bytes):
-    if isinstance(source, bytes):
-        return source, "zone loads"
+def _too_big(name, size, max_bytes):
+    return InputFileError(
+        name, [f"the file is {size:,} bytes; at most {max_bytes:,} bytes are accepted"]
+    )
+
+
+def _read(source, max_bytes, name):
+    if isinstance(source, bytes | bytearray):
+        name = name or "zone loads"
+        if len(source) > max_bytes:
+            raise _too_big(name, len(source), max_bytes)
+        return bytes(source), name
     if isinstance(source, str | os.PathLike) and not (isinstance(source, str) and "\n" in source):
         path = Path(source)
-        size = path.stat().st_size
-        if size > max_bytes:
-            raise InputFileError(
-                path.name, [f"the file is {size:,} bytes; at most {max_bytes:,} are accepted"]
-            )
-        return path.read_bytes(), path.name
+        name = name or path.name
+        try:
+            size = path.stat().st_size
+            if size > max_bytes:
+                raise _too_big(name, size, max_bytes)
+            return path.read_bytes(), name
+        except FileNotFoundError:
+            raise InputFileError(name, [f"no file '{path.name}' was found"]) from None
+        except IsADirectoryError:
+            raise InputFileError(name, [f"'{path.name}' is a folder, not a file"]) from None
+        except OSError as error:
+            raise InputFileError(name, [f"the file cannot be read ({error.strerror})"]) from None
     if isinstance(source, str):
-        return source.encode("utf-8"), "zone loads"
+        name = name or "zone loads"
+        data = source.encode("utf-8")
+        if len(data) > max_bytes:
+            raise _too_big(name, len(data), max_bytes)
+        return data, name
+    name = name or str(getattr(source, "name", "zone loads"))
     data = source.read(max_bytes + 1)
     if isinstance(data, str):
         data = data.encode("utf-8")
     if len(data) > max_bytes:
-        raise InputFileError("zone loads", [f"the file exceeds {max_bytes:,} bytes"])
-    return data, str(getattr(source, "name", "zone loads"))
+        raise InputFileError(name, [f"the file exceeds {max_bytes:,} bytes"])
+    return data, name
 
 
-def _decode(data: bytes) -> str:
+def _decode(data: bytes, name: str) -> str:
+    if data.startswith((b"\xff\xfe", b"\xfe\xff")):
+        try:
+            return data.decode("utf-16")
+        except UnicodeDecodeError:
+            raise InputFileError(name, ["row 1: the file cannot be read as UTF-16 text"]) from None
+    if b"\x00" in data:
+        raise InputFileError(
+            name,
+            [
+                "row 1: the file contains NUL bytes: it is not a text (CSV) file; "
+                "save it as UTF-8 CSV"
+            ],
+        )
     for encoding in ("utf-8-sig", "cp1252"):
         try:
             return data.decode(encoding)
@@ -174,9 +207,8 @@ def read_zone_loads_csv(
     InputFileError
         Listing every problem with its row number(s) and column.
     """
-    data, default_name = _read(source, max_bytes)
-    name = name or default_name
-    text = _decode(data)
+    data, name = _read(source, max_bytes, name)
+    text = _decode(data, name)
     lines = text.splitlines()
     first = 0
     while first < len(lines) and (
@@ -185,13 +217,31 @@ def read_zone_loads_csv(
         first += 1
     if first >= len(lines):
         raise InputFileError(name, ["the file has no header row"])
+    allowed = (8760, 8784) if expected_hours is None else (int(expected_hours),)
+    # The row count alone can rule a file out: say so before parsing any row.
+    rows_present = sum(1 for line in lines[first + 1 :] if line.strip())
+    if rows_present > max(allowed):
+        raise InputFileError(
+            name,
+            [
+                f"the file has {rows_present} data rows; allowed "
+                f"{' or '.join(str(a) for a in allowed)} (one per hour)"
+            ],
+        )
     header_line = lines[first]
     delimiter = max((",", ";", "\t"), key=header_line.count)
     decimal_comma = delimiter in (";", "\t")
     reader = csv.reader(io.StringIO("\n".join(lines[first:])), delimiter=delimiter)
-    rows = list(reader)
-    header, body = rows[0], rows[1:]
     header_row = first + 1
+    rows = []
+    try:
+        for row in reader:
+            rows.append(row)
+    except csv.Error as error:
+        raise InputFileError(
+            name, [f"row {first + reader.line_num}: cannot be read as CSV ({error})"]
+        ) from None
+    header, body = rows[0], rows[1:]
     problems, notes = [], []
 
     default_unit = None
@@ -331,7 +381,6 @@ def read_zone_loads_csv(
                         f"{_rows_text(header_row + 1 + wrong)}, column '{column}': hours are not "
                         "consecutive (one row per hour, in order, is required)"
                     )
-    allowed = (8760, 8784) if expected_hours is None else (int(expected_hours),)
     if n not in allowed:
         problems.append(
             f"the file has {n} data rows (rows {header_row + 1} to {header_row + n}); "

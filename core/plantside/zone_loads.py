@@ -118,6 +118,13 @@ class ZoneLoadModel:
     first_weekday: int = 0
 
     def __post_init__(self):
+        for name, value in vars(self).items():
+            if name == "occupied_days":
+                continue
+            if isinstance(value, bool | np.bool_) or not isinstance(value, int | float | np.number):
+                raise InputRangeError(
+                    name, f"{name} = {value!r} must be a number, not text or true/false", "a number"
+                )
         check_range(
             "cooling_design_sensible",
             self.cooling_design_sensible,
