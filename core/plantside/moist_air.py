@@ -252,7 +252,8 @@ def _form_coefficients(on_ice):
         return _WATER_FORM
     if np.all(on_ice):
         return _ICE_FORM
-    return tuple(np.where(on_ice, i, w) for i, w in zip(_ICE_FORM, _WATER_FORM, strict=True))
+    k = [np.where(on_ice, i, w) for i, w in zip(_ICE_FORM[:7], _WATER_FORM[:7], strict=True)]
+    return (*k, 2 * k[3], 3 * k[4], 4 * k[5])
 
 
 def _ln_pws_with_slope_on_form(drybulb, k):
@@ -592,14 +593,18 @@ def humidity_ratio_from_dew_point(dew_point, pressure, *, check=True):
     return _out(MOLAR_MASS_RATIO * pw / (p - pw))
 
 
-def _dew_point_first_guess(vapor_pressure):
-    """Closed-form dew point [°C] from vapour pressure [Pa], accurate to about 0.1 K
+def _ln_kpa(vapor_pressure):
+    """ln of the vapour pressure in kPa (floored at 1e-9 kPa, far below -100 °C)."""
+    return np.log(np.maximum(vapor_pressure, 1e-6) * 1e-3)
+
+
+def _dew_point_first_guess(alpha):
+    """Closed-form dew point [°C] from alpha = ln pw, pw in kPa, accurate to about 0.1 K
     from -20 to 93 °C (about 1 K at -60 °C); a first guess for Newton iterations.
 
     ASHRAE Handbook Fundamentals 2017, Ch. 1, Eq. 39 (dew point 0 to 93 °C) and Eq. 40
-    (below 0 °C), with alpha = ln pw, pw in kPa.
+    (below 0 °C).
     """
-    alpha = np.log(np.maximum(vapor_pressure, 1e-6) * 1e-3)
     above_freezing = 6.54 + alpha * (14.526 + alpha * (0.7389 + alpha * 0.09486))
     above_freezing = above_freezing + 0.4569 * np.exp(0.1984 * alpha)  # pw^0.1984
     below_freezing = 6.09 + alpha * (12.608 + alpha * 0.4959)
@@ -631,9 +636,11 @@ def dew_point_from_vapor_pressure(vapor_pressure, *, check=True):
     pw = _as_float(vapor_pressure)
     if check:
         check_range("vapor_pressure", pw, _PWS_LOWEST, _PWS_HIGHEST, "Pa")
-    td = np.array(_dew_point_first_guess(pw), dtype=float)
+    alpha = _ln_kpa(pw)
+    td = np.array(_dew_point_first_guess(alpha), dtype=float)
     flat_td = td.reshape(-1)
-    flat_target = np.log(np.clip(pw, 1e-300, None)).reshape(-1)
+    # ln pw [ln Pa], the target of ln pws (equal to ln pw for pw in range)
+    flat_target = np.reshape(alpha + np.log(1000.0), -1)
     # pws is increasing, so the form of the answer is known from pw: ice (Eq. 5) at or
     # below the triple-point pressure, water (Eq. 6) above.
     form = _form_coefficients(np.reshape(pw <= _PWS_TRIPLE, -1))
@@ -647,7 +654,7 @@ def dew_point_from_vapor_pressure(vapor_pressure, *, check=True):
         else:
             ln_pws, slope = _ln_pws_with_slope(x)  # same root, no coefficients to gather
         step = (ln_pws - target) / slope
-        x_new = np.clip(x - step, DRYBULB_MIN_C, DRYBULB_MAX_C)
+        x_new = np.minimum(np.maximum(x - step, DRYBULB_MIN_C), DRYBULB_MAX_C)
         # ln pws is increasing and concave with |f''/(2 f')| = about 1/T < 0.006 /K, so
         # after a Newton step s the error left is below 0.006 s^2: a step under 1e-3 K
         # leaves less than 1e-8 K.
@@ -777,7 +784,7 @@ def _wet_bulb_first_guess(t, w, p):
     Newton descends monotonically; the guess only saves iterations, never the answer.
     """
     pw = p * w / (MOLAR_MASS_RATIO + w)
-    td = _dew_point_first_guess(pw)
+    td = _dew_point_first_guess(_ln_kpa(pw))
     dln_pws = np.where(td < 0.0, 6132.0, 5417.0) / (td + ZERO_CELSIUS) ** 2
     slope = w * p / (p - pw) * dln_pws  # dWs/dt at the dew point [1/K]
     b = CP_LIQUID_WATER - CP_WATER_VAPOR
