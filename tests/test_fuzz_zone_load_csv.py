@@ -18,7 +18,6 @@ run is printed at the end of the module.
 
 from __future__ import annotations
 
-import csv
 import math
 import os
 import re
@@ -186,9 +185,7 @@ _NAMES_PLACE = re.compile(r"\brows?\b|\bcolumns?\b|\bfile\b|\bheader\b|\bunits\b
 #: Defects this fuzz found, reported in /work/notes/robustness.md: (exception type, plantside
 #: function raised in) -> id. Counted, not failed, while unfixed; each has a strict xfail
 #: test below, and the entry must go once the fix lands.
-KNOWN_DEFECTS = {
-    (csv.Error, "read_zone_loads_csv"): "Z1",
-}
+KNOWN_DEFECTS: dict[tuple[type, str], str] = {}  # Z1 fixed in c080f05
 
 
 def _known_defect(error: BaseException) -> str | None:
@@ -423,7 +420,7 @@ def test_csv_like_text_never_raises_anything_else(text, hours):
     st.sampled_from(range(len(BASES))),
     st.data(),
     st.sampled_from(["\n", "\r\n"]),
-    st.sampled_from(["utf-8", "utf-8-sig", "cp1252", "latin-1"]),
+    st.sampled_from(["utf-8", "utf-8-sig", "utf-16", "cp1252", "latin-1"]),
     st.booleans(),
 )
 def test_meaning_preserving_changes_give_the_same_loads(index, data, newline, encoding, semi):
@@ -483,17 +480,14 @@ def test_bad_cell_is_reported_at_its_row_and_column(index, data, junk):
 
 
 # ---------------------------------------------------------------------------------------
-# defects found by the fuzz (reported in /work/notes/robustness.md; strict xfail until fixed)
+# defects found by the fuzz (Z1 in /work/notes/robustness.md), fixed: kept as a regression
 # ---------------------------------------------------------------------------------------
-@pytest.mark.xfail(
-    strict=True, reason="defect: Z1 a field over 131072 characters raises csv.Error (reported)"
-)
 @pytest.mark.parametrize(
     "data",
     [b"a" * 200_000 + b"\n", b"sensible_kW,latent_kW\n" + b"1" * 200_000 + b",1\n"],
     ids=["header", "cell"],
 )
-def test_defect_z1_huge_field(data):
+def test_z1_huge_field_is_reported(data):
     with pytest.raises(InputFileError) as caught:
         read_zone_loads_csv(data, expected_hours=1)
     assert re.search(r"\brow [12]\b", str(caught.value)), str(caught.value)

@@ -149,11 +149,8 @@ def test_zone_load_row_count_other_than_a_year_is_refused_with_the_rows():
     assert "8760 or 8784" in str(caught.value)
 
 
-@pytest.mark.xfail(
-    strict=True, reason="defect: Z5 bytes and text sources skip max_bytes (reported)"
-)
 @pytest.mark.parametrize("form", ["bytes", "text"])
-def test_defect_z5_zone_load_content_above_max_bytes_is_refused(form):
+def test_z5_zone_load_content_above_max_bytes_is_refused(form):
     data = b"sensible_kW,latent_kW\n" + b"10,1\n" * 100
     source = data if form == "bytes" else data.decode()
     with pytest.raises(InputFileError) as caught:
@@ -161,14 +158,9 @@ def test_defect_z5_zone_load_content_above_max_bytes_is_refused(form):
     assert "100" in str(caught.value)
 
 
-@pytest.mark.xfail(
-    strict=True,
-    reason="defect: Z2 no row limit; an oversized zone-load file is parsed row by row before "
-    "it is refused (reported)",
-)
-def test_defect_z2_oversized_zone_load_file_is_refused_quickly():
+def test_z2_oversized_zone_load_file_is_refused_quickly():
     # 500,000 rows (2.5 MB, well under max_bytes): the row count alone rules it out, so the
-    # refusal needs no parsing (Z2: ~2 s here while unfixed; a line count takes ~10 ms).
+    # refusal needs no parsing (Z2, fixed in c080f05: it used to take ~2 s).
     data = b"sensible_kW,latent_kW\n" + b"10,1\n" * 500_000
     start = time.perf_counter()
     with pytest.raises(InputFileError) as caught:
@@ -178,12 +170,7 @@ def test_defect_z2_oversized_zone_load_file_is_refused_quickly():
     assert seconds < 0.5, f"{seconds:.2f} s to refuse"
 
 
-@pytest.mark.xfail(
-    strict=True,
-    reason="defect: Z3 a missing zone-load path raises FileNotFoundError, not InputFileError "
-    "(reported)",
-)
-def test_defect_z3_missing_zone_load_path(tmp_path):
+def test_z3_missing_zone_load_path_is_an_input_file_error(tmp_path):
     with pytest.raises(InputFileError) as caught:
         read_zone_loads_csv(tmp_path / "no such loads.csv")
     assert "no such loads.csv" in str(caught.value)
