@@ -11,7 +11,7 @@ ends, truncation, binary junk. Every outcome must be one of:
 - :class:`~plantside.errors.InputFileError` whose every problem names a row and/or a
   column (or the whole file), or :class:`~plantside.errors.InputRangeError`,
 
-never any other exception. Mutations that keep the meaning (column order, CRLF, BOM,
+never any other exception. Mutations that keep the meaning (column order, CRLF, BOM, UTF-16,
 Windows-1252, semicolons with decimal commas) give the same loads. The number of cases
 run is printed at the end of the module.
 """
