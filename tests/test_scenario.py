@@ -157,3 +157,25 @@ def test_packaged_example_scenario_is_the_repository_example():
     # The dashboard opens the copy shipped as package data; it must be the documented example.
     packaged = Path(__file__).parents[1] / "core" / "plantside" / "data" / "example_scenario.toml"
     assert packaged.read_bytes() == CLINIC.read_bytes()
+
+
+def test_uploaded_scenarios_cannot_reach_files_outside_their_folder(tmp_path):
+    # An upload names files only inside its own folder (files="inside"); the command line
+    # reads the user's own files wherever they are (files="any", the default).
+    text = CLINIC.read_text(encoding="utf-8").replace(
+        'climate = "Salvia Flats"', 'weather_file = "../climates/mesa_ardiente.csv"'
+    )
+    folder = CLINIC.parent
+    assert loads_scenario(text, "mine.toml", folder).weather_file.startswith("../")
+    with pytest.raises(ScenarioError, match="inside the scenario's folder"):
+        loads_scenario(text, "upload.toml", folder, files="inside")
+    absolute = text.replace("../climates/mesa_ardiente.csv", "/etc/hostname")
+    with pytest.raises(ScenarioError, match=r"site\.weather_file"):
+        loads_scenario(absolute, "upload.toml", tmp_path, files="inside")
+
+
+def test_saved_title_with_control_characters_opens_again():
+    scenario = load_scenario(CLINIC)
+    odd = dataclasses.replace(scenario, title="Ward A\nfoo = 1\r\x0c\x7f end")
+    again = loads_scenario(dumps_scenario(odd), "again.toml", CLINIC.parent)
+    assert again.title == odd.title

@@ -88,6 +88,7 @@ FIELD_QUANTITIES = {
     # air handler
     "supply_airflow": "airflow",
     "minimum_outdoor_airflow": "airflow",
+    "ventilation_airflow_required": "airflow",
     "zone_cooling_drybulb": "temperature",
     "zone_heating_drybulb": "temperature",
     "supply_drybulb": "temperature",
@@ -188,13 +189,16 @@ class Scenario:
     cooling_options: tuple[PlantOptionSpec, ...] = ()
     heating_options: tuple[PlantOptionSpec, ...] = ()
     source: str = field(default="<scenario>", compare=False)
+    files: str = field(default="any", compare=False)
     base_dir: Path = field(default_factory=Path.cwd, compare=False)
 
     def load_weather(self) -> Weather:
         """The hourly weather of the site (bundled climate or CSV)."""
         if self.climate is not None:
             return load_bundled_climate(self.climate)
-        path = _resolve(self.base_dir, self.weather_file, self.source, "site.weather_file")
+        path = _resolve(
+            self.base_dir, self.weather_file, self.source, "site.weather_file", self.files
+        )
         altitude = self.altitude
         if altitude is not None and self.unit_system is UnitSystem.IP:
             altitude = float(to_display("length", altitude, "IP")[0])
@@ -211,7 +215,7 @@ class Scenario:
         if spec.zone is not None:
             return spec.zone
         where = f"air_handler[{index + 1}].zone_load_file"
-        path = _resolve(self.base_dir, spec.zone_load_file, self.source, where)
+        path = _resolve(self.base_dir, spec.zone_load_file, self.source, where, self.files)
         hours = None if weather is None else weather.hours
         try:
             loads: HourlyZoneLoads = read_zone_loads_csv(path, expected_hours=hours)
@@ -229,13 +233,28 @@ class Scenario:
 # ---------------------------------------------------------------------------------------
 # reading
 # ---------------------------------------------------------------------------------------
-def _resolve(base_dir: Path, name: str | None, source: str, where: str) -> Path:
-    """A file named in a scenario, relative to the scenario's folder; must exist."""
+#: File policies: "any" follows any name (the user's own files, command line);
+#: "inside" (for uploads) accepts only names inside the scenario's folder.
+FILE_POLICIES = ("any", "inside")
+
+
+def _resolve(base_dir: Path, name: str | None, source: str, where: str, files: str = "any") -> Path:
+    """A file named in a scenario, relative to the scenario's folder; must exist.
+
+    With ``files="inside"`` an absolute name, or one that leads out of the scenario's
+    folder, is refused: an uploaded scenario cannot make the server read other files.
+    """
     if not name:
         raise ScenarioError(source, where, "no file given")
     path = Path(name)
     if not path.is_absolute():
         path = Path(base_dir) / path
+    if files == "inside" and (
+        Path(name).is_absolute() or not path.resolve().is_relative_to(Path(base_dir).resolve())
+    ):
+        raise ScenarioError(
+            source, where, f"{name!r} must name a file inside the scenario's folder"
+        )
     if not path.is_file():
         raise ScenarioError(source, where, f"file {name!r} not found (looked in {path.parent})")
     return path
@@ -250,6 +269,12 @@ def _unknown_key(source: str, where: str, key: str, allowed) -> ScenarioError:
         f"{prefix}{key}",
         f"unknown key {key!r}{hint} Allowed here: {', '.join(sorted(allowed))}",
     )
+
+
+def _bad_choice(source: str, where: str, value, allowed) -> ScenarioError:
+    guess = difflib.get_close_matches(str(value), list(allowed), n=1, cutoff=0.6)
+    hint = f"; did you mean {guess[0]!r}?" if guess else ""
+    return ScenarioError(source, where, f"{value!r} is not one of: {', '.join(allowed)}{hint}")
 
 
 def _check_keys(source: str, where: str, table: dict, allowed) -> None:
@@ -363,7 +388,7 @@ def _option(source, where, table, design_kind) -> PlantOptionSpec:
         )
     metric = _text(source, f"{where}.efficiency_metric", table.get("efficiency_metric", "cop"))
     if metric not in _EFFICIENCY_METRICS:
-        raise _unknown_key(source, where + ".efficiency_metric", metric, _EFFICIENCY_METRICS)
+        raise _bad_choice(source, f"{where}.efficiency_metric", metric, _EFFICIENCY_METRICS)
     efficiency = table.get("efficiency")
     if efficiency is not None:
         if not isinstance(efficiency, list) or len(efficiency) != 4:
@@ -397,7 +422,9 @@ def _percent(source, where, value, high=100.0):
     return value
 
 
-def scenario_from_dict(data: dict, source: str = "<scenario>", base_dir=None) -> Scenario:
+def scenario_from_dict(
+    data: dict, source: str = "<scenario>", base_dir=None, *, files: str = "any"
+) -> Scenario:
     """Validate a parsed scenario (a dict as read from TOML) into a :class:`Scenario`.
 
     Parameters
@@ -408,7 +435,11 @@ def scenario_from_dict(data: dict, source: str = "<scenario>", base_dir=None) ->
         Name used in messages (the file name).
     base_dir : path-like, optional
         Folder that relative file names resolve against.
+    files : {"any", "inside"}
+        ``"inside"`` refuses file names outside ``base_dir`` (use it for uploads).
     """
+    if files not in FILE_POLICIES:
+        raise InputRangeError("files", f"files = {files!r}; allowed {FILE_POLICIES}")
     base_dir = Path.cwd() if base_dir is None else Path(base_dir)
     _check_keys(source, "", data, _TOP_KEYS)
     for key in ("unit_system", "air_handler"):
@@ -432,14 +463,21 @@ def scenario_from_dict(data: dict, source: str = "<scenario>", base_dir=None) ->
         climate = _text(source, "site.climate", climate)
         names = {name.lower(): name for name in BUNDLED_CLIMATES}
         if climate.lower() not in names:
-            raise _unknown_key(source, "site.climate", climate, BUNDLED_CLIMATES)
+            raise _bad_choice(source, "site.climate", climate, BUNDLED_CLIMATES)
         climate = names[climate.lower()]
     else:
         weather_file = _text(source, "site.weather_file", weather_file)
-        _resolve(base_dir, weather_file, source, "site.weather_file")
+        _resolve(base_dir, weather_file, source, "site.weather_file", files)
     weather_units = site.get("weather_units")
     if weather_units is not None:
-        weather_units = str(UnitSystem.parse(_text(source, "site.weather_units", weather_units)))
+        try:
+            weather_units = str(
+                UnitSystem.parse(_text(source, "site.weather_units", weather_units))
+            )
+        except InputRangeError as error:
+            raise ScenarioError(
+                source, "site.weather_units", f"{weather_units!r}; allowed 'SI' or 'IP'"
+            ) from error
     altitude = site.get("altitude")
     if altitude is not None:
         altitude = float(from_display("length", _number(source, "site.altitude", altitude), system))
@@ -498,7 +536,7 @@ def scenario_from_dict(data: dict, source: str = "<scenario>", base_dir=None) ->
             zone = _dataclass_from_table(ZoneLoadModel, zone, source, f"{where}.zone", system)
         else:
             zone_file = _text(source, f"{where}.zone_load_file", zone_file)
-            _resolve(base_dir, zone_file, source, f"{where}.zone_load_file")
+            _resolve(base_dir, zone_file, source, f"{where}.zone_load_file", files)
         specs.append(AirHandlerSpec(settings, zone, zone_file))
     names = [spec.settings.name for spec in specs]
     duplicates = sorted({n for n in names if names.count(n) > 1})
@@ -525,16 +563,23 @@ def scenario_from_dict(data: dict, source: str = "<scenario>", base_dir=None) ->
         heating_options=options["heating"],
         source=source,
         base_dir=base_dir,
+        files=files,
     )
 
 
-def loads_scenario(text: str, source: str = "<scenario>", base_dir=None) -> Scenario:
-    """Parse scenario TOML text (e.g. an upload) into a :class:`Scenario`."""
+def loads_scenario(
+    text: str, source: str = "<scenario>", base_dir=None, *, files: str = "any"
+) -> Scenario:
+    """Parse scenario TOML text (e.g. an upload) into a :class:`Scenario`.
+
+    Pass ``files="inside"`` for text that came from someone else (an upload), so the
+    file names in it can only reach files inside ``base_dir``.
+    """
     try:
         data = tomllib.loads(text)
     except tomllib.TOMLDecodeError as error:
         raise ScenarioError(source, "(syntax)", f"not valid TOML: {error}") from error
-    return scenario_from_dict(data, source, base_dir)
+    return scenario_from_dict(data, source, base_dir, files=files)
 
 
 def load_scenario(path) -> Scenario:
@@ -656,8 +701,9 @@ def field_unit(key: str, system) -> str:
 
 def dumps_scenario(scenario: Scenario) -> str:
     """The scenario as TOML text in its unit system (what 'save' writes)."""
+    title = " ".join("".join(c if c.isprintable() else " " for c in scenario.title).split())
     header = (
-        f"# plantside scenario: {scenario.title}\n"
+        f"# plantside scenario: {title}\n"
         f"# Numbers are in {scenario.unit_system} units (see README, 'Scenario files').\n\n"
     )
     return header + tomli_w.dumps(scenario_to_dict(scenario))
