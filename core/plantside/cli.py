@@ -7,6 +7,8 @@ Commands (``plantside COMMAND --help`` for each)::
                                                     hourly results + summary JSON
     plantside charts  SCENARIO --out DIR            every chart as PNG and SVG
     plantside climates                              the bundled fictional climates
+    plantside sweep   SWEEP --out DIR [--workers N | --scheduler ADDR]
+                                                    batch of cases -> one table
 
 Exit status: 0 on success, 2 for a user mistake (bad scenario, unreadable file) with the
 message on stderr, never a traceback for a user mistake.
@@ -22,6 +24,7 @@ from pathlib import Path
 import numpy as np
 
 from .errors import PlantsideError
+from .sweep_cli import add_sweep_parser
 from .units import to_display
 
 __all__ = ["main"]
@@ -213,6 +216,7 @@ def build_parser() -> argparse.ArgumentParser:
     climates = sub.add_parser("climates", help="list the bundled fictional climates")
     climates.add_argument("--json", action="store_true")
     climates.set_defaults(func=_cmd_climates)
+    add_sweep_parser(sub)
     return parser
 
 
