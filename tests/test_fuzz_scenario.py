@@ -30,7 +30,7 @@ import pytest
 import tomli_w
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
-from plantside.errors import InputRangeError, ScenarioError
+from plantside.errors import ScenarioError
 from plantside.scenario import Scenario, dumps_scenario, load_scenario, loads_scenario
 
 SCENARIOS = Path(__file__).parents[1] / "example_data" / "scenarios"
@@ -51,9 +51,7 @@ def _examples(count: int) -> int:
 #: Defects found here, reported in /work/notes/robustness.md: (exception type, plantside
 #: function in the traceback, text of its line) -> id. Counted, not failed, while unfixed;
 #: each has a strict xfail test below, and its entry must go once the fix lands.
-KNOWN_DEFECTS: dict[tuple[type, str, str], str] = {
-    (InputRangeError, "scenario_from_dict", "weather_units"): "S2",
-}
+KNOWN_DEFECTS: dict[tuple[type, str, str], str] = {}  # S2 fixed in deb230c
 
 # The section part of a field: a dotted path of known table names with list positions.
 _FIELD = re.compile(r"^[a-z_]+(\[\d+\])?([.][a-z_]+(\[\d+\])?)*$")
@@ -203,11 +201,6 @@ def _known_defect(error: BaseException) -> str | None:
     return None
 
 
-def _breaks_a_comment(text: str) -> bool:
-    """Characters TOML forbids in a comment (TOML 1.0: control characters but tab)."""
-    return any((ord(c) < 32 and c != "\t") or c == "\x7f" for c in text)
-
-
 def judge(call, source: str):
     """Run a scenario load; return the Scenario or the ScenarioError; fail on anything else."""
     try:
@@ -216,10 +209,6 @@ def judge(call, source: str):
         # The field is a dotted path to the value (its last part the key as written in
         # the file, e.g. an unknown key), or a marker for the whole file.
         field = error.field
-        if re.search(r"(^site\.climate|\.efficiency_metric)\.", field):
-            # S4 (reported): a bad choice is named "<field>.<value>" and called a key.
-            OUTCOMES["of which S4 field names the value (reported)"] += 1
-            field = re.sub(r"(^site\.climate|\.efficiency_metric)\..*$", r"\1", field)
         assert field and _FIELD.match(field.rpartition(".")[0] or "file"), error
         assert str(error).startswith(f"{source}: {error.field}: "), str(error)
         assert len(str(error)) < 20_000, "message too long to show"
@@ -236,13 +225,7 @@ def judge(call, source: str):
     # A scenario that loads saves and loads back to the same text (what the dashboard's
     # "save" and "open" do).
     text = dumps_scenario(scenario)
-    try:
-        again = loads_scenario(text, "again.toml", SCENARIOS)
-    except ScenarioError:
-        if _breaks_a_comment(scenario.title):
-            OUTCOMES["known defect S3 (reported)"] += 1
-            return scenario
-        raise
+    again = loads_scenario(text, "again.toml", SCENARIOS)
     assert dumps_scenario(again) == text
     # Files it names load, or fail with ScenarioError naming the field.
     if scenario.climate is None:
@@ -345,15 +328,10 @@ def test_unknown_key_gets_a_suggestion_and_the_allowed_keys():
 
 
 # ---------------------------------------------------------------------------------------
-# defects found by the fuzz (reported in /work/notes/robustness.md; strict xfail until fixed)
+# defects found by the fuzz (S2-S4 in /work/notes/robustness.md), fixed in deb230c: regressions
 # ---------------------------------------------------------------------------------------
-@pytest.mark.xfail(
-    strict=True,
-    reason="defect: S2 a bad site.weather_units raises InputRangeError, not ScenarioError "
-    "(reported)",
-)
 @pytest.mark.parametrize("value", ["", "metric", "kelvin"])
-def test_defect_s2_bad_weather_units_names_the_field(value):
+def test_s2_bad_weather_units_names_the_field(value):
     text = (SCENARIOS / "mesa_lab_weather_file.toml").read_text(encoding="utf-8")
     bad = text.replace('weather_units = "SI"', f'weather_units = "{value}"', 1)
     assert bad != text
@@ -362,23 +340,13 @@ def test_defect_s2_bad_weather_units_names_the_field(value):
     assert caught.value.field == "site.weather_units"
 
 
-@pytest.mark.xfail(
-    strict=True,
-    reason="defect: S3 a title with a line break or control character is written into the "
-    "saved file's header comment and the file no longer opens (reported)",
-)
 @pytest.mark.parametrize("title", ["Ward A\nfoo = 1", "Ward A\r\nB", "Ward\x0cA", "Ward\x7f"])
-def test_defect_s3_saved_scenario_with_any_title_opens_again(title):
+def test_s3_saved_scenario_with_any_title_opens_again(title):
     scenario = replace(load_scenario(SCENARIOS / "linden_office_si.toml"), title=title)
     again = loads_scenario(dumps_scenario(scenario), "saved.toml", SCENARIOS)
     assert again.title == title
 
 
-@pytest.mark.xfail(
-    strict=True,
-    reason="defect: S4 a value outside a list of choices is reported as an unknown key, "
-    "with the value appended to the field (reported)",
-)
 @pytest.mark.parametrize(
     ("old", "new", "field"),
     [
@@ -387,7 +355,7 @@ def test_defect_s3_saved_scenario_with_any_title_opens_again(title):
          "plant.cooling_option[1].efficiency_metric"),
     ],
 )  # fmt: skip
-def test_defect_s4_bad_choice_names_its_field(old, new, field):
+def test_s4_bad_choice_names_its_field(old, new, field):
     text = (SCENARIOS / "linden_office_si.toml").read_text(encoding="utf-8")
     assert old in text
     with pytest.raises(ScenarioError) as caught:

@@ -381,11 +381,6 @@ def test_ventilation_need_above_the_supply_airflow_is_refused():
     )
 
 
-@pytest.mark.xfail(
-    strict=True,
-    reason="defect: V2 scenario files read ventilation_airflow_required without unit "
-    "conversion (cfm or L/s taken as m³/s) (reported)",
-)
 @pytest.mark.parametrize(
     ("scenario", "value", "expected_m3s"),
     [
@@ -396,7 +391,7 @@ def test_ventilation_need_above_the_supply_airflow_is_refused():
         ("linden_office_si.toml", 200.0, 0.2),
     ],
 )
-def test_defect_v2_ventilation_need_in_a_scenario_is_converted(scenario, value, expected_m3s):
+def test_v2_ventilation_need_in_a_scenario_is_converted(scenario, value, expected_m3s):
     text = (SCENARIOS / scenario).read_text(encoding="utf-8")
     name = re.search(r'^name = "(AHU-[^"]*)"', text, flags=re.MULTILINE).group(0)
     text = text.replace(name, f"{name}\nventilation_airflow_required = {value}", 1)

@@ -326,3 +326,58 @@ def test_scenario_strings_that_look_like_paths_or_code_stay_text(tmp_path):
         assert caught.value.field.startswith("site.climate")
     assert not marker.exists()
     assert os.path.exists(SCENARIOS / "linden_office_si.toml")
+
+
+@pytest.mark.parametrize("name", ["ABSOLUTE", "../climates/linden_vale.csv", "sub/../../x.csv"])
+def test_uploaded_scenario_cannot_name_files_outside_its_folder(name, tmp_path):
+    # files="inside" (for uploads, S1): absolute names and names leading out of the
+    # scenario's folder are refused naming the field, before anything is read.
+    folder = tmp_path / "upload"
+    folder.mkdir()
+    (tmp_path / "climates").mkdir()
+    (tmp_path / "climates" / "linden_vale.csv").write_bytes(
+        (CLIMATES / "linden_vale.csv").read_bytes()
+    )
+    # Every target exists and is a valid year: only the folder rule can refuse it.
+    (folder / "sub").mkdir()
+    (tmp_path / "x.csv").write_bytes((CLIMATES / "linden_vale.csv").read_bytes())
+    if name == "ABSOLUTE":
+        name = str(tmp_path / "x.csv").replace("\\", "/")
+    text = textwrap.dedent(
+        f"""
+        unit_system = "SI"
+        [site]
+        weather_file = "{name}"
+        altitude = 310
+        [[air_handler]]
+        name = "AHU-1"
+        [air_handler.zone]
+        cooling_design_sensible = 50.0
+        """
+    )
+    with pytest.raises(ScenarioError) as caught:
+        loads_scenario(text, "upload.toml", folder, files="inside")
+    assert caught.value.field == "site.weather_file"
+    assert "inside the scenario's folder" in str(caught.value), str(caught.value)
+    if name == "../climates/linden_vale.csv":
+        # The same name is followed for the user's own files (the default, "any").
+        scenario = loads_scenario(text, "own.toml", folder)
+        assert scenario.load_weather().hours == 8760
+
+
+def test_uploaded_scenario_may_name_a_file_inside_its_folder(tmp_path):
+    (tmp_path / "year.csv").write_bytes((CLIMATES / "linden_vale.csv").read_bytes())
+    text = textwrap.dedent(
+        """
+        unit_system = "SI"
+        [site]
+        weather_file = "year.csv"
+        altitude = 310
+        [[air_handler]]
+        name = "AHU-1"
+        [air_handler.zone]
+        cooling_design_sensible = 50.0
+        """
+    )
+    scenario = loads_scenario(text, "upload.toml", tmp_path, files="inside")
+    assert scenario.load_weather().hours == 8760
