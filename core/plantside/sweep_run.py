@@ -481,8 +481,7 @@ def _open_client(scheduler: str):
 
 def _cluster_workers(client) -> int:
     """Worker threads of the cluster (each runs one batch at a time)."""
-    workers = client.scheduler_info().get("workers", {})
-    return max(1, sum(int(w.get("nthreads", 1)) for w in workers.values()))
+    return max(1, sum(int(n) for n in client.nthreads().values()))
 
 
 def _run_dask(sweep, batches, client, on_done):
