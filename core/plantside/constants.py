@@ -54,7 +54,8 @@ KJKG_PER_BTULB = 2.326
 GRAINS_PER_LB = 7000.0
 #: Pascals per psi [2].
 PA_PER_PSI = 6894.757293168
-#: Pascals per inch of mercury at 0 °C (32 °F) [2].
+#: Pascals per conventional inch of mercury (NIST SP 811 lists 3386.389 Pa; at 32 °F it is
+#: 3386.38 Pa) [2].
 PA_PER_INHG = 3386.389
 #: m³/s per cfm [2].
 M3S_PER_CFM = M_PER_FT**3 / 60.0
