@@ -27,27 +27,29 @@ NOTEBOOK = "air_handler.ipynb"
 WIDGET_TIMEOUT_MS = 120_000
 CHART_HOST = ".plantside-chart-{name}"
 
-#: Marks the chart's current drawing so a redraw can be told apart (a new canvas or svg).
-_MARK_CHART = """
+#: Marks the chart's current drawing and watches for its replacement: the time [ms]
+#: from "release" (this call, made just before the key is released) to the moment the
+#: new drawing is in the page is left in ``window.__plantsideRedrawn``.
+_WATCH_CHART = """
 (name) => {
   const host = document.querySelector(`.plantside-chart-${name}`);
   const drawn = host && host.querySelector('canvas, svg.marks');
-  if (drawn) { drawn.dataset.plantsideOld = '1'; }
-  window.__plantsideReleased = performance.now();
-  return Boolean(drawn);
+  if (!drawn) { return false; }
+  drawn.dataset.plantsideOld = '1';
+  window.__plantsideRedrawn = null;
+  const released = performance.now();
+  const observer = new MutationObserver(() => {
+    const now = host.querySelector('canvas, svg.marks');
+    if (now && !now.dataset.plantsideOld) {
+      window.__plantsideRedrawn = performance.now() - released;
+      observer.disconnect();
+    }
+  });
+  observer.observe(host, { childList: true, subtree: true });
+  return true;
 }
 """
-#: Resolves to the time [ms] from the release to the redrawn chart.
-_CHART_REDRAWN = """
-(name) => {
-  const host = document.querySelector(`.plantside-chart-${name}`);
-  const drawn = host && host.querySelector('canvas, svg.marks');
-  if (drawn && !drawn.dataset.plantsideOld) {
-    return performance.now() - window.__plantsideReleased;
-  }
-  return null;
-}
-"""
+_REDRAWN = "() => window.__plantsideRedrawn"
 
 
 def expected_design_card(fraction: float) -> str:
@@ -85,6 +87,19 @@ def open_dashboard(page, server, notebook: str = NOTEBOOK) -> float:
     return time.perf_counter() - start
 
 
+def screenshot_whole_dashboard(page, path: Path) -> None:
+    """Screenshot of the whole dashboard (Voila scrolls inside the page, so grow the window)."""
+    size = page.viewport_size
+    height = page.evaluate(
+        "() => Math.ceil(document.querySelector('.plantside-app').getBoundingClientRect().height)"
+    )
+    page.set_viewport_size({"width": size["width"], "height": int(height) + 60})
+    page.evaluate("() => document.querySelector('.plantside-app').scrollIntoView()")
+    page.wait_for_timeout(1500)  # let the charts settle at the new size
+    page.screenshot(path=str(path), full_page=True)
+    page.set_viewport_size(size)
+
+
 def figures_text(page) -> str:
     return page.inner_text(".plantside-figures")
 
@@ -104,11 +119,9 @@ def move_slider(page, name: str, presses: int = 1, key: str = "ArrowRight") -> f
     handle.focus()
     for _ in range(presses - 1):
         handle.press(key)
-    page.evaluate(_MARK_CHART, "sweep")
+    assert page.evaluate(_WATCH_CHART, "sweep")
     handle.press(key)
-    redraw = page.wait_for_function(
-        _CHART_REDRAWN, arg="sweep", polling="raf", timeout=WIDGET_TIMEOUT_MS
-    )
+    redraw = page.wait_for_function(_REDRAWN, polling=50, timeout=WIDGET_TIMEOUT_MS)
     return float(redraw.json_value())
 
 
@@ -156,9 +169,10 @@ def test_sliders_climate_exports_and_upload(dashboard_server, new_page, screensh
 
     # --- climate dropdown: header, figures and the psychrometric chart change
     before = figures_text(page)
-    page.evaluate(_MARK_CHART, "psychrometric")
+    assert page.evaluate(_WATCH_CHART, "psychrometric")
     page.select_option(".plantside-climate select", label="Mesa Ardiente (fictional)")
-    page.wait_for_function(_CHART_REDRAWN, arg="psychrometric", polling="raf")
+    climate_ms = float(page.wait_for_function(_REDRAWN, polling=50).json_value())
+    print(f"climate change to redrawn psychrometric chart: {climate_ms:.0f} ms")
     wait_for_change(page, before)
     assert "Mesa Ardiente" in page.inner_text(".plantside-header")
 
@@ -181,8 +195,9 @@ def test_sliders_climate_exports_and_upload(dashboard_server, new_page, screensh
 
     # --- a bad weather CSV: message beside the climate control, results kept
     kept = figures_text(page)
-    page.set_input_files(
-        ".plantside-weather-upload input[type=file]",
+    with page.expect_file_chooser(timeout=WIDGET_TIMEOUT_MS) as chooser:
+        page.click(".plantside-weather-upload")
+    chooser.value.set_files(
         files=[
             {
                 "name": "broken year.csv",
@@ -203,14 +218,12 @@ def test_sliders_climate_exports_and_upload(dashboard_server, new_page, screensh
     page.wait_for_function(
         "() => document.querySelector('.plantside-figures').innerText.includes('kW')"
     )
-    page.wait_for_timeout(1500)  # let the five charts finish drawing
-    page.screenshot(path=str(screenshots_folder / "dashboard_si.png"), full_page=True)
+    screenshot_whole_dashboard(page, screenshots_folder / "dashboard_si.png")
     page.click(".plantside-unit-system button:has-text('IP')")
     page.wait_for_function(
         "() => document.querySelector('.plantside-figures').innerText.includes('tons')"
     )
-    page.wait_for_timeout(1500)
-    page.screenshot(path=str(screenshots_folder / "dashboard_ip.png"), full_page=True)
+    screenshot_whole_dashboard(page, screenshots_folder / "dashboard_ip.png")
 
 
 def test_plant_page_and_pinned_comparison(dashboard_server, new_page, screenshots_folder):
@@ -223,8 +236,7 @@ def test_plant_page_and_pinned_comparison(dashboard_server, new_page, screenshot
     move_slider(page, "outdoor-air-fraction", presses=5)
     wait_for_change(page, shown)
     page.wait_for_selector(".ps-pinned")
-    page.wait_for_timeout(1500)
-    page.screenshot(path=str(screenshots_folder / "plant_pinned_ip.png"), full_page=True)
+    screenshot_whole_dashboard(page, screenshots_folder / "plant_pinned_ip.png")
 
 
 def test_four_sessions_at_once_keep_their_own_results(dashboard_server, new_page):
@@ -254,9 +266,10 @@ def test_four_sessions_at_once_keep_their_own_results(dashboard_server, new_page
     for steps, page in enumerate(pages, start=1):
         fraction = (start_readout + 3 * steps) / 100.0
         expected = expected_design_card(fraction)
+        print(f"page {steps}: expecting {expected} at {100 * fraction:.0f} % outdoor air")
         page.wait_for_function(
             "(text) => [...document.querySelectorAll('.ps-card')].some(c =>"
-            " c.innerText.includes('Design coil load') &&"
+            " c.textContent.includes('Design coil load') &&"
             " c.querySelector('.ps-value').innerText.startsWith(text))",
             arg=expected,
             timeout=WIDGET_TIMEOUT_MS,

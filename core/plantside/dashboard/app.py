@@ -166,7 +166,8 @@ class Dashboard:
         for name in CHARTS:
             chart = self._build_chart(name)
             self.chart_specs[name] = chart
-            self.charts[name] = alt.JupyterChart(chart)  # validated once, against the schema
+            # validated once against the schema; no vega-embed menu (it links to web editors)
+            self.charts[name] = alt.JupyterChart(chart, embed_options={"actions": False})
             self.charts[name].add_class(f"plantside-chart-{name}")
             self._chart_keys[name] = self._chart_key(name)
             self.spec_writer.seed(name, chart, self._structure(name), self.charts[name].spec)
@@ -246,10 +247,13 @@ class Dashboard:
         return app
 
     def _files_box(self) -> widgets.VBox:
-        csv_button = widgets.Button(description="Hourly results (CSV)", icon="table")
+        wide = widgets.Layout(width="96%")
+        csv_button = widgets.Button(description="Hourly results (CSV)", layout=wide)
         csv_button.add_class("plantside-export-csv")
         csv_button.on_click(lambda _: self.export_hourly_csv())
-        toml_button = widgets.Button(description="Save scenario (TOML)", icon="save")
+        toml_button = widgets.Button(
+            description="Save scenario with these settings (TOML)", layout=wide
+        )
         toml_button.add_class("plantside-export-toml")
         toml_button.on_click(lambda _: self.export_scenario())
         self.file_buttons = {"csv": csv_button, "toml": toml_button}
@@ -257,7 +261,8 @@ class Dashboard:
         box = widgets.VBox(
             [
                 widgets.HTML("<span class='plantside-label'>Download</span>"),
-                widgets.HBox([csv_button, toml_button]),
+                csv_button,
+                toml_button,
                 self.export_message,
             ]
         )
@@ -271,7 +276,6 @@ class Dashboard:
             for fmt in ("png", "svg"):
                 button = widgets.Button(
                     description=fmt.upper(),
-                    icon="download",
                     tooltip=f"Download this chart as {fmt.upper()}, stamped with its inputs",
                     layout=widgets.Layout(width="84px"),
                 )
@@ -488,10 +492,8 @@ class Dashboard:
                 "the control marked below needs a change.</span>"
             )
         else:
-            took = 1000 * float(state.last_update.get("seconds", 0.0))
             self.status.value = (
-                f"<span class='ps-fresh'>Figures and charts show the current inputs"
-                f"{f' (model {took:.0f} ms)' if took else ''}.</span>"
+                "<span class='ps-fresh'>Figures and charts show the current inputs.</span>"
             )
         items = "".join(f"<li>{html.escape(text)}</li>" for text in result.cautions)
         self.model_cautions.value = (
@@ -518,67 +520,60 @@ class Dashboard:
             return _quantity("energy", v, system)
 
         cards = [
-            ("Design zone load", "ps-zone", now.design_zone_load, power, "sensible + latent"),
+            ("Design zone load", "ps-zone", "design_zone_load", power, "sensible + latent"),
             (
                 "Design coil load",
                 "",
-                now.design_coil_load,
+                "design_coil_load",
                 power,
                 f"{now.coil_to_zone_ratio:.2f} × the zone load",
             ),
-            ("Peak coil load, year", "", now.peak_coil_load, power, "highest hour of the year"),
             (
                 "Recommended capacity",
                 "",
-                now.recommended_capacity,
+                "recommended_capacity",
                 power,
                 f"design coil load + {margin:g} % margin",
             ),
-            ("Cooling energy, year", "ps-neutral", now.cooling_energy, energy, "coil, whole year"),
+            ("Peak coil load, year", "", "peak_coil_load", power, "highest hour of the year"),
+            ("Governing design condition", "ps-wide ps-neutral", "governing_condition", None, ""),
+            ("Cooling energy, year", "ps-neutral", "cooling_energy", energy, "coil, whole year"),
             (
                 f"Hours above {100 * PART_LOAD_THRESHOLD:.0f} % of capacity",
                 "ps-neutral",
-                now.hours_above_threshold,
+                "hours_above_threshold",
                 lambda v: (f"{int(v):,}", "h"),
                 "of the year",
             ),
         ]
         html_cards = []
-        for label, css, value, fmt, note in cards:
-            text, unit = fmt(value)
-            extra = ""
-            if pinned is not None:
-                field = {
-                    "Design zone load": "design_zone_load",
-                    "Design coil load": "design_coil_load",
-                    "Peak coil load, year": "peak_coil_load",
-                    "Recommended capacity": "recommended_capacity",
-                    "Cooling energy, year": "cooling_energy",
-                }.get(label, "hours_above_threshold")
-                before = getattr(pinned, field)
-                before_text, _ = fmt(before)
-                change = (value - before) / before * 100 if before else 0.0
+        for label, css, field, fmt, note in cards:
+            value = getattr(now, field)
+            before = getattr(pinned, field) if pinned is not None else None
+            if fmt is None:  # text
+                text, unit = html.escape(str(value)), ""
                 extra = (
-                    f"<div class='ps-pinned'><span class='ps-tag'>A</span> {before_text} {unit}"
-                    f" · <span class='ps-tag'>B</span> {change:+.1f} %</div>"
+                    f"<div class='ps-pinned'><span class='ps-tag'>A</span> "
+                    f"{html.escape(str(before))}</div>"
+                    if pinned is not None
+                    else ""
                 )
+            else:
+                text, unit = fmt(value)
+                extra = ""
+                if pinned is not None:
+                    before_text, _ = fmt(before)
+                    change = (value - before) / before * 100 if before else 0.0
+                    extra = (
+                        f"<div class='ps-pinned'><span class='ps-tag'>A</span> {before_text} "
+                        f"{unit} · <span class='ps-tag'>B</span> {change:+.1f} % against A</div>"
+                    )
+            unit_html = f"<span class='ps-unit'>{unit}</span>" if unit else ""
+            note_html = f"<div class='ps-note'>{note}</div>" if note else ""
             html_cards.append(
                 f"<div class='ps-card {css}'><div class='ps-name'>{label}</div>"
-                f"<div class='ps-value'>{text}<span class='ps-unit'>{unit}</span></div>"
-                f"<div class='ps-note'>{note}</div>{extra}</div>"
+                f"<div class='ps-value'>{text}{unit_html}</div>{note_html}{extra}</div>"
             )
-        governing = html.escape(now.governing_condition)
-        extra = ""
-        if pinned is not None:
-            extra = (
-                f"<div class='ps-pinned'><span class='ps-tag'>A</span> "
-                f"{html.escape(pinned.governing_condition)}</div>"
-            )
-        html_cards.insert(
-            2,
-            f"<div class='ps-card ps-wide ps-neutral'><div class='ps-name'>Governing design "
-            f"condition</div><div class='ps-value'>{governing}</div>{extra}</div>",
-        )
         return f"<div class='ps-cards'>{''.join(html_cards)}</div>"
 
     # ------------------------------------------------------------------ exports

@@ -151,7 +151,11 @@ class Controls:
         )
         self.widgets["climate"].add_class("plantside-climate")
         self.widgets["weather_upload"] = widgets.FileUpload(
-            accept=".csv,text/csv", multiple=False, description="Upload hourly CSV"
+            accept=".csv,text/csv",
+            multiple=False,
+            description="Upload hourly CSV",
+            icon="",
+            layout=widgets.Layout(width="auto"),
         )
         self.widgets["weather_upload"].add_class("plantside-weather-upload")
         self.widgets["economizer"] = widgets.Dropdown(
@@ -188,11 +192,15 @@ class Controls:
         )
         self.widgets["unit_system"].add_class("plantside-unit-system")
         self.widgets["scenario_upload"] = widgets.FileUpload(
-            accept=".toml", multiple=False, description="Load scenario"
+            accept=".toml",
+            multiple=False,
+            description="Open scenario (TOML)",
+            icon="",
+            layout=widgets.Layout(width="auto"),
         )
         self.widgets["scenario_upload"].add_class("plantside-scenario-upload")
         self.widgets["pin"] = widgets.Button(
-            description="Pin as A", icon="thumb-tack", tooltip="Freeze these results to compare"
+            description="Pin as A", tooltip="Freeze these results to compare with"
         )
         self.widgets["pin"].add_class("plantside-pin")
         self.widgets["unpin"] = widgets.Button(description="Clear A", disabled=True)

@@ -381,8 +381,12 @@ def _choice(name: str, value, allowed) -> str:
 
 
 def _kind_label(kind: str, percent: float) -> str:
-    names = {"cooling": "Dry bulb", "dehumidification": "Dew point", "enthalpy": "Enthalpy"}
-    return f"{names.get(kind, kind)} {percent:g} %"
+    names = {
+        "cooling": "Dry-bulb condition",
+        "dehumidification": "Dew-point condition",
+        "enthalpy": "Enthalpy condition",
+    }
+    return f"{names.get(kind, kind)}, {percent:g} %"
 
 
 class DashboardState:
