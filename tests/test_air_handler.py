@@ -46,12 +46,9 @@ from plantside.zone_loads import HourlyZoneLoads, ZoneLoadModel, zone_loads_for_
 
 @pytest.fixture(autouse=True)
 def _psychrolib_in_si():
-    """psychrolib's unit system is global; other test modules may leave it in IP."""
-    previous = psychrolib.GetUnitSystem()
+    """psychrolib's unit system is global and SI is the suite's default; a test elsewhere
+    may leave it in IP, so set it before each test (and leave it in SI)."""
     psychrolib.SetUnitSystem(psychrolib.SI)
-    yield
-    if previous is not None:
-        psychrolib.SetUnitSystem(previous)
 
 
 P = 101325.0  # Pa, ASHRAE 2017 Ch. 1 Table 1

@@ -37,12 +37,9 @@ P = 101325.0  # Pa, ASHRAE 2017 Ch. 1 Table 1
 
 @pytest.fixture(autouse=True)
 def _psychrolib_in_si():
-    """psychrolib's unit system is global; other test modules may leave it in IP."""
-    previous = psychrolib.GetUnitSystem()
+    """psychrolib's unit system is global and SI is the suite's default; a test elsewhere
+    may leave it in IP, so set it before each test (and leave it in SI)."""
     psychrolib.SetUnitSystem(psychrolib.SI)
-    yield
-    if previous is not None:
-        psychrolib.SetUnitSystem(previous)
 
 
 def _w_for_enthalpy(t, h):
@@ -61,7 +58,7 @@ def test_enthalpy_limit_conversion_with_psychrolib():
     # psychrolib in IP (0 °F dry-air reference) and SI (0 °C reference) for the same state:
     # the SI value of an IP enthalpy follows from enthalpy_si_from_ip_table.
     w = 0.0095
-    psychrolib.SetUnitSystem(psychrolib.IP)  # the autouse fixture restores the system
+    psychrolib.SetUnitSystem(psychrolib.IP)
     h_ip = psychrolib.GetMoistAirEnthalpy(75.0, w)  # Btu/lb
     psychrolib.SetUnitSystem(psychrolib.SI)
     h_si = psychrolib.GetMoistAirEnthalpy((75.0 - 32.0) / 1.8, w) / 1000.0
