@@ -152,7 +152,7 @@ def hourly_results(v: SimpleNamespace) -> dict:
         recovery,
         w_e,
         reheat_mode,
-        estimated_error,
+        change,
         t_r,
         w_z,
         blow_through,
@@ -195,7 +195,7 @@ def hourly_results(v: SimpleNamespace) -> dict:
         v.recovery,
         v.w_e,
         v.reheat_mode,
-        v.estimated_error,
+        v.change,
         v.t_r,
         v.w_z,
         v.blow_through,
@@ -363,7 +363,7 @@ def hourly_results(v: SimpleNamespace) -> dict:
         # the zone loads of off hours are not met by this unit
         out["zone_sensible_unmet_kW"] = np.where(off, q_sens, out["zone_sensible_unmet_kW"])
         out["zone_latent_unmet_kW"] = np.where(off, q_lat, out["zone_latent_unmet_kW"])
-    out["humidity_iteration_change"] = estimated_error
+    out["humidity_iteration_change"] = change
     adp_required = np.where(cooling & operating, t_adp, np.nan)
     out["apparatus_dew_point_required_C"] = np.broadcast_to(adp_required, shape)
     return out
