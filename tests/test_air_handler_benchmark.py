@@ -114,9 +114,17 @@ def test_one_year_against_a_per_hour_loop(case):
         f"{1e3 * default:.2f} ms (CPU {1e3 * default_cpu:.2f} ms)",
         flush=True,
     )
-    for key in ("coil_total_kW", "coil_latent_kW", "heating_coil_kW", "zone_humidity_ratio_kgkg"):
+    # Agreement to the model's solution tolerance (humidity ~5e-7 kg/kg, dry bulbs ~1e-3 K,
+    # so loads ~0.01 kW): one hour alone may stop after a different number of passes.
+    tolerances = {
+        "coil_total_kW": 0.01,
+        "coil_latent_kW": 0.01,
+        "heating_coil_kW": 0.01,
+        "zone_humidity_ratio_kgkg": 2e-6,
+    }
+    for key, atol in tolerances.items():
         looped = np.array([r[key][0] for r in rows])
-        np.testing.assert_allclose(looped, vector[key][sample], rtol=1e-4, atol=1e-3)
+        np.testing.assert_allclose(looped, vector[key][sample], rtol=1e-3, atol=atol)
     modes = np.array([r["economizer_mode"][0] for r in rows])
     assert np.mean(modes == vector["economizer_mode"][sample]) > 0.999
 
