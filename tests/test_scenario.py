@@ -87,7 +87,7 @@ def _corrupt(tmp_path, old, new, name="bad.toml"):
         # missing required field
         ('unit_system = "IP"', "", "unit_system", "missing"),
         # out of range (caught by the model's own validation, reported with the file path)
-        ("bypass_factor = 0.08", "bypass_factor = 1.5", "air_handler[1].bypass_factor", "allowed"),
+        ("bypass_factor = 0.10", "bypass_factor = 1.5", "air_handler[2].bypass_factor", "allowed"),
         # a climate that is not bundled
         (
             'climate = "Salvia Flats"',

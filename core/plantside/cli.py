@@ -38,6 +38,22 @@ def _fmt(quantity, value_si, system, digits=1):
     return f"{float(value):,.{digits}f} {unit}"
 
 
+def _condition_text(condition, system) -> str:
+    """A design condition in the user's units, e.g. 'dehumidification 0.4 %: 78.7 °F DP'."""
+    main = {
+        "cooling": ("temperature", condition.drybulb, "DB"),
+        "heating": ("temperature", condition.drybulb, "DB"),
+        "dehumidification": ("temperature", condition.dew_point, "DP"),
+        "enthalpy": ("enthalpy", condition.enthalpy, ""),
+    }[condition.kind]
+    text = f"{condition.kind} {condition.percent:g} %: {_fmt(main[0], main[1], system)} {main[2]}"
+    if condition.kind == "cooling":
+        text += f" / {_fmt('temperature', condition.wet_bulb, system)} MCWB"
+    elif condition.kind in ("dehumidification", "enthalpy"):
+        text += f" / {_fmt('temperature', condition.drybulb, system)} MCDB"
+    return text.replace("  ", " ").strip()
+
+
 def _design_text(result) -> str:
     from .study import heating_load_columns
 
@@ -49,25 +65,13 @@ def _design_text(result) -> str:
         "",
     ]
     for condition in result.conditions.conditions:
-        if (
-            condition.kind == "heating"
-            or np.isclose(condition.percent, scenario.cooling_design_percent)
-            or np.isclose(condition.percent, scenario.heating_design_percent)
-        ):
-            if condition.kind != "heating" and not np.isclose(
-                condition.percent, scenario.cooling_design_percent
-            ):
-                continue
-            if condition.kind == "heating" and not np.isclose(
-                condition.percent, scenario.heating_design_percent
-            ):
-                continue
-            lines.append(
-                f"  design condition {condition.kind:<17} {condition.percent:>5g} %: "
-                f"{_fmt('temperature', condition.drybulb, system)} DB, "
-                f"{_fmt('temperature', condition.wet_bulb, system)} WB, "
-                f"{_fmt('temperature', condition.dew_point, system)} DP"
-            )
+        wanted = (
+            scenario.heating_design_percent
+            if condition.kind == "heating"
+            else scenario.cooling_design_percent
+        )
+        if np.isclose(condition.percent, wanted):
+            lines.append(f"  design condition {_condition_text(condition, system)}")
     lines.append("")
     width = max(14, *(len(u.name) + 2 for u in result.air_handlers))
     header = (
@@ -92,11 +96,17 @@ def _design_text(result) -> str:
             f"{unit.name:<{width}}{'heating':<18}{'':>14}{_fmt('heating_power', heat, system):>14}"
         )
     lines += ["(* governs the coil)", ""]
+    cooling_kind = str(result.cooling.design_table["plant_kW"].idxmax())
+    governing = {
+        "cooling": result.conditions.cooling(cooling_kind, scenario.cooling_design_percent),
+        "heating": result.conditions.heating(scenario.heating_design_percent),
+    }
     for plant, quantity in ((result.cooling, "power"), (result.heating, "heating_power")):
+        condition = governing[plant.kind]
         lines.append(
             f"{plant.kind.capitalize()} plant: design load "
             f"{_fmt(quantity, plant.design_load, system)}"
-            f" ({plant.governing}); with {plant.margin_percent:g} % margin "
+            f" ({_condition_text(condition, system)}); with {plant.margin_percent:g} % margin "
             f"{_fmt(quantity, plant.design_capacity, system)}; the year's peak "
             f"{_fmt(quantity, plant.annual_peak, system)}"
         )
