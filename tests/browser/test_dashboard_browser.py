@@ -76,14 +76,22 @@ def expected_design_card(fraction: float) -> str:
 
 def open_dashboard(page, server, notebook: str = NOTEBOOK) -> float:
     """Open a dashboard page; return seconds until figures and all five charts are drawn."""
+    from playwright.sync_api import TimeoutError as PlaywrightTimeout
+
     start = time.perf_counter()
     page.goto(server.notebook_url(notebook), wait_until="commit", timeout=WIDGET_TIMEOUT_MS)
-    page.wait_for_selector(".plantside-figures .ps-card", timeout=WIDGET_TIMEOUT_MS)
-    for name in ("design", "year", "distribution", "psychrometric", "sweep"):
-        page.wait_for_selector(
-            f"{CHART_HOST.format(name=name)} canvas, {CHART_HOST.format(name=name)} svg.marks",
-            timeout=WIDGET_TIMEOUT_MS,
-        )
+    try:
+        page.wait_for_selector(".plantside-figures .ps-card", timeout=WIDGET_TIMEOUT_MS)
+        for name in ("design", "year", "distribution", "psychrometric", "sweep"):
+            page.wait_for_selector(
+                f"{CHART_HOST.format(name=name)} canvas, {CHART_HOST.format(name=name)} svg.marks",
+                timeout=WIDGET_TIMEOUT_MS,
+            )
+    except PlaywrightTimeout:
+        body = page.inner_text("body")[:2000]
+        raise AssertionError(
+            f"the dashboard did not appear.\nPage text:\n{body}\nServer log:\n{server.log_text()}"
+        ) from None
     return time.perf_counter() - start
 
 
@@ -242,13 +250,13 @@ def test_plant_page_and_pinned_comparison(dashboard_server, new_page, screenshot
 def test_four_sessions_at_once_keep_their_own_results(dashboard_server, new_page):
     pages = [new_page(1400, 1000) for _ in range(4)]
     loads = []
+    start = time.perf_counter()
     for page in pages:  # start all four page loads before waiting for any
         page.goto(
             dashboard_server.notebook_url(NOTEBOOK),
             wait_until="commit",
             timeout=WIDGET_TIMEOUT_MS,
         )
-    start = time.perf_counter()
     for page in pages:
         page.wait_for_selector(".plantside-figures .ps-card", timeout=WIDGET_TIMEOUT_MS)
         page.wait_for_selector(".plantside-chart-sweep canvas, .plantside-chart-sweep svg.marks")

@@ -160,6 +160,8 @@ class Dashboard:
         self.figures.add_class("plantside-figures")
         self.status = widgets.HTML()
         self.status.add_class("plantside-status")
+        self.mini_figures = widgets.HTML()  # the key figures, beside the controls
+        self.mini_figures.add_class("plantside-mini")
         self.model_cautions = widgets.HTML()
         self.model_cautions.add_class("plantside-cautions")
         self.charts: dict[str, alt.JupyterChart] = {}
@@ -190,7 +192,7 @@ class Dashboard:
         air_handler.observe(self._on_air_handler, names="value")
         self.air_handler_choice = air_handler
         group = lambda text: widgets.HTML(f"<div class='ps-group'>{text}</div>")  # noqa: E731
-        sidebar_parts = [group("Air handler")]
+        sidebar_parts = [self.mini_figures, group("Air handler")]
         if len(self.state.names) > 1:
             sidebar_parts.append(
                 widgets.VBox(
@@ -230,6 +232,7 @@ class Dashboard:
         body = widgets.HBox(
             [sidebar, chart_column], layout=widgets.Layout(align_items="flex-start")
         )
+        body.add_class("plantside-body")
         style = widgets.HTML(f"<style>{_css()}</style>")
         app = widgets.VBox(
             [
@@ -486,6 +489,7 @@ class Dashboard:
             f"plantside {__version__}</div>"
         )
         self.figures.value = self._figures_html()
+        self.mini_figures.value = self._mini_html()
         if state.stale:
             self.status.value = (
                 "<span class='ps-stale'>⚠ The figures and charts show the last valid result; "
@@ -505,6 +509,18 @@ class Dashboard:
             f"<div class='plantside-message'>⚠ {html.escape(state.messages['export'])}</div>"
             if state.messages.get("export")
             else ""
+        )
+
+    def _mini_html(self) -> str:
+        """Design coil load, its ratio to the zone load and the capacity, for the sidebar."""
+        system = self.state.inputs.unit_system
+        now = self.state.result.figures
+        coil, unit = _quantity("power", now.design_coil_load, system)
+        capacity, _ = _quantity("power", now.recommended_capacity, system)
+        stale = "<div class='ps-stale'>⚠ last valid result shown</div>" if self.state.stale else ""
+        return (
+            f"Design coil load <b>{coil}</b> {unit} ({now.coil_to_zone_ratio:.2f} × zone)<br>"
+            f"Recommended capacity <b>{capacity}</b> {unit}{stale}"
         )
 
     def _figures_html(self) -> str:

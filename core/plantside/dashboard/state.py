@@ -333,8 +333,9 @@ class DashboardResult:
     coil_load, zone_load : numpy.ndarray
         Hourly coil and zone load of the view [kW].
     design_loads : dict
-        SI components of the design coil load of the view [kW] (the keys of
-        :func:`plantside.charts.frames.design_breakdown_frame`).
+        The design point's power terms of the view [kW] (``DesignPoint.loads``
+        keys ending in ``_kW``; summed over air handlers for the plant, with
+        ``distribution_gain_kW`` added and included in ``coil_total_kW``).
     machine_capacities : numpy.ndarray
         Capacities of the machines of the first cooling plant option [kW].
     minimum_turndown : float
@@ -768,7 +769,7 @@ class DashboardState:
         if self.view == "air_handler":
             unit = units[inputs.air_handler]
             loads = unit.design.governing.loads
-            design_loads = _breakdown(loads)
+            design_loads = _loads_kw(loads)
             design_zone = float(loads["zone_sensible_kW"]) + float(loads["zone_latent_kW"])
             design_coil = float(loads["coil_total_kW"])
             governing = str(unit.design.governing.label)
@@ -782,7 +783,7 @@ class DashboardState:
             points = [u.design.summary.points[kind] for u in units]
             design_loads = {}
             for point in points:
-                for key, value in _breakdown(point.loads).items():
+                for key, value in _loads_kw(point.loads).items():
                     design_loads[key] = design_loads.get(key, 0.0) + value
             factor = 1.0 + gain / 100.0
             design_loads["distribution_gain_kW"] = (factor - 1.0) * design_loads["coil_total_kW"]
@@ -808,6 +809,23 @@ class DashboardState:
             hours_above_threshold=int(np.count_nonzero(coil > PART_LOAD_THRESHOLD * capacity)),
             recommended_capacity=capacity,
         )
+        numbers = (
+            figures.design_zone_load,
+            figures.design_coil_load,
+            figures.peak_coil_load,
+            figures.cooling_energy,
+            figures.recommended_capacity,
+        )
+        if not (np.all(np.isfinite(coil)) and np.all(np.isfinite(zone))) or not all(
+            math.isfinite(x) for x in (*numbers, *design_loads.values())
+        ):
+            # never draw or show a NaN: refuse the result, keep the last valid one
+            raise InputRangeError(
+                "results",
+                "the model gave a non-finite load for these inputs; the last valid result "
+                "is kept (please report the inputs)",
+                "finite loads",
+            )
         cautions = []
         for unit in units:
             for text in (*unit.design.governing.cautions, *unit.hourly.attrs.get("cautions", ())):
@@ -848,19 +866,6 @@ def _zone_hourly(hourly: pd.DataFrame) -> np.ndarray:
     return (hourly["zone_sensible_kW"] + hourly["zone_latent_kW"]).to_numpy(dtype=float)
 
 
-def _breakdown(loads: Mapping[str, float]) -> dict:
-    """Design-breakdown components [kW] from a design point's loads."""
-    effect = float(loads.get("economizer_effect_kW", 0.0)) + float(
-        loads.get("recovery_effect_kW", 0.0)
-    )
-    keys = (
-        "zone_sensible_kW",
-        "zone_latent_kW",
-        "ventilation_sensible_kW",
-        "ventilation_latent_kW",
-        "fan_heat_kW",
-        "coil_total_kW",
-    )
-    out = {key: float(loads.get(key, 0.0)) for key in keys}
-    out["economizer_recovery_kW"] = -effect
-    return out
+def _loads_kw(loads: Mapping[str, float]) -> dict:
+    """The power terms [kW] of a design point's loads (what the design chart breaks down)."""
+    return {key: float(value) for key, value in loads.items() if key.endswith("_kW")}
