@@ -104,3 +104,23 @@ def test_installed_entry_point_runs_and_fails_cleanly(tmp_path):
     )
     assert run.returncode == 2
     assert "Traceback" not in run.stderr and "plantside: error" in run.stderr
+
+
+def test_charts_writes_every_dashboard_chart_as_png_and_svg(tmp_path):
+    import xml.etree.ElementTree as ET
+
+    office = SCENARIOS / "linden_office_si.toml"
+    assert main(["charts", str(office), "--out", str(tmp_path)]) == 0
+    pngs = sorted(tmp_path.glob("*.png"))
+    svgs = sorted(tmp_path.glob("*.svg"))
+    # The plant view and the one air handler's view, five charts each (the dashboard's five).
+    assert len(pngs) == len(svgs) == 10
+    for png in pngs:
+        data = png.read_bytes()
+        assert data[:8] == b"\x89PNG\r\n\x1a\n"  # PNG signature (ISO/IEC 15948)
+        width = int.from_bytes(data[16:20], "big")  # IHDR width
+        assert width >= 1200  # report resolution (scale 2)
+    for svg in svgs:
+        root = ET.fromstring(svg.read_text(encoding="utf-8"))
+        assert root.tag.endswith("svg")
+        assert "Elmstead Works" in svg.read_text(encoding="utf-8")  # the scenario stamp

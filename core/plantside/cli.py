@@ -154,29 +154,47 @@ def _cmd_year(args) -> int:
     path = out / "summary.json"
     path.write_text(json.dumps(summary, indent=2, allow_nan=False), encoding="utf-8")
     written.append(path)
-    if args.json:
-        print(json.dumps({"written": [str(p) for p in written]}, indent=2))
-    else:
-        for p in written:
-            print(p)
-    return EXIT_OK
+    return _report_written(written, args.json)
 
 
 def _cmd_charts(args) -> int:
+    # The same charts the dashboard shows, built by the dashboard itself (headless), so a
+    # report and a meeting never disagree: the plant view, then each air handler's view.
     from .charts.export import save_chart
-    from .charts.study import study_charts
+    from .dashboard.app import CHARTS, Dashboard
+    from .dashboard.download import safe_filename
+    from .scenario import load_scenario
 
-    result = _load(args.scenario)
+    scenario = load_scenario(args.scenario)
     out = Path(args.out)
     out.mkdir(parents=True, exist_ok=True)
+    views = [("plant", Dashboard(scenario, view="plant"))]
+    views += [
+        (
+            safe_filename(spec.settings.name.replace(" ", "-").lower()),
+            Dashboard(scenario, view="air_handler", air_handler=index),
+        )
+        for index, spec in enumerate(scenario.air_handlers)
+    ]
     written = []
-    for name, chart in study_charts(result).items():
-        written += save_chart(chart, out, name, formats=("png", "svg"))
-    if args.json:
+    for prefix, dashboard in views:
+        for name, stem in CHARTS.items():
+            written += save_chart(
+                dashboard.chart_specs[name],
+                out,
+                f"{prefix}_{stem}",
+                formats=("png", "svg"),
+                stamp=dashboard.stamp(),
+            )
+    return _report_written(written, args.json)
+
+
+def _report_written(written, as_json: bool) -> int:
+    if as_json:
         print(json.dumps({"written": [str(p) for p in written]}, indent=2))
     else:
-        for p in written:
-            print(p)
+        for path in written:
+            print(path)
     return EXIT_OK
 
 
