@@ -99,6 +99,7 @@ def start_server(
     log: Path,
     env: dict | None = None,
     expected_kernels: int = 0,
+    check_url: str = "/",
 ) -> VoilaServer:
     """Start ``command`` (a Voila server on ``port``) and wait until it answers.
 
@@ -120,7 +121,7 @@ def start_server(
     while time.monotonic() < deadline:
         if process.poll() is not None:
             raise RuntimeError(f"Voila exited with {process.returncode}:\n{server.log_text()}")
-        if _answers(server.base_url + "/"):
+        if _answers(server.base_url + check_url):
             break
         time.sleep(0.5)
     else:
@@ -228,8 +229,10 @@ def voila_launcher():
     """Factory: ``launch(command, port, log)`` starts a server, stopped after the module."""
     servers = []
 
-    def launch(command, port, log, env=None, expected_kernels=0):
-        server = start_server(command, port, log, env=env, expected_kernels=expected_kernels)
+    def launch(command, port, log, env=None, expected_kernels=0, check_url="/"):
+        server = start_server(
+            command, port, log, env=env, expected_kernels=expected_kernels, check_url=check_url
+        )
         servers.append(server)
         return server
 

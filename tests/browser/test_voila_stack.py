@@ -73,3 +73,30 @@ def test_widgets_and_download_reach_the_browser(trivial_server, new_page):
     download = download_info.value
     assert download.suggested_filename == "stack test.csv"
     assert open(download.path(), "rb").read() == b"hour,load_kw\n1,2.5\n"
+
+
+def test_token_keeps_out_visitors_without_it(voila_launcher, tmp_path):
+    """A served dashboard with a token (as ``--lan`` sets) refuses requests without it."""
+    import urllib.error
+    import urllib.request
+
+    port = voila_launcher.free_port()
+    command = [
+        sys.executable,
+        "-m",
+        "plantside.dashboard.serve",
+        f"--port={port}",
+        "--token=test-token-123",
+        "--no-preheat",
+    ]
+    server = voila_launcher(
+        command, port, tmp_path / "voila.log", check_url="/?token=test-token-123"
+    )
+    with urllib.request.urlopen(f"{server.base_url}/?token=test-token-123", timeout=30) as reply:
+        assert reply.status == 200
+    try:
+        with urllib.request.urlopen(f"{server.base_url}/voila/render/plant.ipynb", timeout=30) as r:
+            final = r.geturl()  # redirected to the login page
+            assert "login" in final, final
+    except urllib.error.HTTPError as error:
+        assert error.code in (401, 403)

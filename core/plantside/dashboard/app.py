@@ -169,7 +169,9 @@ class Dashboard:
             chart = self._build_chart(name)
             self.chart_specs[name] = chart
             # validated once against the schema; no vega-embed menu (it links to web editors)
-            self.charts[name] = alt.JupyterChart(chart, embed_options={"actions": False})
+            self.charts[name] = alt.JupyterChart(
+                chart, embed_options={"actions": False, "renderer": "canvas"}
+            )
             self.charts[name].add_class(f"plantside-chart-{name}")
             self._chart_keys[name] = self._chart_key(name)
             self.spec_writer.seed(name, chart, self._structure(name), self.charts[name].spec)

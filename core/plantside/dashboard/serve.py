@@ -19,6 +19,7 @@ from __future__ import annotations
 import argparse
 import os
 import secrets
+import socket
 import subprocess
 import sys
 from pathlib import Path
@@ -28,6 +29,7 @@ __all__ = [
     "SCENARIO_ENVIRONMENT_VARIABLE",
     "SECURITY_NOTE",
     "dashboards_folder",
+    "lan_address",
     "main",
     "voila_command",
 ]
@@ -41,6 +43,22 @@ SECURITY_NOTE = (
     "reach this port and has the token can use the dashboard and its server-side kernels. "
     "Serve it on a trusted network or behind an authenticating proxy."
 )
+
+
+def lan_address() -> str:
+    """This computer's address on the local network, as colleagues would type it.
+
+    Asks the operating system which interface it would route an outside address
+    through (a UDP "connect" sends no packet); falls back to the host name.
+    """
+    probe = socket.socket(socket.AF_INET, socket.SOCK_DGRAM)
+    try:
+        probe.connect(("10.255.255.255", 1))
+        return str(probe.getsockname()[0])
+    except OSError:
+        return socket.gethostname()
+    finally:
+        probe.close()
 
 
 def dashboards_folder() -> Path:
@@ -182,7 +200,7 @@ def main(argv: list[str] | None = None) -> int:
             print(f"error: scenario file {scenario} not found", file=sys.stderr)
             return 2
         environment[SCENARIO_ENVIRONMENT_VARIABLE] = str(scenario)
-    host = "<this computer's address>" if args.lan else "127.0.0.1"
+    host = lan_address() if args.lan else "127.0.0.1"
     query = f"?token={token}" if token else ""
     notebooks = sorted(p.name for p in dashboards.glob("*.ipynb")) if dashboards.is_dir() else []
     print("plantside dashboards:")
