@@ -348,6 +348,11 @@ def test_widget_values_out_of_range_never_reach_the_model(dashboard):
     slider = dashboard.controls.widgets["outdoor_air_fraction"]
     slider.value = 1e9  # ipywidgets clamps to the slider's range
     assert 0.0 <= dashboard.state.inputs.outdoor_air_fraction <= 1.0
+    kept = dashboard.state.inputs.outdoor_air_fraction
+    slider.value = float("nan")  # a page can send NaN; the slider does not clamp it
+    assert dashboard.state.inputs.outdoor_air_fraction == kept
+    assert "outside" in dashboard.controls.messages["outdoor_air_fraction"].value
+    assert slider.value == pytest.approx(100 * kept)  # the slider shows the kept value again
     with pytest.raises(Exception):  # noqa: B017 - a traitlets error for an unknown option
         dashboard.controls.widgets["economizer"].value = "not-a-control"
     assert dashboard.state.inputs.economizer in (

@@ -372,7 +372,7 @@ class Controls:
                         slider.max = high
                         slider.step = step
                     shown = min(max(shown, low), high)
-                    if abs(slider.value - shown) > 1e-9:
+                    if not abs(slider.value - shown) <= 1e-9:  # also replaces a NaN
                         slider.value = shown
                 self.labels[
                     name
