@@ -194,16 +194,18 @@ class Dashboard:
         air_handler.observe(self._on_air_handler, names="value")
         self.air_handler_choice = air_handler
         group = lambda text: widgets.HTML(f"<div class='ps-group'>{text}</div>")  # noqa: E731
-        sidebar_parts = [self.mini_figures, group("Air handler")]
-        if len(self.state.names) > 1:
-            sidebar_parts.append(
-                widgets.VBox(
-                    [
-                        widgets.HTML("<span class='plantside-label'>Air handler shown</span>"),
-                        air_handler,
-                    ]
-                )
-            )
+        label = (
+            "Air handler shown"
+            if self.view == "air_handler"
+            else "Air handler the controls below adjust"
+        )
+        sidebar_parts = [
+            self.mini_figures,
+            group("Air handler"),
+            widgets.VBox(
+                [widgets.HTML(f"<span class='plantside-label'>{label}</span>"), air_handler]
+            ),
+        ]
         sidebar_parts += [
             c.box("outdoor_air_fraction"),
             c.box("supply_air_temperature"),
