@@ -128,12 +128,37 @@ def start_server(
         stop_server(server)
         raise RuntimeError(f"Voila did not answer within {SERVER_START_TIMEOUT_S} s")
     while expected_kernels and time.monotonic() < deadline:
-        # Voila logs "Kernel pool of <notebook> is filled" once a pre-started kernel
-        # has run its notebook; page timings should not include that.
+        # Voila logs "Kernel pool of <notebook> is filled" when the kernel has started
         if server.log_text().count("is filled") >= expected_kernels:
             break
         time.sleep(0.5)
+    if expected_kernels:
+        wait_for_idle_kernels(server, deadline)
     return server
+
+
+def wait_for_idle_kernels(server: VoilaServer, deadline: float, quiet_s: float = 2.0) -> None:
+    """Wait until the server's kernels stop using the processor.
+
+    A pre-started kernel runs its notebook after Voila reports the pool filled; page
+    timings should start from a kernel that has finished (as it has in normal use).
+    Idle means no kernel used more than 0.1 s of processor time over ``quiet_s``.
+    """
+
+    def cpu(kernel):
+        try:
+            times = kernel.cpu_times()
+            return times.user + times.system
+        except psutil.NoSuchProcess:
+            return 0.0
+
+    while time.monotonic() < deadline:
+        kernels = server.kernel_processes()
+        before = [cpu(k) for k in kernels]
+        time.sleep(quiet_s)
+        after = [cpu(k) for k in kernels]
+        if kernels and all(b - a < 0.1 for a, b in zip(before, after, strict=True)):
+            return
 
 
 def stop_server(server: VoilaServer) -> None:
