@@ -49,18 +49,31 @@ def benchmark_sweep(folder: Path, cases: int):
     return load_sweep(path)
 
 
+def _load() -> str:
+    """The machine's 1-minute load average: other work running at the same time skews
+    the multi-core figures (a shared 2-core machine shows it plainly)."""
+    try:
+        return f"load {os.getloadavg()[0]:.1f}"
+    except (AttributeError, OSError):
+        return "load n/a"
+
+
 def measure(cases: int, folder: Path, report=print) -> dict:
     """Run the three set-ups on the same sweep; report and return cases/s and the tables."""
     from dask.distributed import Client, LocalCluster
 
     sweep = benchmark_sweep(folder, cases)
-    report(f"\nsweep benchmark: {sweep.size} cases ({sweep.title}); {os.cpu_count()} CPUs seen")
+    report(
+        f"\nsweep benchmark: {sweep.size} cases ({sweep.title}); {os.cpu_count()} CPUs seen; "
+        f"{_load()} at the start"
+    )
     one = run_sweep(sweep, folder / "one", workers=1)
-    report(f"  1 core (this process):        {one.cases_per_second:7.2f} cases/s")
+    report(f"  1 core (this process):        {one.cases_per_second:7.2f} cases/s  ({_load()})")
     two = run_sweep(sweep, folder / "two", workers=2)
     report(
         f"  2 cores (process pool):        {two.cases_per_second:7.2f} cases/s"
-        f"  (x{two.cases_per_second / one.cases_per_second:.2f} of 1 core; pool start included)"
+        f"  (x{two.cases_per_second / one.cases_per_second:.2f} of 1 core; pool start included; "
+        f"{_load()})"
     )
     started = time.perf_counter()
     with (
@@ -78,7 +91,7 @@ def measure(cases: int, folder: Path, report=print) -> dict:
     report(
         f"  Dask LocalCluster, 2 workers:  {dask.cases_per_second:7.2f} cases/s"
         f"  (x{dask.cases_per_second / one.cases_per_second:.2f} of 1 core; "
-        f"cluster start {start_up:.1f} s not included)"
+        f"cluster start {start_up:.1f} s not included; {_load()})"
     )
     report(
         f"  scaling ratio 2 cores / 1 core: {two.cases_per_second / one.cases_per_second:.2f}"
