@@ -523,3 +523,71 @@ def test_all_headline_figures_are_finite(dashboard):
         figures.recommended_capacity,
     ):
         assert math.isfinite(value) and value > 0
+
+
+# --------------------------------------------------------------------------- supply set points
+def test_supply_slider_carries_the_scenario_set_points_tied_to_it(scenario):
+    # OA-1 of the example has a leaving dew point limit of 50 °F and preheat to 45 °F
+    # (scenario file); the model accepts a leaving dew point at most the supply dry bulb
+    # and a preheat set point at most the supply dry bulb (AirHandlerSettings ranges). The
+    # slider's low end (43 °F) must still be accepted: both are carried down with it.
+    index = next(
+        i
+        for i, spec in enumerate(scenario.air_handlers)
+        if spec.settings.coil_model == "leaving_dew_point"
+    )
+    dashboard = Dashboard(scenario, view="air_handler", air_handler=index)
+    slider = dashboard.controls.widgets["supply_air_temperature"]
+    slider.value = slider.min
+    state = dashboard.state
+    assert not any(state.messages.values()), state.messages
+    supply = state.inputs.supply_air_temperature
+    assert supply == pytest.approx((43.0 - 32.0) / 1.8)
+    settings = state.current_scenario().air_handlers[index].settings
+    assert settings.leaving_dew_point == pytest.approx(supply)
+    assert settings.preheat_drybulb == pytest.approx(supply)
+    # the model's own result for the carried settings
+    summary, _ = model_figures(
+        scenario, index, supply_drybulb=supply, leaving_dew_point=supply, preheat_drybulb=supply
+    )
+    assert state.result.figures.design_coil_load == pytest.approx(
+        summary.points[summary.governing].loads["coil_total_kW"], rel=1e-9
+    )
+    # the page says what was carried, in the units on show
+    cautions = dashboard.model_cautions.value
+    assert "leaving dew point limit (50.0 °F) is taken as 43.0 °F" in cautions
+    assert "preheat set point (45.0 °F)" in cautions
+    # and the slider's top end is accepted too
+    slider.value = slider.max
+    assert not any(state.messages.values()), state.messages
+    assert "taken as" not in dashboard.model_cautions.value
+
+
+def test_supply_slider_raises_the_cold_weather_reset_with_it():
+    # the SI example resets the supply to 16 °C at cold outdoor conditions (scenario file);
+    # the model accepts a reset only at or above the supply set point
+    state = DashboardState(load_scenario(EXAMPLE.parent / "linden_office_si.toml"))
+    assert state.set("supply_air_temperature", 18.0), state.messages
+    settings = state.current_scenario().air_handlers[state.inputs.air_handler].settings
+    assert settings.supply_reset_drybulb == pytest.approx(18.0)
+    assert any("cold-weather supply reset (16.0 °C)" in note for note in state.carried_notes())
+
+
+def test_a_conflict_with_a_hidden_set_point_names_the_supply_control(scenario):
+    index = first_recirculating_unit(scenario)
+    spec = scenario.air_handlers[index]
+    settings = replace(
+        spec.settings,
+        coil_model="apparatus_dew_point",
+        apparatus_dew_point=9.0,
+        apparatus_dew_point_min=9.0,
+    )
+    specs = list(scenario.air_handlers)
+    specs[index] = replace(spec, settings=settings)
+    state = DashboardState(replace(scenario, air_handlers=tuple(specs)), air_handler=index)
+    # an apparatus dew point must be >= its minimum and below the supply dry bulb
+    # (AirHandlerSettings ranges): 9.2 °C leaves no room for both
+    assert not state.set("supply_air_temperature", 9.2)
+    message = state.messages["supply_air_temperature"]
+    assert message.startswith("Supply air temperature"), message
+    assert "apparatus dew point" in message

@@ -425,11 +425,6 @@ def test_settings_refuse_a_number_field_given_as_text_or_flag(value):
     assert_refused(lambda: AirHandlerSettings(supply_airflow=value), "supply_airflow")
 
 
-@pytest.mark.xfail(
-    strict=True,
-    reason="defect: D1 the dashboard's supply range ignores the scenario's supply reset and "
-    "preheat set point; the refusal names fields not on the page (reported)",
-)
 @pytest.mark.parametrize("end", ["high", "low"])
 def test_defect_d1_dashboard_supply_range_is_what_the_model_accepts(end):
     # The SI example has a supply reset to 16 °C and preheat at 5 °C. The supply control

@@ -503,7 +503,8 @@ class Dashboard:
             self.status.value = (
                 "<span class='ps-fresh'>Figures and charts show the current inputs.</span>"
             )
-        items = "".join(f"<li>{html.escape(text)}</li>" for text in result.cautions)
+        notes = (*state.carried_notes(), *result.cautions)
+        items = "".join(f"<li>{html.escape(text)}</li>" for text in notes)
         self.model_cautions.value = (
             f"<b>Model cautions for these inputs</b><ul>{items}</ul>"
             if items

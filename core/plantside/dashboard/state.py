@@ -44,6 +44,7 @@ import math
 import time
 from collections.abc import Callable, Mapping
 from dataclasses import dataclass, field, replace
+from types import SimpleNamespace
 
 import numpy as np
 import pandas as pd
@@ -55,7 +56,7 @@ from ..errors import InputFileError, InputRangeError, PlantsideError
 from ..plant_loads import plant_load_from_coil_loads
 from ..scenario import Scenario
 from ..sizing import design_capacity_from_design_load
-from ..units import UnitSystem
+from ..units import UnitSystem, to_display
 from ..weather import Weather
 from ..weather_import import read_weather_csv
 from ..zone_loads import HourlyZoneLoads, ZoneLoadModel, design_zone_loads
@@ -120,6 +121,18 @@ CONTROLS: dict[str, str] = {
     "unit_system": "none",
 }
 
+#: How far below the supply air temperature a carried apparatus dew point goes [K]
+#: (the model wants it strictly below; common practice (no source)).
+_ADP_BELOW_SUPPLY = 0.5
+
+#: Scenario settings tied to the supply air temperature that the page does not show.
+_HIDDEN_FIELDS = {
+    "supply_reset_drybulb": "cold-weather supply reset",
+    "preheat_drybulb": "preheat set point",
+    "leaving_dew_point": "leaving dew point limit",
+    "apparatus_dew_point": "apparatus dew point",
+}
+
 #: Model field named in an error -> the control whose message shows it.
 _FIELD_TO_CONTROL = {
     "minimum_outdoor_air_fraction": "outdoor_air_fraction",
@@ -127,6 +140,10 @@ _FIELD_TO_CONTROL = {
     "minimum_outdoor_airflow": "outdoor_air_fraction",
     "supply_drybulb": "supply_air_temperature",
     "supply_air_temperature": "supply_air_temperature",
+    "supply_reset_drybulb": "supply_air_temperature",
+    "preheat_drybulb": "supply_air_temperature",
+    "leaving_dew_point": "supply_air_temperature",
+    "apparatus_dew_point": "supply_air_temperature",
     "economizer": "economizer",
     "economizer_integrated": "economizer_integrated",
     "fan_control": "fan_control",
@@ -189,8 +206,6 @@ class UnitInputs:
                 minimum_outdoor_air_fraction=self.outdoor_air_fraction,
                 minimum_outdoor_airflow=None,
             )
-        if self.supply_air_temperature != original.supply_air_temperature:
-            changes["supply_drybulb"] = self.supply_air_temperature
         if self.economizer != original.economizer:
             changes["economizer"] = self.economizer
         if self.economizer_integrated != original.economizer_integrated:
@@ -199,7 +214,60 @@ class UnitInputs:
             changes["fan_control"] = self.fan_control
         if self.bypass_factor != original.bypass_factor:
             changes.update(coil_model="bypass_factor", bypass_factor=self.bypass_factor)
+        if self.supply_air_temperature != original.supply_air_temperature:
+            changes["supply_drybulb"] = self.supply_air_temperature
+            # carried along before the settings are rebuilt (they validate on creation)
+            pending = SimpleNamespace(**{**settings.__dict__, **changes})
+            changes.update(_carried_with_supply(pending)[0])
         return replace(settings, **changes) if changes else settings
+
+    def carried_notes(self, settings, system: str = "SI") -> tuple[str, ...]:
+        """What moving the supply air temperature changed among ``settings`` not on the page."""
+        if self.supply_air_temperature == UnitInputs.from_settings(settings).supply_air_temperature:
+            return ()
+        return _carried_with_supply(self.apply(settings), before=settings, system=system)[1]
+
+
+def _carried_with_supply(settings, before=None, system="SI") -> tuple[dict, tuple[str, ...]]:
+    """Set points the scenario ties to the supply air temperature, carried along with it.
+
+    The model accepts a cold-weather supply reset only at or above the supply set
+    point, a preheat set point only at or below it, a leaving dew point limit at
+    most equal to it and an apparatus dew point below it (see
+    :class:`plantside.air_handler_settings.AirHandlerSettings`). None of them is
+    on the page, so moving the supply air temperature carries them along instead
+    of refusing the move: ``(changes, notes)``; the notes (with ``before``, the
+    scenario's own settings) say what was carried, for the cautions list.
+    """
+    supply = float(settings.supply_drybulb)
+    changes = {}
+    if settings.supply_reset_drybulb is not None and settings.supply_reset_drybulb < supply:
+        changes["supply_reset_drybulb"] = supply
+    if settings.preheat_drybulb is not None and settings.preheat_drybulb > supply:
+        changes["preheat_drybulb"] = supply
+    if settings.coil_model == "leaving_dew_point" and (settings.leaving_dew_point or 0.0) > supply:
+        changes["leaving_dew_point"] = supply
+    if (
+        settings.coil_model == "apparatus_dew_point"
+        and (settings.apparatus_dew_point or 0.0) >= supply - _ADP_BELOW_SUPPLY / 2
+    ):
+        changes["apparatus_dew_point"] = supply - _ADP_BELOW_SUPPLY
+    notes = []
+    if before is not None:
+        words = _HIDDEN_FIELDS
+        unit = to_display("temperature", 0.0, system)[1]
+
+        def shown(value):
+            return f"{float(to_display('temperature', value, system)[0]):.1f} {unit}"
+
+        for name, text in words.items():
+            old, new = getattr(before, name), getattr(settings, name)
+            if old is not None and new is not None and old != new:
+                notes.append(
+                    f"{settings.name}: supply air temperature {shown(supply)}; the scenario's "
+                    f"{text} ({shown(old)}) is taken as {shown(new)} to stay consistent with it."
+                )
+    return changes, tuple(notes)
 
 
 @dataclass(frozen=True)
@@ -463,6 +531,14 @@ class DashboardState:
         zone = float(self.scenario.air_handlers[index].settings.zone_cooling_drybulb)
         return 4.0, zone - 0.5
 
+    def carried_notes(self, system: str | None = None) -> tuple[str, ...]:
+        """Scenario set points carried along with the supply air temperature (for the page)."""
+        system = self.inputs.unit_system if system is None else system
+        notes = []
+        for unit, spec in zip(self.result.inputs.units, self.scenario.air_handlers, strict=True):
+            notes.extend(unit.carried_notes(spec.settings, system))
+        return tuple(notes)
+
     @staticmethod
     def bypass_factor_range() -> tuple[float, float]:
         """Allowed coil bypass factor [-] (common practice: 0.03 to 0.3 for cooling coils)."""
@@ -568,7 +644,14 @@ class DashboardState:
                 blamed = control if recomputing else "climate"
             for name in CONTROLS:
                 self.messages[name] = ""
-            self.messages[blamed] = str(error)
+            text = str(error)
+            if getattr(error, "field", "") in _HIDDEN_FIELDS:
+                # a scenario setting the page does not show: say which control it concerns
+                text = (
+                    f"Supply air temperature: conflicts with a setting of this air handler "
+                    f"in the scenario file ({_HIDDEN_FIELDS[error.field]}): {text}"
+                )
+            self.messages[blamed] = text
             self._record(control, (), start, ok=False)
             return False
         recomputed = tuple(
