@@ -9,9 +9,11 @@ physical direction of each change is checked too, with its source beside it.
 from __future__ import annotations
 
 import datetime
+import html
 import io
 import json
 import math
+import re
 import tomllib
 from dataclasses import replace
 from pathlib import Path
@@ -22,7 +24,12 @@ import pytest
 from plantside.air_handler import cooling_design_points, hourly_year
 from plantside.climates import BUNDLED_CLIMATES, load_bundled_climate
 from plantside.dashboard.app import CHARTS, Dashboard, first_recirculating_unit
-from plantside.dashboard.state import PART_LOAD_THRESHOLD, DashboardState
+from plantside.dashboard.state import (
+    PART_LOAD_THRESHOLD,
+    DashboardState,
+    condition_text,
+    display_text,
+)
 from plantside.design_conditions import design_conditions_from_weather
 from plantside.scenario import load_scenario, loads_scenario
 from plantside.units import tons_from_kw
@@ -591,3 +598,86 @@ def test_a_conflict_with_a_hidden_set_point_names_the_supply_control(scenario):
     message = state.messages["supply_air_temperature"]
     assert message.startswith("Supply air temperature"), message
     assert "apparatus dew point" in message
+
+
+# --------------------------------------------------------------------------- units on show
+def _visible_text(markup: str) -> str:
+    return html.unescape(re.sub(r"<[^>]+>", " ", markup))
+
+
+@pytest.mark.parametrize("view", ["air_handler", "plant"])
+def test_every_figure_on_the_page_is_in_the_units_on_show(scenario, view):
+    dashboard = Dashboard(scenario, view=view)
+    dashboard.controls.widgets["pin"].click()  # the pinned "A" lines too
+    dashboard.controls.widgets["outdoor_air_fraction"].value = 40.0
+    condition = dashboard.state.result.figures.governing
+    for system, wrong, right in (
+        ("IP", ("°C", "kW", "kJ/kg", "MWh", "g/kg"), ("°F", "tons")),
+        ("SI", ("°F", "tons", "Btu/lb", "ton·h", "gr/lb"), ("°C", "kW")),
+    ):
+        dashboard.controls.widgets["unit_system"].value = system
+        page = " ".join(
+            _visible_text(w.value)
+            for w in (
+                dashboard.figures,
+                dashboard.mini_figures,
+                dashboard.model_cautions,
+                *dashboard.controls.messages.values(),
+            )
+        )
+        page += " " + dashboard.stamp()
+        for unit in wrong:
+            assert unit not in page, (system, unit, page)
+        for unit in right:
+            assert unit in page, (system, unit)
+        # the governing condition reads as the model's state converted, e.g. 35 °C = 95 °F
+        # (t_F = 1.8 t_C + 32, NIST SP 811) and enthalpy on the I-P scale
+        shown = condition_text(condition, system)
+        assert shown in _visible_text(dashboard.figures.value)
+        assert f"governing {shown}" in dashboard.stamp()
+        drybulb = condition.drybulb if system == "SI" else 1.8 * condition.drybulb + 32
+        assert f"{drybulb:.1f} {'°C' if system == 'SI' else '°F'}" in shown
+
+
+def test_condition_text_converts_every_kind():
+    # one fictional state, converted by hand: 35 °C = 95 °F, 24 °C = 75.2 °F (NIST SP 811);
+    # 0.0150 kg/kg = 105 gr/lb (7000 gr/lb); 73.6 kJ/kg -> Btu/lb on the I-P scale
+    # (dry air at 0 °F: h_IP = h_SI / 2.326 + 7.686, ASHRAE Handbook Fundamentals Ch. 1)
+    from plantside.design_conditions import DesignCondition
+    from plantside.units import btulb_from_kjkg
+
+    states = {
+        kind: DesignCondition(
+            kind=kind,
+            percent=0.4,
+            drybulb=35.0,
+            humidity_ratio=0.015,
+            pressure=101325.0,
+            dew_point=20.0,
+            wet_bulb=24.0,
+            enthalpy=73.6,
+            label="",
+            coincident_hours=10,
+            coincident_band=1.0,
+        )
+        for kind in ("cooling", "dehumidification", "enthalpy")
+    }
+    assert condition_text(states["cooling"], "IP") == "cooling 0.4 %: 95.0 °F DB / 75.2 °F MCWB"
+    assert condition_text(states["cooling"], "SI") == "cooling 0.4 %: 35.0 °C DB / 24.0 °C MCWB"
+    assert condition_text(states["dehumidification"], "IP") == (
+        "dehumidification 0.4 %: 68.0 °F DP / 105.0 gr/lb / 95.0 °F MCDB"
+    )
+    enthalpy = float(btulb_from_kjkg(73.6))
+    assert 35.0 < enthalpy < 40.0  # 73.6 kJ/kg is ~37.3 Btu/lb on the I-P scale (from memory)
+    assert condition_text(states["enthalpy"], "IP") == (
+        f"enthalpy 0.4 %: {enthalpy:.1f} Btu/lb / 95.0 °F MCDB"
+    )
+
+
+def test_model_text_reads_in_the_units_on_show():
+    # temperatures and powers in the model's SI messages; 1 ton = 3.516853 kW (AHRI 550/590)
+    text = "supply 3 °C is outside 4 to 23.5 °C; 35.17 kW unmet; 12 kWh; 0.5 K"
+    assert display_text(text, "SI") == text
+    assert display_text(text, "IP") == (
+        "supply 37.4 °F is outside 39.2 to 74.3 °F; 10.0 tons unmet; 12 kWh; 0.5 K"
+    )

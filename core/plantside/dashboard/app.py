@@ -49,7 +49,13 @@ from .controls import Controls
 from .download import BrowserDownload, safe_filename
 from .serve import SCENARIO_ENVIRONMENT_VARIABLE
 from .spec import SpecWriter
-from .state import PART_LOAD_THRESHOLD, DashboardResult, DashboardState
+from .state import (
+    PART_LOAD_THRESHOLD,
+    DashboardResult,
+    DashboardState,
+    condition_text,
+    display_text,
+)
 
 __all__ = ["CAUTION_TEXT", "CHARTS", "Dashboard", "example_scenario", "first_recirculating_unit"]
 
@@ -503,15 +509,17 @@ class Dashboard:
             self.status.value = (
                 "<span class='ps-fresh'>Figures and charts show the current inputs.</span>"
             )
+        system = state.inputs.unit_system
         notes = (*state.carried_notes(), *result.cautions)
-        items = "".join(f"<li>{html.escape(text)}</li>" for text in notes)
+        items = "".join(f"<li>{html.escape(display_text(text, system))}</li>" for text in notes)
         self.model_cautions.value = (
             f"<b>Model cautions for these inputs</b><ul>{items}</ul>"
             if items
             else "<b>Model cautions for these inputs:</b> none."
         )
         self.export_message.value = (
-            f"<div class='plantside-message'>⚠ {html.escape(state.messages['export'])}</div>"
+            f"<div class='plantside-message'>⚠ "
+            f"{html.escape(display_text(state.messages['export'], system))}</div>"
             if state.messages.get("export")
             else ""
         )
@@ -524,7 +532,8 @@ class Dashboard:
         capacity, _ = _quantity("power", now.recommended_capacity, system)
         stale = "<div class='ps-stale'>⚠ last valid result shown</div>" if self.state.stale else ""
         return (
-            f"Design coil load <b>{coil}</b> {unit} ({now.coil_to_zone_ratio:.2f} × zone)<br>"
+            f"Design coil load <b>{coil}</b> {unit} "
+            f"({now.coil_to_zone_ratio:.2f} × the zone load)<br>"
             f"Recommended capacity <b>{capacity}</b> {unit}{stale}"
         )
 
@@ -557,7 +566,7 @@ class Dashboard:
                 f"design coil load + {margin:g} % margin",
             ),
             ("Peak coil load, year", "", "peak_coil_load", power, "highest hour of the year"),
-            ("Governing design condition", "ps-wide ps-neutral", "governing_condition", None, ""),
+            ("Governing design condition", "ps-wide ps-neutral", "governing", None, ""),
             ("Cooling energy, year", "ps-neutral", "cooling_energy", energy, "coil, whole year"),
             (
                 f"Hours above {100 * PART_LOAD_THRESHOLD:.0f} % of capacity",
@@ -571,11 +580,11 @@ class Dashboard:
         for label, css, field, fmt, note in cards:
             value = getattr(now, field)
             before = getattr(pinned, field) if pinned is not None else None
-            if fmt is None:  # text
-                text, unit = html.escape(str(value)), ""
+            if fmt is None:  # a design condition, in the units on show
+                text, unit = html.escape(condition_text(value, system)), ""
                 extra = (
                     f"<div class='ps-pinned'><span class='ps-tag'>A</span> "
-                    f"{html.escape(str(before))}</div>"
+                    f"{html.escape(condition_text(before, system))}</div>"
                     if pinned is not None
                     else ""
                 )
@@ -603,9 +612,12 @@ class Dashboard:
         state = self.state
         when = datetime.now().strftime("%Y-%m-%d %H:%M")
         view = "plant" if self.view == "plant" else "air handler"
+        system = state.inputs.unit_system
+        governing = condition_text(state.result.figures.governing, system)
         return (
             f"plantside {__version__} · {state.scenario.title} · {view} view · "
-            f"{state.result.inputs.stamp(state.names)} · {when} · preliminary, "
+            f"{state.result.inputs.stamp(state.names, system)} · governing {governing} · "
+            f"{when} · preliminary, "
             "for review by a licensed engineer"
         )
 

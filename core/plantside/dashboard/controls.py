@@ -20,7 +20,7 @@ import ipywidgets as widgets
 
 from ..climates import bundled_climate_description
 from ..units import from_display, to_display
-from .state import ECONOMIZER_CHOICES, FAN_CHOICES, DashboardState
+from .state import ECONOMIZER_CHOICES, FAN_CHOICES, DashboardState, display_text
 
 __all__ = ["SLIDERS", "Controls", "SliderSpec"]
 
@@ -398,7 +398,7 @@ class Controls:
                     "unit (no return air, no economizer)</span>"
                 )
         for name, area in self.messages.items():
-            area.value = _message_html(state.messages.get(name, ""))
+            area.value = _message_html(display_text(state.messages.get(name, ""), system))
 
     @staticmethod
     def _climate_tooltip(climate: str) -> str:

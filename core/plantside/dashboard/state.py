@@ -41,6 +41,7 @@ from __future__ import annotations
 
 import io
 import math
+import re
 import time
 from collections.abc import Callable, Mapping
 from dataclasses import dataclass, field, replace
@@ -77,6 +78,8 @@ __all__ = [
     "HeadlineFigures",
     "UnitInputs",
     "UnitResult",
+    "condition_text",
+    "display_text",
 ]
 
 #: Economizer control types (model value -> label in the trade's words).
@@ -301,15 +304,21 @@ class DashboardInputs:
             return replace(self, units=tuple(units))
         return replace(self, **{control: value})
 
-    def stamp(self, names: tuple[str, ...] = ()) -> str:
-        """One line naming the inputs of the air handler shown, for chart and file stamps."""
+    def stamp(self, names: tuple[str, ...] = (), system: str | None = None) -> str:
+        """One line naming the inputs of the air handler shown, for chart and file stamps.
+
+        Temperatures are in ``system`` (default: the unit system set).
+        """
         unit = self.unit
+        supply, supply_unit = to_display(
+            "temperature", unit.supply_air_temperature, system or self.unit_system
+        )
         name = names[self.air_handler] if names else f"air handler {self.air_handler + 1}"
         integrated = ", integrated" if unit.economizer_integrated else ""
         return (
             f"{self.climate}; cooling design {self.design_percent:g} %; {name}: "
             f"outdoor air {100 * unit.outdoor_air_fraction:.0f} %, "
-            f"supply {unit.supply_air_temperature:.1f} °C, "
+            f"supply {float(supply):.1f} {supply_unit}, "
             f"{ECONOMIZER_CHOICES.get(unit.economizer, unit.economizer).lower()}{integrated}, "
             f"{FAN_CHOICES.get(unit.fan_control, unit.fan_control)}, "
             f"bypass factor {unit.bypass_factor:.2f}"
@@ -363,7 +372,8 @@ class HeadlineFigures:
     coil_to_zone_ratio : float
         design_coil_load / design_zone_load [-].
     governing_condition : str
-        Label of the governing design condition.
+        Label of the governing design condition (the model's, in SI; the page
+        shows :func:`condition_text` of ``governing`` in the units on show).
     peak_coil_load : float
         Highest hourly (coincident, for the plant) coil load of the year [kW].
     cooling_energy : float
@@ -372,6 +382,8 @@ class HeadlineFigures:
         Hours with load above 75 % of the recommended capacity [h].
     recommended_capacity : float
         Design coil load plus the scenario's cooling margin [kW].
+    governing : plantside.design_conditions.DesignCondition
+        The governing design condition itself (SI state).
     """
 
     design_zone_load: float
@@ -382,6 +394,7 @@ class HeadlineFigures:
     cooling_energy: float
     hours_above_threshold: int
     recommended_capacity: float
+    governing: object = None
 
 
 @dataclass(frozen=True, eq=False)
@@ -856,6 +869,7 @@ class DashboardState:
             design_zone = float(loads["zone_sensible_kW"]) + float(loads["zone_latent_kW"])
             design_coil = float(loads["coil_total_kW"])
             governing = str(unit.design.governing.label)
+            condition = _condition(unit, unit.design.governing.kind)
             coil = unit.hourly["coil_total_kW"].to_numpy(dtype=float)
             zone = _zone_hourly(unit.hourly)
         else:
@@ -874,6 +888,7 @@ class DashboardState:
             design_zone = design_loads["zone_sensible_kW"] + design_loads["zone_latent_kW"]
             design_coil = design_loads["coil_total_kW"]
             governing = str(points[0].label)
+            condition = _condition(units[0], kind)
             coil = plant_load_from_coil_loads(
                 np.column_stack([u.hourly["coil_total_kW"].to_numpy(dtype=float) for u in units]),
                 gain,
@@ -891,6 +906,7 @@ class DashboardState:
             cooling_energy=float(np.sum(np.maximum(coil, 0.0))),
             hours_above_threshold=int(np.count_nonzero(coil > PART_LOAD_THRESHOLD * capacity)),
             recommended_capacity=capacity,
+            governing=condition,
         )
         numbers = (
             figures.design_zone_load,
@@ -938,6 +954,72 @@ class DashboardState:
         """Forget the pinned result."""
         self.pinned = None
         self._record("pin", (), time.perf_counter(), ok=not self._failing())
+
+
+def _condition(unit: UnitResult, kind: str):
+    """The design condition of ``kind`` an air handler's design part was computed at."""
+    return next(c for c in unit.design.conditions if c.kind == kind)
+
+
+def condition_text(condition, system: str) -> str:
+    """A design condition in words and the units on show.
+
+    ``"cooling 0.4 %: 95.1 °F DB / 77.0 °F MCWB"`` (IP) or ``"... 35.1 °C DB ..."``
+    (SI): the design value first, then its mean coincident companion, as the
+    ASHRAE Handbook Fundamentals climatic design tables (Ch. 14) list them.
+    Enthalpy in IP is on the I-P scale (dry air at 0 °F), via
+    :func:`plantside.units.to_display`.
+    """
+
+    def shown(quantity, value, digits=1):
+        number, unit = to_display(quantity, value, system)
+        return f"{float(number):.{digits}f} {unit}"
+
+    pct = f"{condition.percent:g} %"
+    drybulb = shown("temperature", condition.drybulb)
+    if condition.kind == "cooling":
+        return f"cooling {pct}: {drybulb} DB / {shown('temperature', condition.wet_bulb)} MCWB"
+    if condition.kind == "dehumidification":
+        return (
+            f"dehumidification {pct}: {shown('temperature', condition.dew_point)} DP / "
+            f"{shown('humidity_ratio', condition.humidity_ratio)} / {drybulb} MCDB"
+        )
+    if condition.kind == "enthalpy":
+        return f"enthalpy {pct}: {shown('enthalpy', condition.enthalpy)} / {drybulb} MCDB"
+    return f"{condition.kind} {pct}: {drybulb} DB"
+
+
+_FIGURE = r"-?\d[\d,]*(?:\.\d+)?"
+_SI_FIGURES = re.compile(
+    rf"(?P<a>{_FIGURE})(?:(?P<joint> to | and |–)(?P<b>{_FIGURE}))? ?(?P<unit>°C|kW)(?![\w/])"
+)
+
+
+def display_text(text: str, system: str) -> str:
+    """A model message or caution (written in SI) with its temperatures and powers in ``system``.
+
+    The model writes "... 3 °C ..." and "... 12.5 kW unmet ..."; in the IP view
+    these read in °F and tons (:func:`plantside.units.to_display`), ranges
+    ("4 to 23.5 °C") included. Other text is left as it is.
+    """
+    if system != "IP" or not text:
+        return text
+    quantities = {"°C": "temperature", "kW": "power"}
+
+    def convert(match):
+        quantity = quantities[match["unit"]]
+
+        def one(figure):
+            value = float(figure.replace(",", ""))
+            shown, unit = to_display(quantity, value, system)
+            return f"{float(shown):,.1f}", unit
+
+        first, unit = one(match["a"])
+        if match["b"] is None:
+            return f"{first} {unit}"
+        return f"{first}{match['joint']}{one(match['b'])[0]} {unit}"
+
+    return _SI_FIGURES.sub(convert, text)
 
 
 def _coil(unit: UnitResult, kind: str) -> float:
