@@ -117,6 +117,18 @@ def test_design_breakdown_shows_every_term_of_the_balance():
     assert "Preheat and heating coil" not in frame.index  # zero terms are left out
 
 
+def test_design_breakdown_names_the_plant_distribution_gain():
+    # plant coil load = (1 + g) x the sum of the coil loads, g the pump and pipe gain
+    # (common practice (no source): a few per cent of the coil loads)
+    loads = {"zone_sensible_kW": 80.0, "zone_latent_kW": 10.0, "ventilation_sensible_kW": 10.0}
+    loads["distribution_gain_kW"] = 0.05 * 100.0
+    loads["coil_total_kW"] = 105.0
+    frame = frames.design_breakdown_frame(loads, "SI").set_index("component")
+    assert frame.loc["Distribution gain", "load"] == pytest.approx(5.0)
+    assert "Other" not in frame.index
+    assert frame.loc["Distribution gain", "end"] == pytest.approx(105.0)
+
+
 def test_design_breakdown_needs_the_coil_load():
     with pytest.raises(InputRangeError, match="coil_total_kW"):
         frames.design_breakdown_frame({"zone_sensible_kW": 1.0}, "SI")

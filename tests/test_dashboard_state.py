@@ -510,6 +510,21 @@ def test_plant_view_sums_every_air_handler(scenario):
     )
 
 
+def test_plant_design_breakdown_names_the_distribution_gain(scenario):
+    dashboard = Dashboard(scenario, view="plant")
+    loads = dashboard.state.result.design_loads
+    rows = breakdown_rows(dashboard)
+    # the plant's pump and pipe gain: g % of the coil loads (scenario plant section)
+    gain = (
+        scenario.distribution_gain_percent
+        / 100
+        * (loads["coil_total_kW"] / (1 + 0.01 * scenario.distribution_gain_percent))
+    )
+    assert gain > 0
+    assert rows["Distribution gain"] == pytest.approx(float(tons_from_kw(gain)), rel=1e-6)
+    assert "Other" not in rows
+
+
 def test_no_chart_carries_the_hourly_year(dashboard):
     for name in CHARTS:
         spec = dashboard.charts[name].spec

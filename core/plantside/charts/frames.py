@@ -84,6 +84,8 @@ BREAKDOWN_OPTIONAL = (
     ("Reheat", ("reheat_kW",), 1.0),
     ("Preheat and heating coil", ("preheat_kW", "heating_coil_kW"), 1.0),
     ("Condensate heat", ("condensate_heat_kW",), -1.0),
+    # plant view only: pump work and pipe heat gain between the coils and the plant
+    ("Distribution gain", ("distribution_gain_kW",), 1.0),
 )
 
 #: Words for the economizer modes of :data:`plantside.economizer.ECONOMIZER_MODES`.
@@ -176,7 +178,8 @@ def design_breakdown_frame(loads: Mapping[str, float], system="SI") -> pd.DataFr
         and ``recovery_effect_kW`` (both positive when they reduce the coil
         load), and ``coil_total_kW``; where not zero, also the terms of
         :data:`BREAKDOWN_OPTIONAL` (reheat, preheat and heating coil,
-        condensate heat). A missing component counts as 0 kW. Whatever the
+        condensate heat, and for a plant ``distribution_gain_kW``, the pump and
+        pipe gain included in its coil load). A missing component counts as 0 kW. Whatever the
         steps do not explain is drawn as an "Other" step, so the waterfall
         always ends exactly on the model's coil load and never hides a
         discrepancy.

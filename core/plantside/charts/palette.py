@@ -105,6 +105,7 @@ COMPONENT_COLOURS = {
     "Reheat": "#332288",  # indigo
     "Preheat and heating coil": "#999933",  # olive
     "Condensate heat": "#DDDDDD",  # pale grey: a small correction
+    "Distribution gain": "#661100",  # dark brown (Tol dark): pumps and pipes, plant view
     "Zone load": ZONE,
     "Coil load": COIL,
 }
