@@ -8,6 +8,7 @@ from __future__ import annotations
 
 import itertools
 import json
+import re
 import time
 from dataclasses import replace
 from functools import cache
@@ -445,3 +446,74 @@ def test_benchmark_builders_against_a_raw_hourly_chart():
             f"(build+to_dict / baseline {(build_time + dict_time) / base:4.2f}), "
             f"spec {size / 1024:5.1f} KiB, {data_rows(spec)} rows"
         )
+
+
+# ---------------------------------------------------------------------------------------
+# A and B together: labels legible, panels within the dashboard's chart column
+# ---------------------------------------------------------------------------------------
+def test_spread_labels_keep_order_and_one_line_apart():
+    from plantside.charts.compare import spread_labels
+
+    values = np.array([40.7, 39.6, 35.2, 36.0, 80.0])
+    placed = spread_labels(values, 2.0)
+    ordered = placed[np.argsort(values)]
+    assert np.all(np.diff(ordered) >= 2.0 - 1e-9)
+    assert placed[4] == pytest.approx(80.0)  # a label far from the others stays put
+    assert np.max(np.abs(placed - values)) < 2.0
+
+
+def _svg_width(chart) -> float:
+    from plantside.charts.export import chart_bytes
+
+    svg = chart_bytes(chart, "svg").decode()
+    return float(re.search(r'<svg[^>]*\swidth="([\d.]+)', svg).group(1))
+
+
+def test_pinned_year_chart_fits_the_dashboard_chart_column():
+    # the dashboard's chart column at a 1600 px window is ~1,150 px wide (dashboard.css:
+    # 1600 px less the 320 px control column and padding; common practice (no source))
+    chart = build("year", combined("year", "IP"))
+    assert _svg_width(chart) <= 1100
+    spec = chart.to_dict()
+    assert '"orient": "bottom"' in json.dumps(spec)
+
+
+@pytest.mark.parametrize("system", ["SI", "IP"])
+def test_marker_labels_of_a_and_b_do_not_overlap(system):
+    chart = build("oa_sweep", combined("oa_sweep", system))
+    spec = chart.to_dict()
+    rows = _dataset(spec, "marker")
+    top = next(
+        layer["encoding"]["y"]["scale"]["domain"][1]
+        for layer in spec["layer"]
+        if "y" in layer.get("encoding", {}) and "scale" in layer["encoding"]["y"]
+    )
+    pixels = 400 / top  # the chart is 400 px high on a fixed zero-based domain
+    for side in ("left", "right"):
+        places = sorted(r["label_load"] for r in rows if r["label_side"] == side)
+        assert np.all(np.diff(places) * pixels >= 18.9), (side, places)
+    # A and B are labelled on opposite sides of their markers
+    assert {r["label_side"] for r in rows} == {"left", "right"}
+
+
+def test_plant_capacity_labels_of_a_and_b_do_not_overlap():
+    f = combined("distribution", "IP")
+    lines = f["lines"].copy()
+    # B's plant 1 % above A's: the two labels would print over each other
+    a = lines[(lines["scenario"] == "A") & (lines["kind"] == "capacity")]["load"].iloc[0]
+    lines.loc[(lines["scenario"] == "B") & (lines["kind"] == "capacity"), "load"] = 1.01 * a
+    f["lines"] = lines
+    chart = build("distribution", f)
+    spec = chart.to_dict()
+    rows = _dataset(spec, "lines")
+    text = json.dumps(spec)
+    top = float(
+        re.search(
+            r'"domain": \[0(?:\.0)?, ([\d.]+)\], "nice": false\}, "title": "Load', text
+        ).group(1)
+    )
+    places = sorted(r["label_load"] for r in rows)
+    assert np.all(np.diff(places) * 360 / top >= 18 - 1e-6), places
+    capacity = [r for r in rows if r["kind"] == "capacity"]
+    assert abs(capacity[0]["label_load"] - capacity[1]["label_load"]) * 360 / top >= 18 - 1e-6
+    assert any(r["label_load"] != r["load"] for r in capacity)  # moved apart, rules stay

@@ -14,6 +14,7 @@ from __future__ import annotations
 from collections.abc import Mapping
 
 import altair as alt
+import numpy as np
 import pandas as pd
 
 from ..errors import InputRangeError
@@ -22,12 +23,14 @@ __all__ = [
     "SCENARIOS",
     "SCENARIO_COLUMN",
     "SCENARIO_LABELS",
+    "axis_top",
     "combine_scenarios",
     "has_scenarios",
     "scenario_dash",
     "scenario_opacity",
     "scenario_shape",
     "scenarios_in",
+    "spread_labels",
 ]
 
 #: Column naming the scenario of each row.
@@ -143,3 +146,42 @@ def scenario_opacity(frame: pd.DataFrame, legend: bool = True):
 def scenario_shape(frame: pd.DataFrame):
     """``shape`` encoding: A diamonds, B circles (for points)."""
     return alt.Shape(f"{SCENARIO_COLUMN}:N", scale=_legend_scale(_SHAPE, frame), legend=_legend())
+
+
+def axis_top(values) -> float:
+    """A round top for a zero-based axis over ``values``: the next multiple of a 1-2-5 step."""
+    values = np.asarray(values, dtype=float)
+    high = float(np.nanmax(values)) if values.size else 1.0
+    high = high if np.isfinite(high) and high > 0 else 1.0
+    raw = high / 8
+    power = 10 ** np.floor(np.log10(raw))
+    step = next(f * power for f in (1, 2, 5, 10) if raw <= f * power)
+    return float(np.ceil(high * 1.02 / step) * step)
+
+
+def spread_labels(values, gap: float) -> np.ndarray:
+    """Label positions near ``values`` and at least ``gap`` apart (same units, any order).
+
+    Labels of close lines (A and B, a plant and its stages) would print over
+    each other; each keeps its order and moves as little as possible: pushed
+    apart upwards, then the group shifted back so the mean move is zero.
+    """
+    values = np.asarray(values, dtype=float)
+    if values.size < 2:
+        return values.copy()
+    order = np.argsort(values, kind="stable")
+    placed = values[order].copy()
+    for i in range(1, placed.size):
+        placed[i] = max(placed[i], placed[i - 1] + gap)
+    # shift each cluster (labels now touching) back by its mean move
+    start = 0
+    for i in range(1, placed.size + 1):
+        if i == placed.size or placed[i] - placed[i - 1] > gap + 1e-12:
+            cluster = slice(start, i)
+            placed[cluster] -= np.mean(placed[cluster] - values[order][cluster])
+            start = i
+    for i in range(1, placed.size):  # a cluster moved back never reaches the one below
+        placed[i] = max(placed[i], placed[i - 1] + gap)
+    result = np.empty_like(placed)
+    result[order] = placed
+    return result

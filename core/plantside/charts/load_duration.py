@@ -26,10 +26,12 @@ from ..errors import InputRangeError
 from .compare import (
     SCENARIO_COLUMN,
     SCENARIO_LABELS,
+    axis_top,
     has_scenarios,
     scenario_dash,
     scenario_opacity,
     scenarios_in,
+    spread_labels,
 )
 from .frames import axis_title, frame_system, value_format
 from .palette import (
@@ -76,7 +78,10 @@ def _curves_layer(curves: pd.DataFrame, lines: pd.DataFrame | None, system, widt
             scale=alt.Scale(domain=[0, hours_max], nice=False),
             axis=alt.Axis(format=",d"),
         ),
-        "y": alt.Y("load:Q", title=power),
+        # a fixed zero-based domain, so the capacity labels can be spaced in pixels
+        "y": alt.Y(
+            "load:Q", title=power, scale=alt.Scale(domain=[0, _load_top(curves, lines)], nice=False)
+        ),
         "color": alt.Color("series:N", title=None, scale=_series_scale(names)),
         "tooltip": [
             alt.Tooltip("series:N", title="Series"),
@@ -99,8 +104,24 @@ def _curves_layer(curves: pd.DataFrame, lines: pd.DataFrame | None, system, widt
     return layered(layers, width=width, height=height)
 
 
-def _capacity_data(lines: pd.DataFrame, system, fmt) -> pd.DataFrame:
+#: Least plot height of the curves panel [px] and least spacing of its labels [px].
+_CURVES_HEIGHT_MIN = 360
+_LABEL_GAP_PX = 18
+
+
+def _load_top(curves: pd.DataFrame, lines: pd.DataFrame | None) -> float:
+    loads = [curves["load"].to_numpy(dtype=float)]
+    if lines is not None and len(lines):
+        loads.append(lines["load"].to_numpy(dtype=float))
+    return axis_top(np.concatenate(loads))
+
+
+def _capacity_data(lines: pd.DataFrame, system, fmt, top: float) -> pd.DataFrame:
+    """The capacity lines with their label text and ``label_load``: where the label sits,
+    spread so labels of close lines (A and B, plant and stage) never print over each other."""
     unit = axis_title("", "power", system).strip()[1:-1]
+    gap = top / _CURVES_HEIGHT_MIN * _LABEL_GAP_PX
+    lines = lines.assign(label_load=spread_labels(lines["load"].to_numpy(dtype=float), gap))
     return lines.assign(
         text=[
             f"{name}: {format(value, fmt)} {unit}"
@@ -132,8 +153,8 @@ def _capacity_layers(lines: pd.DataFrame, system, fmt, width):
         )
         layers.append(
             base.mark_text(
-                align="right", baseline="bottom", dy=-3, fontSize=14, color=colour
-            ).encode(x=alt.XValue(width - 4), y=alt.Y("load:Q"), text=alt.Text("text:N"))
+                align="right", baseline="bottom", dy=-2, fontSize=14, color=colour
+            ).encode(x=alt.XValue(width - 4), y=alt.Y("label_load:Q"), text=alt.Text("text:N"))
         )
     return layers
 
@@ -265,7 +286,9 @@ def _datasets(curves, lines, bins, weights, system) -> dict:
     if curves is not None:
         data["curves"] = curves
         if lines is not None and len(lines):
-            data["lines"] = _capacity_data(lines, system, value_format(curves["load"]))
+            data["lines"] = _capacity_data(
+                lines, system, value_format(curves["load"]), _load_top(curves, lines)
+            )
     if bins is not None:
         data["bins"] = _band_labels(bins)
     if weights is not None and len(weights):

@@ -14,7 +14,15 @@ from __future__ import annotations
 import altair as alt
 import pandas as pd
 
-from .compare import SCENARIO_COLUMN, SCENARIO_LABELS, has_scenarios, scenario_dash, scenarios_in
+from .compare import (
+    SCENARIO_COLUMN,
+    SCENARIO_LABELS,
+    axis_top,
+    has_scenarios,
+    scenario_dash,
+    scenarios_in,
+    spread_labels,
+)
 from .frames import axis_title, frame_system, value_format
 from .palette import (
     BACKGROUND,
@@ -46,6 +54,11 @@ def _scale(names) -> alt.Scale:
     return alt.Scale(
         domain=list(names), range=[_SERIES_COLOURS.get(n) or next(spare) for n in names]
     )
+
+
+#: Plot height [px] and the least spacing of value labels [px] (15 px bold text).
+_HEIGHT = 400
+_LABEL_GAP_PX = 19
 
 
 @chart_builder
@@ -83,7 +96,9 @@ def oa_sweep_chart(
         scale=alt.Scale(domain=[0, 100], nice=False),
         axis=alt.Axis(values=list(range(0, 101, 10))),
     )
-    y = alt.Y("load:Q", title=power)
+    # a fixed zero-based domain, so label spacing can be set in pixels
+    top = axis_top(sweep["load"])
+    y = alt.Y("load:Q", title=power, scale=alt.Scale(domain=[0, top], nice=False))
     colour = alt.Color("series:N", title=None, scale=_scale(names))
     encoding = {
         "x": x,
@@ -115,6 +130,7 @@ def oa_sweep_chart(
                 )
             ]
         )
+        data = _label_places(data, top / _HEIGHT * _LABEL_GAP_PX)
         datasets["marker"] = data
         named = alt.NamedData(name="marker")
         layers.append(
@@ -127,32 +143,56 @@ def oa_sweep_chart(
             .mark_point(filled=True, size=130, stroke="white", strokeWidth=1.2, opacity=1)
             .encode(x=x, y=y, color=colour, tooltip=encoding["tooltip"])
         )
-        for halo in (True, False):  # a white halo under the label keeps it clear of the line
-            layers.append(
-                alt.Chart(named)
-                .mark_text(
-                    align="left",
-                    dx=9,
-                    dy=-9,
-                    fontSize=15,
-                    fontWeight="bold",
-                    color=INK,
-                    **(
-                        {"stroke": BACKGROUND, "strokeWidth": 4, "strokeJoin": "round"}
-                        if halo
-                        else {}
-                    ),
+        label_y = alt.Y("label_load:Q", scale=alt.Scale(domain=[0, top], nice=False))
+        for side, align, dx in (("right", "left", 12), ("left", "right", -12)):
+            if not (data["label_side"] == side).any():
+                continue
+            for halo in (True, False):  # a white halo under the label keeps it off the line
+                layers.append(
+                    alt.Chart(named)
+                    .transform_filter(alt.datum.label_side == side)
+                    .mark_text(
+                        align=align,
+                        baseline="middle",
+                        dx=dx,
+                        fontSize=15,
+                        fontWeight="bold",
+                        color=INK,
+                        **(
+                            {"stroke": BACKGROUND, "strokeWidth": 4, "strokeJoin": "round"}
+                            if halo
+                            else {}
+                        ),
+                    )
+                    .encode(x=x, y=label_y, text=alt.Text("text:N"))
                 )
-                .encode(x=x, y=y, text=alt.Text("text:N"))
-            )
         subtitle = _marker_text(marker)
-    chart = layered(layers, width=WIDTH, height=400)
+    chart = layered(layers, width=WIDTH, height=_HEIGHT)
     return themed(
         chart,
         title=title or "Coil design load against outdoor air",
         subtitle=subtitle,
         datasets=datasets,
     )
+
+
+def _label_places(data: pd.DataFrame, gap: float) -> pd.DataFrame:
+    """Where each marker's value label goes: ``label_side`` and ``label_load``.
+
+    With A and B pinned, the scenario further left labels to the left of its
+    markers and the other to the right; within a side, labels are spread at
+    least ``gap`` (one line of text) apart so none prints over another.
+    """
+    sides = pd.Series("right", index=data.index)
+    if has_scenarios(data):
+        where = data.groupby(SCENARIO_COLUMN)["outdoor_air_percent"].mean()
+        if where.size == 2 and where.iloc[0] != where.iloc[1]:
+            sides[data[SCENARIO_COLUMN] == where.idxmin()] = "left"
+    places = data["load"].to_numpy(dtype=float).copy()
+    for side in ("left", "right"):
+        chosen = (sides == side).to_numpy()
+        places[chosen] = spread_labels(places[chosen], gap)
+    return data.assign(label_side=sides.to_numpy(), label_load=places)
 
 
 def _marker_text(marker: pd.DataFrame) -> str:

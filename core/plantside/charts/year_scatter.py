@@ -45,7 +45,7 @@ def _ticks(domain: list[float]) -> list[float]:
     return [float(v) for v in np.arange(first, domain[1] + 1e-9, step)]
 
 
-def _panel(scenario, system, domains, modes, colours, size_max, fmt, width, height):
+def _panel(scenario, system, domains, modes, colours, size_max, fmt, width, height, legend="right"):
     power = axis_title("Zone load", "power", system)
     coil_title = axis_title("Coil total load", "power", system)
     x_domain, y_domain = domains
@@ -88,7 +88,7 @@ def _panel(scenario, system, domains, modes, colours, size_max, fmt, width, heig
             # true hour counts readable
             scale=alt.Scale(type="sqrt", domain=[0, size_max], range=[18, 620], zero=False),
             legend=alt.Legend(
-                orient="right",
+                orient=legend,
                 symbolFillColor="#9aa3ad",
                 symbolStrokeWidth=0,
                 values=_legend_hours(size_max),
@@ -97,6 +97,7 @@ def _panel(scenario, system, domains, modes, colours, size_max, fmt, width, heig
         color=alt.Color(
             "mode_label:N",
             title="Economizer mode",
+            legend=alt.Legend(orient=legend),
             scale=alt.Scale(
                 domain=[MODE_LABELS.get(m, m) for m in modes],
                 range=[colours[m] for m in modes],
@@ -157,7 +158,7 @@ def year_scatter_chart(frame: pd.DataFrame, system=None, title: str | None = Non
     size_max = int(frame["hours"].max()) if len(frame) else 1
     fmt = value_format(domains[0] + domains[1])
     keys = scenarios_in(frame)
-    side = WIDTH if not keys else int(WIDTH * 0.62)
+    side = WIDTH if not keys else int(WIDTH * 0.5)
     subtitle = []
     if len(frame):
         step = float((frame["zone_high"] - frame["zone_low"]).iloc[0])
@@ -172,7 +173,8 @@ def year_scatter_chart(frame: pd.DataFrame, system=None, title: str | None = Non
         chart = _panel(None, system, domains, modes, colours, size_max, fmt, side, side * 0.6)
     else:
         panels = [
-            _panel(key, system, domains, modes, colours, size_max, fmt, side, side * 0.8)
+            # legends below the two panels: A and B side by side fit a 1600 px window
+            _panel(key, system, domains, modes, colours, size_max, fmt, side, side * 0.8, "bottom")
             for key in keys
         ]
         chart = concatenated(
