@@ -82,10 +82,10 @@ def test_weather_file_above_max_rows_is_refused_before_parsing():
 def test_huge_hour_index_is_refused_without_allocating(last_hour):
     # W4 (fixed in dbfbede): a 40-byte upload whose hour column jumps to 1e8 used to
     # allocate 800 MB per column before being refused. Run in a fresh process and read
-    # its peak memory (ru_maxrss, kB on Linux).
+    # its peak memory: VmHWM of /proc/self/status (kB), which starts afresh at exec, unlike
+    # ru_maxrss, which Linux carries over from the (large) forking test process.
     code = textwrap.dedent(
         f"""
-        import resource
         from plantside.errors import InputFileError
         from plantside.weather_import import read_weather_csv
         try:
@@ -93,7 +93,9 @@ def test_huge_hour_index_is_refused_without_allocating(last_hour):
                              altitude=0)
         except InputFileError as error:
             print("REFUSED", error)
-        print("PEAK_MB", resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024)
+        with open("/proc/self/status") as status:
+            peak_kb = next(int(line.split()[1]) for line in status if line.startswith("VmHWM"))
+        print("PEAK_MB", peak_kb / 1024)
         """
     )
     result = subprocess.run(
