@@ -5,8 +5,9 @@ in the same session; asserts only that all three give the same table (speed is r
 never asserted).
 
 The default is 200 cases (the clinic example, 3 air handlers, over the 5 bundled climates
-x 40 outdoor-air fractions): 45 to 75 s on a 2-core machine (a case takes 0.1-0.2 s). The issue's target is
-near-linear scaling for sweeps of 1,000+ cases; run the big version by hand with
+x 40 outdoor-air fractions): 45 to 75 s on a 2-core machine (a case takes 0.1-0.2 s).
+The issue's target is near-linear scaling for sweeps of 1,000+ cases; run the big
+version by hand with
 
     PLANTSIDE_SWEEP_BENCH_CASES=1000 python -m pytest tests/test_sweep_benchmark.py -s
     python tests/test_sweep_benchmark.py --cases 1000          # the same, without pytest
