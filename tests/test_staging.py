@@ -312,3 +312,12 @@ def test_benchmark_staging_and_bins_against_per_hour_loop():
         assert summary["unmet_energy_kWh"] == pytest.approx(loop["unmet_energy"], abs=1e-6)
     np.testing.assert_array_equal(bins["hours"], loop_hours)
     np.testing.assert_allclose(bins["energy_kWh"], loop_energy, rtol=1e-9)
+
+
+def test_a_running_machine_with_a_vanishing_load_is_binned_in_the_lowest_band():
+    # Found by hypothesis: a load of 5e-324 kW with no threshold runs one machine whose
+    # part-load ratio underflows to 0; it still counts one hour in the lowest band.
+    result = stage_machines(np.array([5e-324]), [10.0], 0.0, no_load_threshold=0.0)
+    bins = result.machine_part_load_bins()
+    assert bins["hours"].sum() == 1
+    assert bins.loc[bins["hours"] == 1, "lower_percent"].iloc[0] == 0.0

@@ -269,7 +269,9 @@ class StagingResult:
         machines = self.capacities.size
         running = self.running
         # band 1..bands (PLR <= 1 under the rule), shifted to 0..bands-1 per machine
-        band = band_index_from_ratio(self.part_load_ratio, bands) - 1
+        # (a running machine whose ratio underflows to 0, e.g. a load of 5e-324 kW with
+        # no threshold, still belongs to the lowest band)
+        band = np.maximum(band_index_from_ratio(self.part_load_ratio, bands) - 1, 0)
         codes = (np.arange(machines)[None, :] * bands + band[:, None])[running]
         size = machines * bands
         hours = np.bincount(codes, minlength=size)
