@@ -30,6 +30,7 @@ import json
 import multiprocessing
 import os
 import signal
+import threading
 import time
 from collections.abc import Callable, Sequence
 from concurrent.futures import FIRST_COMPLETED, ProcessPoolExecutor, wait
@@ -417,7 +418,25 @@ def _local_context():
     return multiprocessing.get_context()
 
 
+def _quiet_manager_thread(executor: ProcessPoolExecutor) -> None:
+    """Keep the pool's manager thread from printing a traceback when we stop its workers.
+
+    Killing the workers on Ctrl-C can race with the executor's own manager thread, which
+    then reports a broken pool on stderr; the user asked for the stop, so that report is
+    noise (the finished cases are kept and the message says so).
+    """
+    manager = getattr(executor, "_executor_manager_thread", None)
+    previous = threading.excepthook
+
+    def hook(args):
+        if manager is None or args.thread is not manager:
+            previous(args)
+
+    threading.excepthook = hook
+
+
 def _terminate(executor: ProcessPoolExecutor) -> None:
+    _quiet_manager_thread(executor)
     stop = getattr(executor, "terminate_workers", None)  # Python 3.14+
     if stop is not None:
         stop()
