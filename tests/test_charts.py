@@ -517,3 +517,14 @@ def test_plant_capacity_labels_of_a_and_b_do_not_overlap():
     capacity = [r for r in rows if r["kind"] == "capacity"]
     assert abs(capacity[0]["label_load"] - capacity[1]["label_load"]) * 360 / top >= 18 - 1e-6
     assert any(r["label_load"] != r["load"] for r in capacity)  # moved apart, rules stay
+
+
+def test_process_labels_near_the_right_edge_sit_west_of_their_point():
+    # A label drawn east of a point in the right 15 % of the axis would be cut off.
+    import pandas as pd
+    from plantside.charts.psychrometric import _with_label_positions
+
+    process = pd.DataFrame({"state": ["outdoor", "return", "mixed"], "drybulb": [44.0, 24.0, 30.0]})
+    placed = _with_label_positions(process, (-15.0, 45.0))
+    assert list(placed["label_position"]) == ["nw", "se", "nw"]
+    assert list(_with_label_positions(process)["label_position"]) == ["ne", "se", "nw"]

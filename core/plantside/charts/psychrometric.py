@@ -199,10 +199,21 @@ _LABEL_POSITIONS = {
 }
 
 
-def _with_label_positions(process: pd.DataFrame) -> pd.DataFrame:
-    return process.assign(
-        label_position=[_STATE_LABEL_POSITION.get(state, "ne") for state in process["state"]]
-    )
+#: Share of the dry-bulb axis, at its right end, where a label set east of its point would
+#: run off the chart: such labels move to the west side.
+_RIGHT_MARGIN_SHARE = 0.15
+
+
+def _with_label_positions(process: pd.DataFrame, x_domain=None) -> pd.DataFrame:
+    positions = [_STATE_LABEL_POSITION.get(state, "ne") for state in process["state"]]
+    if x_domain is not None:
+        low, high = x_domain
+        edge = high - _RIGHT_MARGIN_SHARE * (high - low)
+        positions = [
+            position.replace("e", "w") if position.endswith("e") and drybulb > edge else position
+            for position, drybulb in zip(positions, process["drybulb"], strict=True)
+        ]
+    return process.assign(label_position=positions)
 
 
 def _subtitle(grid: pd.DataFrame, process, density, system) -> list[str]:
@@ -274,7 +285,7 @@ def psychrometric_chart(
     layers.extend(_grid_layers(x, y))
     if process is not None and len(process):
         layers.extend(_process_layers(process, x, y, system))
-        datasets["process"] = _with_label_positions(process)
+        datasets["process"] = _with_label_positions(process, x_domain)
     chart = layered(layers, width=WIDTH, height=460)
     return themed(
         chart,
