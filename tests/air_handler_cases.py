@@ -8,8 +8,8 @@ climate so the air-handler tests do not depend on the climate modules.
 from __future__ import annotations
 
 import numpy as np
-from plantside.moist_air import humidity_ratio_from_dew_point, pressure_from_altitude
-from plantside.weather import Weather
+from plantside.air.moist_air import humidity_ratio_from_dew_point, pressure_from_altitude
+from plantside.climate.weather import Weather
 
 
 def synthetic_weather(

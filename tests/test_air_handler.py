@@ -28,8 +28,8 @@ from air_handler_cases import synthetic_weather
 from hypothesis import given
 from hypothesis import settings as hypothesis_settings
 from hypothesis import strategies as st
-from plantside import moist_air as ma
-from plantside.air_handler import (
+from plantside.air import moist_air as ma
+from plantside.air_handler.year import (
     ECONOMIZER_MODES,
     HOURLY_COLUMNS,
     SWEEP_COLUMNS,
@@ -39,9 +39,9 @@ from plantside.air_handler import (
     hourly_year,
     outdoor_air_sweep,
 )
+from plantside.air_handler.zone_loads import HourlyZoneLoads, ZoneLoadModel, zone_loads_for_weather
 from plantside.constants import M3S_PER_CFM, STANDARD_AIR_DENSITY, W_PER_BTUH
 from plantside.errors import InputRangeError
-from plantside.zone_loads import HourlyZoneLoads, ZoneLoadModel, zone_loads_for_weather
 
 
 @pytest.fixture(autouse=True)

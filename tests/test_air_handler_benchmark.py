@@ -14,13 +14,13 @@ import time
 import numpy as np
 import pytest
 from air_handler_cases import synthetic_weather
-from plantside.air_handler import (
+from plantside.air_handler.year import (
     AirHandlerSettings,
     air_handler_hours,
     hourly_year,
     outdoor_air_sweep,
 )
-from plantside.zone_loads import HourlyZoneLoads, ZoneLoadModel, zone_loads_for_weather
+from plantside.air_handler.zone_loads import HourlyZoneLoads, ZoneLoadModel, zone_loads_for_weather
 
 pytestmark = pytest.mark.benchmark
 

@@ -16,16 +16,16 @@ from types import SimpleNamespace
 import psychrolib
 import pytest
 from air_handler_cases import synthetic_weather
-from plantside import moist_air as ma
-from plantside.air_handler import (
+from plantside.air import moist_air as ma
+from plantside.air_handler.year import (
     AirHandlerSettings,
     cooling_design_points,
     design_point,
     heating_design_point,
 )
-from plantside.design_conditions import design_conditions_from_weather
+from plantside.air_handler.zone_loads import ZoneLoadModel
+from plantside.climate.design_conditions import design_conditions_from_weather
 from plantside.errors import InputRangeError
-from plantside.zone_loads import ZoneLoadModel
 
 
 @pytest.fixture(autouse=True)

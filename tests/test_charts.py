@@ -1,6 +1,6 @@
 """Chart builders: valid specs, small payloads, units on every axis, data that follows the model.
 
-Every chart is built from a real air-handler year (``plantside.air_handler`` on
+Every chart is built from a real air-handler year (``plantside.air_handler.year`` on
 a synthetic weather year of a fictional site, see ``test_charts_frames.study``).
 """
 
@@ -16,7 +16,7 @@ from functools import cache
 import altair as alt
 import numpy as np
 import pytest
-from plantside.air_handler import design_point, outdoor_air_sweep
+from plantside.air_handler.year import design_point, outdoor_air_sweep
 from plantside.charts import (
     design_breakdown_chart,
     frames,
@@ -30,7 +30,7 @@ from plantside.charts import (
 )
 from plantside.charts.compare import combine_scenarios
 from plantside.errors import InputRangeError
-from plantside.staging import stage_machines
+from plantside.plant.staging import stage_machines
 from test_charts_frames import DESIGN_OUTDOOR, KW_PER_TON, study
 
 SWEEP_FRACTIONS = np.linspace(0.0, 1.0, 11)

@@ -1,7 +1,7 @@
 """Chart frames: model results -> small tidy frames in display units.
 
 The frames are checked against the air-handler model they summarise (a real
-year of ``plantside.air_handler`` on a synthetic weather year of a fictional
+year of ``plantside.air_handler.year`` on a synthetic weather year of a fictional
 site), against the unit definitions (AHRI 550/590 ton, NIST SP 811 factors) and
 against psychrolib for the psychrometric chart's curves.
 """
@@ -17,18 +17,18 @@ import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 from hypothesis.extra import numpy as hnp
-from plantside.air_handler import (
+from plantside.air_handler.year import (
     AirHandlerSettings,
     design_point,
     hourly_year,
     outdoor_air_sweep,
 )
+from plantside.air_handler.zone_loads import ZoneLoadModel
 from plantside.charts import frames
 from plantside.charts.compare import combine_scenarios
+from plantside.climate.fictional_sites import generate_year, site_parameters
 from plantside.errors import InputRangeError
-from plantside.staging import stage_machines
-from plantside.weather_generator import generate_year, site_parameters
-from plantside.zone_loads import ZoneLoadModel
+from plantside.plant.staging import stage_machines
 
 #: kW per ton of refrigeration: 12,000 Btu/h (AHRI Standard 550/590) x 1055.05585 J/Btu
 #: (NIST SP 811, International Table Btu) / 3600 s/h.

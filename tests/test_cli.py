@@ -7,7 +7,7 @@ from pathlib import Path
 
 import pandas as pd
 import pytest
-from plantside.cli import main
+from plantside.cli.main import main
 
 SCENARIOS = Path(__file__).parents[1] / "example_data" / "scenarios"
 EXAMPLES = sorted(SCENARIOS.glob("*.toml"))
@@ -88,7 +88,7 @@ def test_corrupted_scenario_exits_2_naming_the_field(tmp_path, capsys, old, new,
 
 def test_installed_entry_point_runs_and_fails_cleanly(tmp_path):
     ok = subprocess.run(
-        [sys.executable, "-m", "plantside.cli", "climates"],
+        [sys.executable, "-m", "plantside.cli.main", "climates"],
         capture_output=True,
         text=True,
         check=False,
@@ -97,7 +97,7 @@ def test_installed_entry_point_runs_and_fails_cleanly(tmp_path):
     bad = tmp_path / "bad.toml"
     bad.write_text('unit_system = "SI"\n[[air_handler]]\nname = 3\n', encoding="utf-8")
     run = subprocess.run(
-        [sys.executable, "-m", "plantside.cli", "design", str(bad)],
+        [sys.executable, "-m", "plantside.cli.main", "design", str(bad)],
         capture_output=True,
         text=True,
         check=False,

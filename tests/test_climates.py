@@ -5,13 +5,13 @@ from pathlib import Path
 import numpy as np
 import plantside
 import pytest
-from plantside.climates import (
+from plantside.climate.bundled import (
     BUNDLED_CLIMATES,
     bundled_climate_description,
     load_bundled_climate,
 )
+from plantside.climate.fictional_sites import SITES, generate_year
 from plantside.errors import InputRangeError
-from plantside.weather_generator import SITES, generate_year
 
 REPO = Path(__file__).resolve().parents[1]
 PACKAGE_DATA = Path(plantside.__file__).parent / "data"

@@ -19,8 +19,8 @@ import psychrolib
 import pytest
 from hypothesis import given
 from hypothesis import strategies as st
-from plantside import moist_air as ma
-from plantside.coils import (
+from plantside.air import moist_air as ma
+from plantside.air.coils import (
     apparatus_dew_point_from_bypass_factor,
     bypass_factor_from_apparatus_dew_point,
     cooling_coil_leaving_humidity_ratio,

@@ -19,7 +19,7 @@ import numpy as np
 import pytest
 from plantside.dashboard.app import CHARTS, Dashboard
 from plantside.dashboard.spec import altair_spec, fast_spec
-from plantside.scenario import load_scenario
+from plantside.study.scenario import load_scenario
 
 pytestmark = pytest.mark.benchmark
 

@@ -1,7 +1,7 @@
 """The dashboard driven from Python: every control, messages, pinning, exports.
 
 The reference for every figure is the model itself, called directly
-(``plantside.air_handler``, ``plantside.design_conditions``): the dashboard
+(``plantside.air_handler.year``, ``plantside.climate.design_conditions``): the dashboard
 must show what the model says for the inputs on show, no more, no less. The
 physical direction of each change is checked too, with its source beside it.
 """
@@ -21,8 +21,9 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 import pytest
-from plantside.air_handler import cooling_design_points, hourly_year
-from plantside.climates import BUNDLED_CLIMATES, load_bundled_climate
+from plantside.air_handler.year import cooling_design_points, hourly_year
+from plantside.climate.bundled import BUNDLED_CLIMATES, load_bundled_climate
+from plantside.climate.design_conditions import design_conditions_from_weather
 from plantside.dashboard.app import CHARTS, Dashboard, first_recirculating_unit
 from plantside.dashboard.state import (
     PART_LOAD_THRESHOLD,
@@ -30,8 +31,7 @@ from plantside.dashboard.state import (
     condition_text,
     display_text,
 )
-from plantside.design_conditions import design_conditions_from_weather
-from plantside.scenario import load_scenario, loads_scenario
+from plantside.study.scenario import load_scenario, loads_scenario
 from plantside.units import tons_from_kw
 
 EXAMPLE = Path(__file__).resolve().parents[1] / "example_data" / "scenarios" / "quillon_clinic.toml"
@@ -658,7 +658,7 @@ def test_condition_text_converts_every_kind():
     # one fictional state, converted by hand: 35 °C = 95 °F, 24 °C = 75.2 °F (NIST SP 811);
     # 0.0150 kg/kg = 105 gr/lb (7000 gr/lb); 73.6 kJ/kg -> Btu/lb on the I-P scale
     # (dry air at 0 °F: h_IP = h_SI / 2.326 + 7.686, ASHRAE Handbook Fundamentals Ch. 1)
-    from plantside.design_conditions import DesignCondition
+    from plantside.climate.design_conditions import DesignCondition
     from plantside.units import btulb_from_kjkg
 
     states = {

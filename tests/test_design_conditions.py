@@ -1,6 +1,6 @@
 """Annual design conditions: percentile rule, coincident means, daily range.
 
-The percentile rule checked here is the one stated in plantside.design_conditions and in
+The percentile rule checked here is the one stated in plantside.climate.design_conditions and in
 the issue: the p % value is the highest hourly value exceeded by at least p % of the
 hours (1 % of 8760 h = 87.6 h, so 88 hours), after the ASHRAE Handbook Fundamentals
 2017, Ch. 14 definition "exceeded by p % of the hours of a year".
@@ -9,8 +9,8 @@ hours (1 % of 8760 h = 87.6 h, so 88 hours), after the ASHRAE Handbook Fundament
 import numpy as np
 import psychrolib
 import pytest
-from plantside import moist_air
-from plantside.design_conditions import (
+from plantside.air import moist_air
+from plantside.climate.design_conditions import (
     COOLING_PERCENTS,
     HEATING_PERCENTS,
     coincident_mean,
@@ -18,8 +18,8 @@ from plantside.design_conditions import (
     mean_daily_range,
     value_exceeded_by_percent,
 )
+from plantside.climate.weather import Weather
 from plantside.errors import InputRangeError
-from plantside.weather import Weather
 
 psychrolib.SetUnitSystem(psychrolib.SI)
 
@@ -245,6 +245,6 @@ def test_band_arguments_checked(argument, value):
 
 
 def load_year():
-    from plantside.climates import load_bundled_climate
+    from plantside.climate.bundled import load_bundled_climate
 
     return load_bundled_climate("Linden Vale")

@@ -3,10 +3,10 @@
 import numpy as np
 import psychrolib
 import pytest
-from plantside import moist_air
-from plantside.climates import load_bundled_climate
-from plantside.design_conditions import DesignCondition, design_conditions_from_weather
-from plantside.design_day import (
+from plantside.air import moist_air
+from plantside.climate.bundled import load_bundled_climate
+from plantside.climate.design_conditions import DesignCondition, design_conditions_from_weather
+from plantside.climate.design_day import (
     DAILY_RANGE_FRACTION,
     cooling_design_day,
     design_day_from_condition,

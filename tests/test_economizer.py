@@ -17,9 +17,8 @@ import numpy as np
 import psychrolib
 import pytest
 from air_handler_cases import synthetic_weather
-from plantside import moist_air as ma
-from plantside.air_handler import AirHandlerSettings, air_handler_hours, hourly_year
-from plantside.economizer import (
+from plantside.air import moist_air as ma
+from plantside.air.economizer import (
     DEFAULT_DRYBULB_LIMIT,
     DEFAULT_ENTHALPY_LIMIT,
     DRYBULB_LIMIT_BY_CLIMATE_ZONE,
@@ -29,8 +28,9 @@ from plantside.economizer import (
     economizer_outdoor_air_fraction,
     enthalpy_si_from_ip_table,
 )
+from plantside.air_handler.year import AirHandlerSettings, air_handler_hours, hourly_year
+from plantside.air_handler.zone_loads import HourlyZoneLoads, ZoneLoadModel
 from plantside.errors import InputRangeError
-from plantside.zone_loads import HourlyZoneLoads, ZoneLoadModel
 
 P = 101325.0  # Pa, ASHRAE 2017 Ch. 1 Table 1
 

@@ -1,4 +1,4 @@
-"""Tests of plantside.efficiency: AHRI IPLV and the project-weighted efficiency.
+"""Tests of plantside.plant.efficiency: AHRI IPLV and the project-weighted efficiency.
 
 IPLV: AHRI Standard 550/590 (I-P)-2020, section 5.4 (and 551/591 (SI)): weights 1 %, 42 %,
 45 %, 12 % at 100, 75, 50, 25 % load; IPLV = 0.01A + 0.42B + 0.45C + 0.12D for COP or EER,
@@ -10,7 +10,8 @@ import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 from plantside.constants import KW_PER_TON, W_PER_BTUH
-from plantside.efficiency import (
+from plantside.errors import InputRangeError
+from plantside.plant.efficiency import (
     IPLV_LOAD_POINTS,
     IPLV_WEIGHTS,
     cop_from_efficiency,
@@ -20,8 +21,7 @@ from plantside.efficiency import (
     iplv_band_weights,
     project_weighted_efficiency,
 )
-from plantside.errors import InputRangeError
-from plantside.staging import stage_machines
+from plantside.plant.staging import stage_machines
 
 # A fictional water-cooled chiller whose efficiencies are given (not a catalogue machine):
 # kW/ton at 100 / 75 / 50 / 25 % load.

@@ -19,16 +19,16 @@ import pytest
 from air_handler_cases import synthetic_weather
 from hypothesis import given
 from hypothesis import strategies as st
-from plantside import moist_air as ma
-from plantside.air_handler import AirHandlerSettings, hourly_year
-from plantside.energy_recovery import (
+from plantside.air import moist_air as ma
+from plantside.air.energy_recovery import (
     recovery_fraction_for_mixed_drybulb,
     recovery_leaving_state,
     total_effectiveness,
 )
+from plantside.air.mixing import mixed_state
+from plantside.air_handler.year import AirHandlerSettings, hourly_year
+from plantside.air_handler.zone_loads import ZoneLoadModel
 from plantside.errors import InputRangeError
-from plantside.mixing import mixed_state
-from plantside.zone_loads import ZoneLoadModel
 
 
 @pytest.fixture(autouse=True)

@@ -1,4 +1,4 @@
-"""Fuzzing of scenario files (``plantside.scenario.loads_scenario`` / ``load_scenario``).
+"""Fuzzing of scenario files (``plantside.study.scenario.loads_scenario`` / ``load_scenario``).
 
 The example scenarios are parsed, mutated at random (hypothesis) and written back:
 keys dropped, renamed or added, values replaced by other types, huge and tiny numbers,
@@ -6,7 +6,7 @@ NaN and infinity, strings that look like paths or formulas, tables replaced by l
 air handlers repeated; then the text is damaged (truncated, junk inserted, CRLF,
 byte-order mark, other encodings). Every outcome must be
 
-- a :class:`~plantside.scenario.Scenario` that saves and loads back to the same text
+- a :class:`~plantside.study.scenario.Scenario` that saves and loads back to the same text
   (``dumps_scenario`` round trip) and whose files (weather, zone loads), if any, load or
   fail with ``ScenarioError``, or
 - :class:`~plantside.errors.ScenarioError` naming the file and the field (a dotted path
@@ -31,7 +31,7 @@ import tomli_w
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 from plantside.errors import ScenarioError
-from plantside.scenario import Scenario, dumps_scenario, load_scenario, loads_scenario
+from plantside.study.scenario import Scenario, dumps_scenario, load_scenario, loads_scenario
 
 SCENARIOS = Path(__file__).parents[1] / "example_data" / "scenarios"
 EXAMPLES = sorted(SCENARIOS.glob("*.toml"))

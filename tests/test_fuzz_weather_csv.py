@@ -1,11 +1,11 @@
-"""Fuzzing of the hourly weather CSV importer (``plantside.weather_import.read_weather_csv``).
+"""Fuzzing of the hourly weather CSV importer (``plantside.climate.weather_csv.read_weather_csv``).
 
 Valid files are mutated at random (hypothesis): columns dropped, swapped or relabelled,
 text and extreme numbers put in cells, unit words changed, rows dropped, repeated or
 broken, other separators and decimal commas, other encodings and byte-order marks, CR/LF
 line ends, truncation, binary junk. Every outcome must be one of:
 
-- a :class:`~plantside.weather.Weather` whose every value is finite and physical, or
+- a :class:`~plantside.climate.weather.Weather` whose every value is finite and physical, or
 - :class:`~plantside.errors.InputFileError` whose every problem names a row and/or a
   column, or :class:`~plantside.errors.InputRangeError` naming the argument,
 
@@ -34,9 +34,9 @@ import numpy as np
 import pytest
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
+from plantside.climate.weather_csv import read_weather_csv
 from plantside.errors import InputFileError, InputRangeError
 from plantside.units import fahrenheit_from_celsius, inhg_from_pa
-from plantside.weather_import import read_weather_csv
 
 BUNDLED = Path(__file__).parents[1] / "core" / "plantside" / "data" / "linden_vale.csv"
 

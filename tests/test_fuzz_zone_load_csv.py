@@ -1,11 +1,11 @@
-"""Fuzzing of the hourly zone-load CSV importer (``plantside.zone_load_import``).
+"""Fuzzing of the hourly zone-load CSV importer (``plantside.air_handler.zone_load_csv``).
 
 Valid files are mutated at random (hypothesis): columns dropped, swapped or relabelled,
 text and extreme numbers in cells, unit words changed, rows dropped, repeated or broken,
 other separators and decimal commas, other encodings and byte-order marks, CR/LF line
 ends, truncation, binary junk. Every outcome must be one of:
 
-- a :class:`~plantside.zone_loads.HourlyZoneLoads` of the expected number of hours whose
+- a :class:`~plantside.air_handler.zone_loads.HourlyZoneLoads` of the expected number of hours whose
   every value is finite and inside the documented ranges (sensible and latent
   -100,000..100,000 kW, internal gains 0..100,000 kW: module docstring), or
 - :class:`~plantside.errors.InputFileError` whose every problem names a row and/or a
@@ -30,9 +30,9 @@ import numpy as np
 import pytest
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
+from plantside.air_handler.zone_load_csv import read_zone_loads_csv
+from plantside.air_handler.zone_loads import HourlyZoneLoads
 from plantside.errors import InputFileError, InputRangeError
-from plantside.zone_load_import import read_zone_loads_csv
-from plantside.zone_loads import HourlyZoneLoads
 
 EXAMPLE = Path(__file__).parents[1] / "example_data" / "scenarios" / "korva_school_zone_loads.csv"
 HOURS = 48

@@ -29,23 +29,23 @@ from pathlib import Path
 
 import numpy as np
 import pytest
-from plantside.air_handler import (
+from plantside.air.coils import (
+    cooling_coil_leaving_humidity_ratio,
+    cooling_coil_load,
+    heating_coil_load,
+)
+from plantside.air.mixing import mixed_state, mixed_state_from_flows
+from plantside.air_handler.year import (
     AirHandlerSettings,
     air_handler_hours,
     design_point,
     hourly_year,
 )
-from plantside.climates import load_bundled_climate
-from plantside.coils import (
-    cooling_coil_leaving_humidity_ratio,
-    cooling_coil_load,
-    heating_coil_load,
-)
+from plantside.air_handler.zone_loads import HourlyZoneLoads, ZoneLoadModel, zone_loads_for_weather
+from plantside.climate.bundled import load_bundled_climate
 from plantside.constants import STANDARD_AIR_DENSITY
 from plantside.errors import InputRangeError, ScenarioError
-from plantside.mixing import mixed_state, mixed_state_from_flows
-from plantside.scenario import loads_scenario
-from plantside.zone_loads import HourlyZoneLoads, ZoneLoadModel, zone_loads_for_weather
+from plantside.study.scenario import loads_scenario
 
 SCENARIOS = Path(__file__).parents[1] / "example_data" / "scenarios"
 SI_SCENARIO = SCENARIOS / "linden_office_si.toml"
@@ -133,7 +133,7 @@ def test_dashboard_refuses_supply_above_the_zone_and_keeps_the_result():
     # The dashboard's own range check (non-browser; the page is tested elsewhere): the
     # value is refused with the range, nothing is recomputed, the last result stays.
     from plantside.dashboard.state import DashboardState
-    from plantside.scenario import load_scenario
+    from plantside.study.scenario import load_scenario
 
     state = DashboardState(load_scenario(SI_SCENARIO))
     before = state.result
@@ -433,7 +433,7 @@ def test_defect_d1_dashboard_supply_range_is_what_the_model_accepts(end):
     # allowed range -20 to 4 °C": fields the page does not show. Either the range offered
     # excludes such values, or the message speaks of the control on the page.
     from plantside.dashboard.state import DashboardState
-    from plantside.scenario import load_scenario
+    from plantside.study.scenario import load_scenario
 
     state = DashboardState(load_scenario(SI_SCENARIO))
     state.set("bypass_factor", 0.0)  # keep the coil physics out of it

@@ -17,13 +17,13 @@ import psychrolib
 import pytest
 from hypothesis import given
 from hypothesis import strategies as st
-from plantside import moist_air as ma
-from plantside.errors import InputRangeError
-from plantside.mixing import (
+from plantside.air import moist_air as ma
+from plantside.air.mixing import (
     mixed_state,
     mixed_state_from_flows,
     outdoor_fraction_for_mixed_drybulb,
 )
+from plantside.errors import InputRangeError
 
 
 @pytest.fixture(autouse=True)

@@ -20,7 +20,7 @@ import psychrolib
 import pytest
 from CoolProp.CoolProp import PropsSI
 from CoolProp.HumidAirProp import HAPropsSI
-from plantside import moist_air as ma
+from plantside.air import moist_air as ma
 from plantside.errors import InputRangeError
 
 P_STD = 101325.0  # Pa, ASHRAE 2017 Ch. 1 Table 1 at sea level

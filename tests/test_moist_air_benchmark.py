@@ -14,7 +14,7 @@ import time
 import numpy as np
 import psychrolib
 import pytest
-from plantside import moist_air as ma
+from plantside.air import moist_air as ma
 
 HOURS = 8760
 

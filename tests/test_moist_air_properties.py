@@ -12,7 +12,7 @@ from __future__ import annotations
 import numpy as np
 from hypothesis import assume, given, settings
 from hypothesis import strategies as st
-from plantside import moist_air as ma
+from plantside.air import moist_air as ma
 
 EXAMPLES = settings(max_examples=150)
 

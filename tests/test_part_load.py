@@ -1,4 +1,4 @@
-"""Tests of plantside.part_load: load-duration curve and part-load bins."""
+"""Tests of plantside.plant.part_load: load-duration curve and part-load bins."""
 
 import numpy as np
 import pytest
@@ -6,7 +6,7 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 from hypothesis.extra.numpy import arrays
 from plantside.errors import InputRangeError
-from plantside.part_load import (
+from plantside.plant.part_load import (
     NO_LOAD_FRACTION_OF_PEAK,
     load_duration_curve,
     no_load_threshold_from_loads,

@@ -1,4 +1,4 @@
-"""Tests of plantside.plant_loads: coincident plant load and diversity."""
+"""Tests of plantside.plant.loads: coincident plant load and diversity."""
 
 import numpy as np
 import pandas as pd
@@ -7,7 +7,7 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 from hypothesis.extra.numpy import arrays
 from plantside.errors import InputRangeError
-from plantside.plant_loads import (
+from plantside.plant.loads import (
     coincident_load,
     diversity_table,
     load_matrix,

@@ -49,7 +49,7 @@ from pathlib import Path
 
 import numpy as np
 import pytest
-from plantside.air_handler import (
+from plantside.air_handler.year import (
     HOURLY_COLUMNS,
     AirHandlerSettings,
     air_handler_hours,
@@ -57,15 +57,15 @@ from plantside.air_handler import (
     design_point,
     outdoor_air_sweep,
 )
-from plantside.climates import BUNDLED_CLIMATES, load_bundled_climate
-from plantside.design_conditions import design_conditions_from_weather
-from plantside.errors import InputRangeError
-from plantside.zone_loads import (
+from plantside.air_handler.zone_loads import (
     HourlyZoneLoads,
     ZoneLoadModel,
     design_zone_loads,
     zone_loads_for_weather,
 )
+from plantside.climate.bundled import BUNDLED_CLIMATES, load_bundled_climate
+from plantside.climate.design_conditions import design_conditions_from_weather
+from plantside.errors import InputRangeError
 
 OUTDOOR_AIR_FRACTIONS = np.array([0.0, 0.2, 0.5, 0.8, 1.0])
 SUPPLY_DRYBULBS = (4.0, 12.0, 23.5)  # °C; zone cooling set point 24 °C
@@ -398,7 +398,7 @@ def test_dashboard_headline_figures_stay_finite_at_every_control_end(climate):
     # shows finite headline figures; a refused one keeps the last valid (finite) figures
     # and puts a message beside a control.
     from plantside.dashboard.state import DashboardState
-    from plantside.scenario import loads_scenario
+    from plantside.study.scenario import loads_scenario
 
     # The SI example without its supply reset (16 °C) and with preheat at 4 °C, so that the
     # dashboard's whole supply range is open to the model (see D1 in

@@ -6,7 +6,7 @@ from pathlib import Path
 
 import pytest
 from plantside.errors import ScenarioError
-from plantside.scenario import (
+from plantside.study.scenario import (
     dumps_scenario,
     load_scenario,
     loads_scenario,

@@ -1,4 +1,4 @@
-"""Tests of plantside.sizing: design capacity, load percentiles and what a margin buys."""
+"""Tests of plantside.plant.sizing: design capacity, load percentiles and what a margin buys."""
 
 import numpy as np
 import pytest
@@ -6,7 +6,7 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 from hypothesis.extra.numpy import arrays
 from plantside.errors import InputRangeError
-from plantside.sizing import (
+from plantside.plant.sizing import (
     design_capacity_from_design_load,
     energy_above,
     hours_above,
@@ -38,7 +38,7 @@ def test_negative_margin_raises_naming_field_and_range():
 def test_percentiles_on_one_to_thousand():
     # Constructed series 1, 2, ..., 1000 kW (shuffled). 1 % of 1000 h = 10 h may lie above the
     # answer: the 11th highest, 990 kW, which exactly 10 hours (991..1000) exceed. 0.4 % = 4 h:
-    # the 5th highest, 996 kW, exceeded by 997..1000 (definition in plantside.sizing notes).
+    # the 5th highest, 996 kW, exceeded by 997..1000 (definition in plantside.plant.sizing notes).
     loads = np.random.default_rng(7).permutation(np.arange(1.0, 1001.0))
     assert load_exceeded(loads, 1.0) == 990.0
     assert load_exceeded(loads, 0.4) == 996.0

@@ -1,7 +1,7 @@
-"""Tests of plantside.staging: sequencing N machines and comparing plant options.
+"""Tests of plantside.plant.staging: sequencing N machines and comparing plant options.
 
 Expected values are worked by hand from the staging rule stated in the module notes of
-plantside.staging (a planning rule of our own; common practice, no source).
+plantside.plant.staging (a planning rule of our own; common practice, no source).
 """
 
 import time
@@ -12,8 +12,8 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 from hypothesis.extra.numpy import arrays
 from plantside.errors import InputRangeError
-from plantside.part_load import no_load_threshold_from_loads, part_load_bins
-from plantside.staging import (
+from plantside.plant.part_load import no_load_threshold_from_loads, part_load_bins
+from plantside.plant.staging import (
     PlantOption,
     compare_plant_options,
     compare_stage_hours,
@@ -185,7 +185,7 @@ def test_bad_inputs_raise_naming_field_and_range():
 
 
 def _loop_staging(loads, capacities, turndown, threshold, bands=10):
-    """The staging rule of plantside.staging written hour by hour (the baseline)."""
+    """The staging rule of plantside.plant.staging written hour by hour (the baseline)."""
     machines = len(capacities)
     stage_hours = [0] * (machines + 1)
     bin_hours = [[0] * bands for _ in range(machines)]

@@ -14,8 +14,8 @@ rounding the factor carries plus, where stated, what the factor leaves out.
 from __future__ import annotations
 
 import pytest
-from plantside import moist_air as ma
 from plantside import units as u
+from plantside.air import moist_air as ma
 from plantside.constants import KG_PER_LB, M_PER_FT
 
 P_STD = 101325.0  # Pa

@@ -5,8 +5,8 @@ from pathlib import Path
 
 import numpy as np
 import pytest
-from plantside.scenario import load_scenario
-from plantside.study import heating_load_columns, run_study, study_summary
+from plantside.study.run import heating_load_columns, run_study, study_summary
+from plantside.study.scenario import load_scenario
 
 CLINIC = Path(__file__).parents[1] / "example_data" / "scenarios" / "quillon_clinic.toml"
 

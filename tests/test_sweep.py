@@ -1,6 +1,6 @@
 """Sweeps: parsing, validation messages, resume, interruption, and the table against run_study.
 
-The reference for every number in a sweep's table is :func:`plantside.study.run_study` of
+The reference for every number in a sweep's table is :func:`plantside.study.run.run_study` of
 that case alone, built here through the public scenario API (``Scenario.with_air_handler``,
 ``dataclasses.replace``) rather than through the sweep's own code, and read through
 ``study_summary`` (the command line's ``--json``). Unit conversions are checked against
@@ -29,14 +29,14 @@ from plantside.charts.sweep import (
     sweep_line_chart,
     sweep_line_frame,
 )
-from plantside.cli import main
-from plantside.climates import BUNDLED_CLIMATES
+from plantside.cli.main import main
+from plantside.cli.sweep import ProgressBar
+from plantside.climate.bundled import BUNDLED_CLIMATES
 from plantside.errors import InputFileError, InputRangeError, ScenarioError
-from plantside.scenario import load_scenario
-from plantside.study import run_study, study_summary
-from plantside.sweep import load_sweep, loads_sweep
-from plantside.sweep_cli import ProgressBar
-from plantside.sweep_run import (
+from plantside.study.run import run_study, study_summary
+from plantside.study.scenario import load_scenario
+from plantside.study.sweep import load_sweep, loads_sweep
+from plantside.study.sweep_run import (
     PARTS_FOLDER,
     SweepCaseError,
     SweepInterruptedError,
@@ -416,8 +416,8 @@ def test_folder_of_another_sweep_is_refused_unless_restarted(office_sweep, tmp_p
 
 
 def test_csv_climates_are_read_once_per_process(tmp_path, monkeypatch):
-    import plantside.sweep_run as sweep_run
-    import plantside.weather_import as weather_import
+    import plantside.climate.weather_csv as weather_import
+    import plantside.study.sweep_run as sweep_run
 
     folder = tmp_path / "weather"
     folder.mkdir()
@@ -508,7 +508,7 @@ def test_ctrl_c_on_the_command_line_keeps_finished_cases(tmp_path):
         tmp_path, f'climates = ["Linden Vale", "Port Calder"]\n[sweep.axes]\n"{OA}" = [{values}]\n'
     )
     out = tmp_path / "out"
-    command = [sys.executable, "-m", "plantside.cli", "sweep", str(path), "--out", str(out)]
+    command = [sys.executable, "-m", "plantside.cli.main", "sweep", str(path), "--out", str(out)]
     child = subprocess.Popen(
         [*command, "--workers", "2", "--batch-size", "1"],
         stdout=subprocess.PIPE,

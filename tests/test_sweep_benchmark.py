@@ -26,9 +26,9 @@ from pathlib import Path
 
 import pandas as pd
 import pytest
-from plantside.climates import BUNDLED_CLIMATES
-from plantside.sweep import load_sweep
-from plantside.sweep_run import run_sweep
+from plantside.climate.bundled import BUNDLED_CLIMATES
+from plantside.study.sweep import load_sweep
+from plantside.study.sweep_run import run_sweep
 
 ROOT = Path(__file__).parents[1]
 CLINIC = ROOT / "example_data" / "scenarios" / "quillon_clinic.toml"

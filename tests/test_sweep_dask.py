@@ -1,7 +1,7 @@
 """A sweep on a real Dask cluster (LocalCluster, loopback only) equals the single-process run.
 
 The reference is the same sweep run in this process (workers=1), itself checked case by
-case against :func:`plantside.study.run_study` in ``tests/test_sweep.py``.
+case against :func:`plantside.study.run.run_study` in ``tests/test_sweep.py``.
 """
 
 import sys
@@ -10,8 +10,8 @@ from pathlib import Path
 import pandas as pd
 import pytest
 from plantside.errors import InputRangeError
-from plantside.sweep import load_sweep
-from plantside.sweep_run import run_sweep
+from plantside.study.sweep import load_sweep
+from plantside.study.sweep_run import run_sweep
 
 distributed = pytest.importorskip("dask.distributed", reason="needs the 'cluster' extra")
 
@@ -48,7 +48,7 @@ def sweep(tmp_path_factory):
 
 def _bundled_cache_calls():
     """(lookups, loads) of the per-process bundled-climate cache, run on each worker."""
-    from plantside.climates import _load
+    from plantside.climate.bundled import _load
 
     info = _load.cache_info()
     return info.hits + info.misses, info.misses
@@ -88,7 +88,7 @@ def test_scheduler_address_runs_there(cluster, sweep, tmp_path):
 
 
 def test_unreachable_scheduler_is_a_clear_error(sweep, tmp_path, monkeypatch):
-    import plantside.sweep_run as sweep_run
+    import plantside.study.sweep_run as sweep_run
 
     monkeypatch.setattr(sweep_run, "CONNECT_TIMEOUT", "2s")
     with pytest.raises(InputRangeError, match="cannot reach the Dask scheduler"):

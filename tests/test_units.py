@@ -17,8 +17,8 @@ import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 from plantside import units as u
+from plantside.air.moist_air import enthalpy_from_humidity_ratio
 from plantside.errors import InputRangeError
-from plantside.moist_air import enthalpy_from_humidity_ratio
 from plantside.units import UnitSystem
 
 # Exact definitions (NIST SP 811 Appendix B).

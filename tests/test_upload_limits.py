@@ -21,10 +21,15 @@ import time
 from pathlib import Path
 
 import pytest
+from plantside.air_handler.zone_load_csv import read_zone_loads_csv
+from plantside.climate.weather_csv import DEFAULT_MAX_BYTES, DEFAULT_MAX_ROWS, read_weather_csv
 from plantside.errors import InputFileError, ScenarioError
-from plantside.scenario import MAX_SCENARIO_BYTES, dumps_scenario, load_scenario, loads_scenario
-from plantside.weather_import import DEFAULT_MAX_BYTES, DEFAULT_MAX_ROWS, read_weather_csv
-from plantside.zone_load_import import read_zone_loads_csv
+from plantside.study.scenario import (
+    MAX_SCENARIO_BYTES,
+    dumps_scenario,
+    load_scenario,
+    loads_scenario,
+)
 
 SCENARIOS = Path(__file__).parents[1] / "example_data" / "scenarios"
 CLIMATES = Path(__file__).parents[1] / "example_data" / "climates"
@@ -87,7 +92,7 @@ def test_huge_hour_index_is_refused_without_allocating(last_hour):
     code = textwrap.dedent(
         f"""
         from plantside.errors import InputFileError
-        from plantside.weather_import import read_weather_csv
+        from plantside.climate.weather_csv import read_weather_csv
         try:
             read_weather_csv(b"hour,drybulb_C,dew_point_C\\n0,20,10\\n{last_hour},20,10\\n",
                              altitude=0)

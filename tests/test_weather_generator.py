@@ -6,20 +6,21 @@ from pathlib import Path
 import numpy as np
 import psychrolib
 import pytest
-from plantside import moist_air, weather_generator
-from plantside.design_conditions import design_conditions_from_weather
-from plantside.errors import InputRangeError
-from plantside.weather_generator import (
+from plantside.air import moist_air
+from plantside.climate import fictional_sites
+from plantside.climate.design_conditions import design_conditions_from_weather
+from plantside.climate.fictional_sites import (
     SITES,
     climate_csv_text,
     generate_year,
-    main,
     site_parameters,
 )
+from plantside.climate.generate import main
+from plantside.errors import InputRangeError
 
 psychrolib.SetUnitSystem(psychrolib.SI)
 
-DATA = Path(weather_generator.__file__).parent / "data"
+DATA = Path(fictional_sites.__file__).parents[1] / "data"
 SITE_SLUGS = list(SITES)
 
 
@@ -94,7 +95,7 @@ def test_other_seeds_centre_on_the_stated_ranges(slug):
 
 
 def test_docstring_table_states_the_same_ranges():
-    doc = weather_generator.__doc__
+    doc = fictional_sites.__doc__
     for site in SITES.values():
         line = next(line for line in doc.splitlines() if line.startswith(site.name))
         for low, high in site.design_ranges.values():
@@ -160,6 +161,6 @@ def test_command_line_regenerates_the_bundled_files_exactly(tmp_path, capsys):
 def test_csv_text_has_header_and_8760_rows():
     text = climate_csv_text(generate_year(SITES["port_calder"]), seed=1)
     lines = text.splitlines()
-    header = lines.index(weather_generator.CSV_HEADER)
+    header = lines.index(fictional_sites.CSV_HEADER)
     assert all(line.startswith("#") for line in lines[:header])
     assert len(lines) - header - 1 == 8760

@@ -10,10 +10,10 @@ import numpy as np
 import pandas as pd
 import psychrolib
 import pytest
-from plantside import moist_air
-from plantside.climates import load_bundled_climate
+from plantside.air import moist_air
+from plantside.climate.bundled import load_bundled_climate
+from plantside.climate.weather_csv import read_weather_csv
 from plantside.errors import InputFileError, InputRangeError
-from plantside.weather_import import read_weather_csv
 
 psychrolib.SetUnitSystem(psychrolib.SI)
 

@@ -10,8 +10,8 @@ import io
 
 import numpy as np
 import pytest
+from plantside.air_handler.zone_load_csv import read_zone_loads_csv
 from plantside.errors import InputFileError
-from plantside.zone_load_import import read_zone_loads_csv
 
 
 def _csv(header, rows, separator=","):

@@ -13,8 +13,7 @@ import pytest
 from air_handler_cases import synthetic_weather
 from hypothesis import assume, given
 from hypothesis import strategies as st
-from plantside.errors import InputRangeError
-from plantside.zone_loads import (
+from plantside.air_handler.zone_loads import (
     HourlyZoneLoads,
     ZoneLoadModel,
     design_zone_loads,
@@ -22,6 +21,7 @@ from plantside.zone_loads import (
     zone_loads_for_weather,
     zone_loads_from_model,
 )
+from plantside.errors import InputRangeError
 
 MODEL = ZoneLoadModel(
     cooling_design_sensible=100.0,

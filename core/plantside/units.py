@@ -13,7 +13,7 @@ from enum import StrEnum
 
 import numpy as np
 
-from .constants import (
+from plantside.constants import (
     GRAINS_PER_LB,
     KJKG_PER_BTULB,
     KW_PER_TON,
@@ -23,7 +23,7 @@ from .constants import (
     PA_PER_PSI,
     W_PER_BTUH,
 )
-from .errors import InputRangeError
+from plantside.errors import InputRangeError
 
 __all__ = [
     "QUANTITIES",

@@ -14,10 +14,10 @@ from dataclasses import replace
 from pathlib import Path
 
 import pytest
-from plantside.air_handler import cooling_design_points
-from plantside.climates import load_bundled_climate
+from plantside.air_handler.year import cooling_design_points
+from plantside.climate.bundled import load_bundled_climate
+from plantside.climate.design_conditions import design_conditions_from_weather
 from plantside.dashboard.app import example_scenario, first_recirculating_unit
-from plantside.design_conditions import design_conditions_from_weather
 from plantside.units import tons_from_kw
 
 pytestmark = pytest.mark.browser

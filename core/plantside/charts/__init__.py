@@ -18,13 +18,17 @@ stamped with the inputs). Colours and the theme are in
 :mod:`plantside.charts.palette`.
 """
 
-from .compare import combine_scenarios
-from .design_breakdown import design_breakdown_chart
-from .export import chart_bytes, save_chart
-from .load_duration import load_distribution_chart, load_duration_chart, part_load_chart
-from .oa_sweep import oa_sweep_chart
-from .psychrometric import psychrometric_chart
-from .year_scatter import year_scatter_chart
+from plantside.charts.compare import combine_scenarios
+from plantside.charts.design_breakdown import design_breakdown_chart
+from plantside.charts.export import chart_bytes, save_chart
+from plantside.charts.load_duration import (
+    load_distribution_chart,
+    load_duration_chart,
+    part_load_chart,
+)
+from plantside.charts.oa_sweep import oa_sweep_chart
+from plantside.charts.psychrometric import psychrometric_chart
+from plantside.charts.year_scatter import year_scatter_chart
 
 __all__ = [
     "chart_bytes",

@@ -17,7 +17,7 @@ import altair as alt
 import numpy as np
 import pandas as pd
 
-from ..errors import InputRangeError
+from plantside.errors import InputRangeError
 
 __all__ = [
     "SCENARIOS",

@@ -15,9 +15,9 @@ import altair as alt
 import numpy as np
 import pandas as pd
 
-from .compare import SCENARIO_COLUMN, has_scenarios, scenario_opacity, scenarios_in
-from .frames import axis_title, frame_system, value_format
-from .palette import COMPONENT_COLOURS, INK, STAGE, chart_builder, layered, themed
+from plantside.charts.compare import SCENARIO_COLUMN, has_scenarios, scenario_opacity, scenarios_in
+from plantside.charts.frames import axis_title, frame_system, value_format
+from plantside.charts.palette import COMPONENT_COLOURS, INK, STAGE, chart_builder, layered, themed
 
 __all__ = ["design_breakdown_chart"]
 

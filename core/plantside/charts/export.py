@@ -20,9 +20,9 @@ from pathlib import Path
 import altair as alt
 import vl_convert
 
-from .. import __version__
-from ..errors import InputRangeError
-from .palette import FONT, INK_SOFT
+from plantside import __version__
+from plantside.charts.palette import FONT, INK_SOFT
+from plantside.errors import InputRangeError
 
 __all__ = [
     "FORMATS",

@@ -30,11 +30,11 @@ from collections.abc import Mapping, Sequence
 import numpy as np
 import pandas as pd
 
-from .. import moist_air
-from ..efficiency import iplv_band_weights
-from ..errors import InputRangeError, check_range
-from ..part_load import load_duration_curve, part_load_bins
-from ..units import UnitSystem, from_display, to_display, unit_label
+from plantside.air import moist_air
+from plantside.errors import InputRangeError, check_range
+from plantside.plant.efficiency import iplv_band_weights
+from plantside.plant.part_load import load_duration_curve, part_load_bins
+from plantside.units import UnitSystem, from_display, to_display, unit_label
 
 __all__ = [
     "BREAKDOWN_COMPONENTS",
@@ -88,7 +88,7 @@ BREAKDOWN_OPTIONAL = (
     ("Distribution gain", ("distribution_gain_kW",), 1.0),
 )
 
-#: Words for the economizer modes of :data:`plantside.economizer.ECONOMIZER_MODES`.
+#: Words for the economizer modes of :data:`plantside.air.economizer.ECONOMIZER_MODES`.
 MODE_LABELS = {
     "off": "Fan off",
     "minimum_outdoor_air": "Minimum outdoor air",
@@ -261,7 +261,7 @@ def year_scatter_frame(
     Parameters
     ----------
     hourly : pandas.DataFrame
-        An air handler's year (``plantside.air_handler.hourly_year``), with
+        An air handler's year (``plantside.air_handler.year.hourly_year``), with
         columns ``coil_total_kW``, ``zone_sensible_kW``, ``zone_latent_kW``,
         ``economizer_mode`` and, if present, ``operating``.
     system : {"SI", "IP"}
@@ -282,7 +282,7 @@ def year_scatter_frame(
         One row per occupied (zone cell, coil cell, mode): ``zone_load`` and
         ``coil_load`` (cell centres [display power]), ``zone_low``,
         ``zone_high``, ``coil_low``, ``coil_high`` (cell edges [display
-        power]), ``mode`` (a :data:`plantside.economizer.ECONOMIZER_MODES`
+        power]), ``mode`` (a :data:`plantside.air.economizer.ECONOMIZER_MODES`
         name), ``mode_label`` (its words), ``hours`` (int, > 0). Zone load is
         the load the unit meets (sensible + latent). Hours sum to the hours
         shown; ``attrs["hours_off"]`` holds the fan-off hours left out.
@@ -365,7 +365,7 @@ def load_duration_frame(series: Mapping[str, object], system="SI", points: int =
         load (0 kW): the curve is the cooling duty.
     system : {"SI", "IP"}
     points : int
-        Points kept per curve (see :func:`plantside.part_load.load_duration_curve`).
+        Points kept per curve (see :func:`plantside.plant.part_load.load_duration_curve`).
 
     Returns
     -------
@@ -453,7 +453,7 @@ def part_load_frame(
     -------
     pandas.DataFrame
         Rows "no load", "0-10 %", ..., "90-100 %", "above 100 %" (from
-        :func:`plantside.part_load.part_load_bins`): ``band``, ``order``,
+        :func:`plantside.plant.part_load.part_load_bins`): ``band``, ``order``,
         ``lower_percent``, ``upper_percent``, ``hours``, ``percent_of_hours``,
         ``energy`` [display energy: MWh or ton·h], ``percent_of_energy``.
     """
@@ -497,7 +497,7 @@ def iplv_weights_frame(machine_loads, capacities, system="SI", basis: str = "ene
         8 rows: ``rating_point`` ("100 %", "75 %", "50 %", "25 %"),
         ``rating_point_percent``, ``source`` ("AHRI 550/590" or "This
         building"), ``weight_percent``. Weights from
-        :func:`plantside.efficiency.iplv_band_weights` (AHRI Standard
+        :func:`plantside.plant.efficiency.iplv_band_weights` (AHRI Standard
         550/590: 1, 42, 45, 12 %).
     """
     system = _system(system)
@@ -607,7 +607,7 @@ def psychrometric_grid_frame(
         enthalpy [display enthalpy]), ``order`` (point order along the line),
         ``drybulb`` [display temperature], ``humidity_ratio`` [display
         humidity ratio], ``label`` (True at the point where the line is
-        labelled). Curves come from :mod:`plantside.moist_air` (ASHRAE
+        labelled). Curves come from :mod:`plantside.air.moist_air` (ASHRAE
         Handbook Fundamentals 2017 Ch. 1, Eqs. 5-6 and 20-22, 32).
     """
     system = _system(system)
@@ -744,7 +744,7 @@ def process_frame(states, system="SI", pressure: float = 101325.0) -> pd.DataFra
     Parameters
     ----------
     states : pandas.DataFrame or mapping
-        ``DesignPoint.states`` of :mod:`plantside.air_handler` (index
+        ``DesignPoint.states`` of :mod:`plantside.air_handler.year` (index
         outdoor, recovered, return, mixed, coil_entering, coil_leaving,
         supply, zone; columns ``drybulb_C`` and ``humidity_ratio_kgkg``), or
         a mapping of the same names to (dry bulb [°C], humidity ratio
@@ -961,7 +961,7 @@ def value_format(values) -> str:
 
 
 def oa_sweep_frame_from_sweep(sweep: pd.DataFrame, system="SI") -> pd.DataFrame:
-    """:func:`oa_sweep_frame` from ``plantside.air_handler.outdoor_air_sweep`` results.
+    """:func:`oa_sweep_frame` from ``plantside.air_handler.year.outdoor_air_sweep`` results.
 
     Parameters
     ----------

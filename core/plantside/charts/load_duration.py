@@ -22,8 +22,7 @@ import altair as alt
 import numpy as np
 import pandas as pd
 
-from ..errors import InputRangeError
-from .compare import (
+from plantside.charts.compare import (
     SCENARIO_COLUMN,
     SCENARIO_LABELS,
     axis_top,
@@ -33,8 +32,8 @@ from .compare import (
     scenarios_in,
     spread_labels,
 )
-from .frames import axis_title, frame_system, value_format
-from .palette import (
+from plantside.charts.frames import axis_title, frame_system, value_format
+from plantside.charts.palette import (
     CATEGORY_COLOURS,
     COIL,
     INK,
@@ -49,6 +48,7 @@ from .palette import (
     layered,
     themed,
 )
+from plantside.errors import InputRangeError
 
 __all__ = [
     "load_distribution_chart",

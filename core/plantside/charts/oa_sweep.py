@@ -14,7 +14,7 @@ from __future__ import annotations
 import altair as alt
 import pandas as pd
 
-from .compare import (
+from plantside.charts.compare import (
     SCENARIO_COLUMN,
     SCENARIO_LABELS,
     axis_top,
@@ -23,8 +23,8 @@ from .compare import (
     scenarios_in,
     spread_labels,
 )
-from .frames import axis_title, frame_system, value_format
-from .palette import (
+from plantside.charts.frames import axis_title, frame_system, value_format
+from plantside.charts.palette import (
     BACKGROUND,
     CATEGORY_COLOURS,
     COIL,

@@ -36,7 +36,7 @@ import functools
 import altair as alt
 from altair.utils import schemapi
 
-from .frames import records
+from plantside.charts.frames import records
 
 __all__ = [
     "BACKGROUND",
@@ -111,7 +111,7 @@ COMPONENT_COLOURS = {
 }
 
 # --- economizer modes (Okabe-Ito [1]) -----------------------------------------------------
-#: Colour of each economizer mode of :data:`plantside.economizer.ECONOMIZER_MODES`, fixed
+#: Colour of each economizer mode of :data:`plantside.air.economizer.ECONOMIZER_MODES`, fixed
 #: so a mode keeps its colour from chart to chart and from scenario A to B. Okabe-Ito's
 #: yellow is left out (too light on white for a projector); "off" is grey.
 MODE_COLOURS = {
@@ -171,7 +171,7 @@ def mode_colours(modes) -> dict[str, str]:
     Parameters
     ----------
     modes : iterable of str
-        Mode names (:data:`plantside.economizer.ECONOMIZER_MODES` values).
+        Mode names (:data:`plantside.air.economizer.ECONOMIZER_MODES` values).
 
     Returns
     -------

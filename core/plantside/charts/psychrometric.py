@@ -1,7 +1,7 @@
 """Chart 4: a psychrometric chart with the design process and the year's outdoor hours.
 
 Dry bulb across, humidity ratio up the right-hand side (the trade's layout),
-drawn for the site's own pressure from :mod:`plantside.moist_air`
+drawn for the site's own pressure from :mod:`plantside.air.moist_air`
 (ASHRAE Handbook Fundamentals 2017 Ch. 1): the saturation curve, relative
 humidity lines every 10 %, and lines of constant enthalpy. On it:
 
@@ -22,10 +22,9 @@ import altair as alt
 import numpy as np
 import pandas as pd
 
-from ..units import to_display
-from .compare import SCENARIO_COLUMN, SCENARIO_LABELS, has_scenarios, scenarios_in
-from .frames import axis_title, frame_system
-from .palette import (
+from plantside.charts.compare import SCENARIO_COLUMN, SCENARIO_LABELS, has_scenarios, scenarios_in
+from plantside.charts.frames import axis_title, frame_system
+from plantside.charts.palette import (
     BACKGROUND,
     DENSITY_SCHEME,
     INK,
@@ -36,6 +35,7 @@ from .palette import (
     layered,
     themed,
 )
+from plantside.units import to_display
 
 __all__ = ["psychrometric_chart"]
 

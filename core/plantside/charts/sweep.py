@@ -1,6 +1,6 @@
 """Sweep charts: how a headline result moves across the cases of a sweep.
 
-Two views of the tidy sweep table (:func:`plantside.sweep_run.results_table`,
+Two views of the tidy sweep table (:func:`plantside.study.sweep_run.results_table`,
 one row per case, SI with unit-suffixed column names):
 
 - a **line per climate** (or any other series column): a result such as the design
@@ -25,10 +25,10 @@ import altair as alt
 import numpy as np
 import pandas as pd
 
-from ..errors import InputRangeError
-from ..units import UnitSystem, to_display, unit_label
-from .frames import MAX_ROWS, frame_system, value_format
-from .palette import CATEGORY_COLOURS, DENSITY_SCHEME, INK, WIDTH, themed
+from plantside.charts.frames import MAX_ROWS, frame_system, value_format
+from plantside.charts.palette import CATEGORY_COLOURS, DENSITY_SCHEME, INK, WIDTH, themed
+from plantside.errors import InputRangeError
+from plantside.units import UnitSystem, to_display, unit_label
 
 __all__ = [
     "column_label",
@@ -478,7 +478,7 @@ def sweep_charts(table: pd.DataFrame, axis_columns, *, system="SI") -> dict:
     Parameters
     ----------
     table : pandas.DataFrame
-        The sweep table (:func:`plantside.sweep_run.results_table`).
+        The sweep table (:func:`plantside.study.sweep_run.results_table`).
     axis_columns : sequence of str
         The axis columns of the table, in the sweep's order (``SweepAxis.column``).
     system : {"SI", "IP"}

@@ -15,10 +15,18 @@ import altair as alt
 import numpy as np
 import pandas as pd
 
-from ..economizer import ECONOMIZER_MODES
-from .compare import SCENARIO_COLUMN, SCENARIO_LABELS, scenarios_in
-from .frames import MODE_LABELS, axis_title, frame_system, value_format
-from .palette import INK_SOFT, WIDTH, chart_builder, concatenated, layered, mode_colours, themed
+from plantside.air.economizer import ECONOMIZER_MODES
+from plantside.charts.compare import SCENARIO_COLUMN, SCENARIO_LABELS, scenarios_in
+from plantside.charts.frames import MODE_LABELS, axis_title, frame_system, value_format
+from plantside.charts.palette import (
+    INK_SOFT,
+    WIDTH,
+    chart_builder,
+    concatenated,
+    layered,
+    mode_colours,
+    themed,
+)
 
 __all__ = ["year_scatter_chart"]
 

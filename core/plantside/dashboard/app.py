@@ -32,30 +32,30 @@ import ipywidgets as widgets
 import numpy as np
 import pandas as pd
 
-from .. import __version__
-from ..charts import frames as chart_frames
-from ..charts.compare import combine_scenarios
-from ..charts.design_breakdown import design_breakdown_chart
-from ..charts.export import chart_bytes
-from ..charts.load_duration import load_distribution_chart
-from ..charts.oa_sweep import oa_sweep_chart
-from ..charts.psychrometric import psychrometric_chart
-from ..charts.year_scatter import year_scatter_chart
-from ..errors import PlantsideError, ScenarioError
-from ..scenario import Scenario, dumps_scenario, load_scenario, loads_scenario
-from ..staging import stage_machines
-from ..units import to_display
-from .controls import Controls
-from .download import BrowserDownload, safe_filename
-from .serve import SCENARIO_ENVIRONMENT_VARIABLE
-from .spec import SpecWriter
-from .state import (
+from plantside import __version__
+from plantside.charts import frames as chart_frames
+from plantside.charts.compare import combine_scenarios
+from plantside.charts.design_breakdown import design_breakdown_chart
+from plantside.charts.export import chart_bytes
+from plantside.charts.load_duration import load_distribution_chart
+from plantside.charts.oa_sweep import oa_sweep_chart
+from plantside.charts.psychrometric import psychrometric_chart
+from plantside.charts.year_scatter import year_scatter_chart
+from plantside.dashboard.controls import Controls
+from plantside.dashboard.download import BrowserDownload, safe_filename
+from plantside.dashboard.serve import SCENARIO_ENVIRONMENT_VARIABLE
+from plantside.dashboard.spec import SpecWriter
+from plantside.dashboard.state import (
     PART_LOAD_THRESHOLD,
     DashboardResult,
     DashboardState,
     condition_text,
     display_text,
 )
+from plantside.errors import PlantsideError, ScenarioError
+from plantside.plant.staging import stage_machines
+from plantside.study.scenario import Scenario, dumps_scenario, load_scenario, loads_scenario
+from plantside.units import to_display
 
 __all__ = ["CAUTION_TEXT", "CHARTS", "Dashboard", "example_scenario", "first_recirculating_unit"]
 

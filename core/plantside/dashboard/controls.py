@@ -18,9 +18,9 @@ from dataclasses import dataclass
 
 import ipywidgets as widgets
 
-from ..climates import bundled_climate_description
-from ..units import from_display, to_display
-from .state import ECONOMIZER_CHOICES, FAN_CHOICES, DashboardState, display_text
+from plantside.climate.bundled import bundled_climate_description
+from plantside.dashboard.state import ECONOMIZER_CHOICES, FAN_CHOICES, DashboardState, display_text
+from plantside.units import from_display, to_display
 
 __all__ = ["SLIDERS", "Controls", "SliderSpec"]
 

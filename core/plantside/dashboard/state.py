@@ -50,17 +50,17 @@ from types import SimpleNamespace
 import numpy as np
 import pandas as pd
 
-from .. import air_handler as ahu
-from ..climates import BUNDLED_CLIMATES, load_bundled_climate
-from ..design_conditions import COOLING_PERCENTS, design_conditions_from_weather
-from ..errors import InputFileError, InputRangeError, PlantsideError
-from ..plant_loads import plant_load_from_coil_loads
-from ..scenario import Scenario
-from ..sizing import design_capacity_from_design_load
-from ..units import UnitSystem, to_display
-from ..weather import Weather
-from ..weather_import import read_weather_csv
-from ..zone_loads import HourlyZoneLoads, ZoneLoadModel, design_zone_loads
+from plantside.air_handler import year as ahu
+from plantside.air_handler.zone_loads import HourlyZoneLoads, ZoneLoadModel, design_zone_loads
+from plantside.climate.bundled import BUNDLED_CLIMATES, load_bundled_climate
+from plantside.climate.design_conditions import COOLING_PERCENTS, design_conditions_from_weather
+from plantside.climate.weather import Weather
+from plantside.climate.weather_csv import read_weather_csv
+from plantside.errors import InputFileError, InputRangeError, PlantsideError
+from plantside.plant.loads import plant_load_from_coil_loads
+from plantside.plant.sizing import design_capacity_from_design_load
+from plantside.study.scenario import Scenario
+from plantside.units import UnitSystem, to_display
 
 __all__ = [
     "CONTROLS",
@@ -237,7 +237,7 @@ def _carried_with_supply(settings, before=None, system="SI") -> tuple[dict, tupl
     The model accepts a cold-weather supply reset only at or above the supply set
     point, a preheat set point only at or below it, a leaving dew point limit at
     most equal to it and an apparatus dew point below it (see
-    :class:`plantside.air_handler_settings.AirHandlerSettings`). None of them is
+    :class:`plantside.air_handler.settings.AirHandlerSettings`). None of them is
     on the page, so moving the supply air temperature carries them along instead
     of refusing the move: ``(changes, notes)``; the notes (with ``before``, the
     scenario's own settings) say what was carried, for the cautions list.
@@ -382,7 +382,7 @@ class HeadlineFigures:
         Hours with load above 75 % of the recommended capacity [h].
     recommended_capacity : float
         Design coil load plus the scenario's cooling margin [kW].
-    governing : plantside.design_conditions.DesignCondition
+    governing : plantside.climate.design_conditions.DesignCondition
         The governing design condition itself (SI state).
     """
 
@@ -476,7 +476,7 @@ class DashboardState:
 
     Parameters
     ----------
-    scenario : plantside.scenario.Scenario
+    scenario : plantside.study.scenario.Scenario
         The study: site, air handlers with their zone loads, plant options.
     view : {"air_handler", "plant"}
         What the headline figures and the load charts describe.

@@ -1,0 +1,1232 @@
+"""Moist-air (psychrometric) properties, vectorised, in SI units.
+
+Humidity ratio is the hub: each primary function implements one equation of
+ASHRAE Handbook Fundamentals (2017), Chapter 1 [1]; compound functions only
+combine primaries. Every function takes scalars or numpy arrays (broadcast
+together) and returns numpy values of the broadcast shape. Iterative inverses
+(dew point, wet bulb) are solved for whole arrays at once by safeguarded Newton
+iterations, never by a per-element Python loop.
+
+Units: dry bulb, dew point, wet bulb [°C]; humidity ratio [kg water/kg dry air];
+pressure, vapour pressure [Pa]; relative humidity [0..1]; enthalpy [kJ/kg dry air];
+specific volume [m³/kg dry air]; density [kg moist air/m³]; altitude [m].
+
+Every function validates its inputs unless called with ``check=False`` (for
+inner code that has validated already) and raises
+:class:`plantside.errors.InputRangeError` naming the quantity and its range.
+
+References
+----------
+[1] ASHRAE, 2017. ASHRAE Handbook - Fundamentals (SI), Chapter 1, Psychrometrics.
+[2] Hyland, R.W. and A. Wexler, 1983. Formulations for the thermodynamic properties
+    of the saturated phases of H2O from 173.15 K to 473.15 K. ASHRAE Transactions 89(2A).
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from functools import cached_property
+
+import numpy as np
+
+from plantside.constants import (
+    CP_DRY_AIR,
+    CP_LIQUID_WATER,
+    CP_WATER_VAPOR,
+    DRYBULB_MAX_C,
+    DRYBULB_MIN_C,
+    LATENT_HEAT_0C,
+    MOLAR_MASS_RATIO,
+    R_DRY_AIR,
+    STANDARD_PRESSURE,
+    TRIPLE_POINT_C,
+    VOLUME_WATER_FACTOR,
+    ZERO_CELSIUS,
+)
+from plantside.errors import InputRangeError, check_range
+
+__all__ = [
+    "AirState",
+    "altitude_from_pressure",
+    "degree_of_saturation",
+    "density_from_humidity_ratio",
+    "dew_point_from_humidity_ratio",
+    "dew_point_from_vapor_pressure",
+    "drybulb_from_enthalpy",
+    "enthalpy_from_humidity_ratio",
+    "humidity_ratio_from_dew_point",
+    "humidity_ratio_from_enthalpy",
+    "humidity_ratio_from_relative_humidity",
+    "humidity_ratio_from_vapor_pressure",
+    "humidity_ratio_from_wet_bulb",
+    "pressure_from_altitude",
+    "relative_humidity_from_humidity_ratio",
+    "saturation_humidity_ratio",
+    "saturation_vapor_pressure",
+    "saturation_vapor_pressure_over_ice",
+    "saturation_vapor_pressure_over_water",
+    "specific_volume_from_humidity_ratio",
+    "vapor_pressure_from_humidity_ratio",
+    "wet_bulb_from_humidity_ratio",
+]
+
+#: Allowed station pressure [Pa]: from about 9 km altitude to well above sea level.
+PRESSURE_MIN_PA = 30_000.0
+PRESSURE_MAX_PA = 120_000.0
+#: Relative tolerance when testing a humidity ratio against saturation.
+_SATURATION_SLACK = 1e-9
+#: Largest humidity ratio accepted anywhere [kg/kg], and the vapour pressure that gives
+#: it as a fraction of the total pressure (Eq. 20 of [1] with W = 1).
+HUMIDITY_RATIO_MAX = 1.0
+_PW_MAX_FRACTION = HUMIDITY_RATIO_MAX / (MOLAR_MASS_RATIO + HUMIDITY_RATIO_MAX)
+
+# Coefficients of Eqs. 5 (over ice) and 6 (over water) of [1], from [2].
+_C1, _C2, _C3, _C4, _C5, _C6, _C7 = (
+    -5.6745359e03,
+    6.3925247e00,
+    -9.6778430e-03,
+    6.2215701e-07,
+    2.0747825e-09,
+    -9.4840240e-13,
+    4.1635019e00,
+)
+_C8, _C9, _C10, _C11, _C12, _C13 = (
+    -5.8002206e03,
+    1.3914993e00,
+    -4.8640239e-02,
+    4.1764768e-05,
+    -1.4452093e-08,
+    6.5459673e00,
+)
+
+
+# ---------------------------------------------------------------------------------------
+# validation helpers
+# ---------------------------------------------------------------------------------------
+def _as_float(value):
+    return np.asarray(value, dtype=float)
+
+
+def _out(value):
+    """Return a numpy scalar for 0-d results, the array otherwise."""
+    value = np.asarray(value, dtype=float)
+    return value[()] if value.ndim == 0 else value
+
+
+def _check_drybulb(field, value):
+    return check_range(field, value, DRYBULB_MIN_C, DRYBULB_MAX_C, "°C")
+
+
+def _check_pressure(value):
+    return check_range("pressure", value, PRESSURE_MIN_PA, PRESSURE_MAX_PA, "Pa")
+
+
+def _check_not_above(field, value, limit, limit_text, unit):
+    """Raise if any element of ``value`` exceeds the element-wise ``limit``."""
+    value, limit = np.broadcast_arrays(_as_float(value), _as_float(limit))
+    # The slack scales with |limit| so that a value equal to a negative limit (dew point
+    # or wet bulb equal to a dry bulb below 0 °C) is accepted.
+    bad = value > limit + np.abs(limit) * _SATURATION_SLACK + 1e-12
+    if np.any(bad):
+        if value.ndim == 0:
+            message = (
+                f"{field} = {float(value):.6g} {unit} is above {limit_text} "
+                f"({float(limit):.6g} {unit}); allowed up to {limit_text}"
+            )
+            raise InputRangeError(field, message, f"up to {limit_text}")
+        idx = np.flatnonzero(bad)
+        shown = ", ".join(str(i) for i in idx[:5]) + (", ..." if idx.size > 5 else "")
+        message = (
+            f"{field} is above {limit_text} at {idx.size} of {value.size} elements "
+            f"(indices {shown}); first: {value.flat[idx[0]]:.6g} {unit} against "
+            f"{limit.flat[idx[0]]:.6g} {unit}; allowed up to {limit_text}"
+        )
+        raise InputRangeError(field, message, f"up to {limit_text}", idx)
+
+
+# ---------------------------------------------------------------------------------------
+# saturation and pressure
+# ---------------------------------------------------------------------------------------
+def _ln_pws_ice(kelvin):
+    return (
+        _C1 / kelvin
+        + _C2
+        + kelvin * (_C3 + kelvin * (_C4 + kelvin * (_C5 + kelvin * _C6)))
+        + _C7 * np.log(kelvin)
+    )
+
+
+def _ln_pws_water(kelvin):
+    return (
+        _C8 / kelvin
+        + _C9
+        + kelvin * (_C10 + kelvin * (_C11 + kelvin * _C12))
+        + _C13 * np.log(kelvin)
+    )
+
+
+def _piecewise(drybulb, ice_form, water_form):
+    """Evaluate the ice form at or below the triple point and the water form above,
+    computing only the branches the array needs."""
+    kelvin = drybulb + ZERO_CELSIUS
+    on_ice = drybulb <= TRIPLE_POINT_C
+    if not np.any(on_ice):
+        return water_form(kelvin)
+    if np.all(on_ice):
+        return ice_form(kelvin)
+    return np.where(on_ice, ice_form(kelvin), water_form(kelvin))
+
+
+def _dln_pws_dt_ice(kelvin):
+    return (
+        -_C1 / kelvin**2
+        + _C3
+        + kelvin * (2 * _C4 + kelvin * (3 * _C5 + 4 * _C6 * kelvin))
+        + _C7 / kelvin
+    )
+
+
+def _dln_pws_dt_water(kelvin):
+    return -_C8 / kelvin**2 + _C10 + kelvin * (2 * _C11 + 3 * _C12 * kelvin) + _C13 / kelvin
+
+
+def _ln_pws(drybulb):
+    return _piecewise(drybulb, _ln_pws_ice, _ln_pws_water)
+
+
+def _dln_pws_dt(drybulb):
+    return _piecewise(drybulb, _dln_pws_dt_ice, _dln_pws_dt_water)
+
+
+def _ln_pws_with_slope(drybulb):
+    """ln pws [ln Pa] and d(ln pws)/dt [1/K] in one pass (for Newton iterations).
+
+    Same Eqs. 5 and 6 of [1] as :func:`_ln_pws` and :func:`_dln_pws_dt`, sharing
+    ln T and 1/T between the value and the slope.
+    """
+    kelvin = drybulb + ZERO_CELSIUS
+    inverse = 1.0 / kelvin
+    log_kelvin = np.log(kelvin)
+    on_ice = drybulb <= TRIPLE_POINT_C
+    any_ice = bool(np.any(on_ice))
+    all_ice = any_ice and bool(np.all(on_ice))
+    if not all_ice:
+        water = (
+            _C8 * inverse
+            + _C9
+            + kelvin * (_C10 + kelvin * (_C11 + kelvin * _C12))
+            + _C13 * log_kelvin
+        )
+        water_slope = (
+            inverse * (_C13 - _C8 * inverse) + _C10 + kelvin * (2 * _C11 + 3 * _C12 * kelvin)
+        )
+        if not any_ice:
+            return water, water_slope
+    ice = (
+        _C1 * inverse
+        + _C2
+        + kelvin * (_C3 + kelvin * (_C4 + kelvin * (_C5 + kelvin * _C6)))
+        + _C7 * log_kelvin
+    )
+    ice_slope = (
+        inverse * (_C7 - _C1 * inverse)
+        + _C3
+        + kelvin * (2 * _C4 + kelvin * (3 * _C5 + 4 * _C6 * kelvin))
+    )
+    if all_ice:
+        return ice, ice_slope
+    return np.where(on_ice, ice, water), np.where(on_ice, ice_slope, water_slope)
+
+
+# Eqs. 5 and 6 in one layout, ln pws = k0/T + k1 + k2 T + k3 T^2 + k4 T^3 + k5 T^4 + k6 ln T,
+# followed by 2 k3, 3 k4 and 4 k5 for the slope.
+_ICE_FORM = (_C1, _C2, _C3, _C4, _C5, _C6, _C7, 2 * _C4, 3 * _C5, 4 * _C6)
+_WATER_FORM = (_C8, _C9, _C10, _C11, _C12, 0.0, _C13, 2 * _C11, 3 * _C12, 0.0)
+
+
+def _form_coefficients(on_ice):
+    """Per-element coefficients of Eq. 5 (where ``on_ice``) or Eq. 6: scalars when every
+    element is on the same form. Chosen once, they let a Newton iteration evaluate a
+    single form per element instead of both forms and a selection."""
+    if not np.any(on_ice):
+        return _WATER_FORM
+    if np.all(on_ice):
+        return _ICE_FORM
+    k = [np.where(on_ice, i, w) for i, w in zip(_ICE_FORM[:7], _WATER_FORM[:7], strict=True)]
+    return (*k, 2 * k[3], 3 * k[4], 4 * k[5])
+
+
+def _ln_pws_with_slope_on_form(drybulb, k):
+    """ln pws [ln Pa] and its slope [1/K] on the forms ``k`` of :func:`_form_coefficients`
+    (each form extrapolated past the triple point where an iterate strays there)."""
+    kelvin = drybulb + ZERO_CELSIUS
+    inverse = 1.0 / kelvin
+    value = (
+        k[0] * inverse
+        + k[1]
+        + kelvin * (k[2] + kelvin * (k[3] + kelvin * (k[4] + kelvin * k[5])))
+        + k[6] * np.log(kelvin)
+    )
+    slope = (
+        inverse * (k[6] - k[0] * inverse) + k[2] + kelvin * (k[7] + kelvin * (k[8] + kelvin * k[9]))
+    )
+    return value, slope
+
+
+#: Saturation pressure at 0 °C [Pa] as :func:`saturation_vapor_pressure` gives it (ice form).
+_PWS_0C = float(np.exp(_ln_pws_ice(ZERO_CELSIUS)))
+#: Saturation pressure at the triple point [Pa] (ice form, equal to the water form to 6e-9).
+_PWS_TRIPLE = float(np.exp(_ln_pws_ice(ZERO_CELSIUS + TRIPLE_POINT_C)))
+#: Saturation pressures at the ends of the formulation's range [Pa], widened by 1e-9 so
+#: that a vapour pressure computed from a humidity ratio at exactly -100 or 200 °C
+#: survives its rounding.
+_PWS_LOWEST = float(np.exp(_ln_pws_ice(ZERO_CELSIUS + DRYBULB_MIN_C))) * (1 - 1e-9)
+_PWS_HIGHEST = float(np.exp(_ln_pws_water(ZERO_CELSIUS + DRYBULB_MAX_C))) * (1 + 1e-9)
+
+
+def saturation_vapor_pressure_over_ice(drybulb, *, check=True):
+    """Saturation vapour pressure over ice.
+
+    Parameters
+    ----------
+    drybulb : array_like
+        Temperature [°C], -100 to 0.01 °C.
+
+    Returns
+    -------
+    numpy.ndarray
+        Saturation vapour pressure [Pa].
+
+    References
+    ----------
+    ASHRAE Handbook Fundamentals 2017, Ch. 1, Eq. 5 (Hyland and Wexler 1983).
+    """
+    t = _as_float(drybulb)
+    if check:
+        check_range("drybulb", t, DRYBULB_MIN_C, TRIPLE_POINT_C, "°C")
+    return _out(np.exp(_ln_pws_ice(t + ZERO_CELSIUS)))
+
+
+def saturation_vapor_pressure_over_water(drybulb, *, check=True):
+    """Saturation vapour pressure over liquid water.
+
+    Parameters
+    ----------
+    drybulb : array_like
+        Temperature [°C], 0 to 200 °C.
+
+    Returns
+    -------
+    numpy.ndarray
+        Saturation vapour pressure [Pa].
+
+    References
+    ----------
+    ASHRAE Handbook Fundamentals 2017, Ch. 1, Eq. 6 (Hyland and Wexler 1983).
+    """
+    t = _as_float(drybulb)
+    if check:
+        check_range("drybulb", t, 0.0, DRYBULB_MAX_C, "°C")
+    return _out(np.exp(_ln_pws_water(t + ZERO_CELSIUS)))
+
+
+def saturation_vapor_pressure(drybulb, *, check=True):
+    """Saturation vapour pressure: over ice at or below 0.01 °C, over water above.
+
+    Parameters
+    ----------
+    drybulb : array_like
+        Temperature [°C], -100 to 200 °C.
+
+    Returns
+    -------
+    numpy.ndarray
+        Saturation vapour pressure [Pa].
+
+    References
+    ----------
+    ASHRAE Handbook Fundamentals 2017, Ch. 1, Eqs. 5 and 6; the switch at the triple
+    point follows the handbook's Table 3 (ice below 0.01 °C).
+    """
+    t = _as_float(drybulb)
+    if check:
+        _check_drybulb("drybulb", t)
+    return _out(np.exp(_ln_pws(t)))
+
+
+def pressure_from_altitude(altitude, *, check=True):
+    """Standard atmospheric pressure at an altitude.
+
+    Parameters
+    ----------
+    altitude : array_like
+        Altitude above sea level [m], -500 to 9,000 m.
+
+    Returns
+    -------
+    numpy.ndarray
+        Pressure [Pa].
+
+    References
+    ----------
+    ASHRAE Handbook Fundamentals 2017, Ch. 1, Eq. 3:
+    p = 101.325 (1 - 2.25577e-5 Z)^5.2559 kPa.
+    """
+    z = _as_float(altitude)
+    if check:
+        check_range("altitude", z, -500.0, 9000.0, "m")
+    return _out(STANDARD_PRESSURE * (1.0 - 2.25577e-5 * z) ** 5.2559)
+
+
+def altitude_from_pressure(pressure, *, check=True):
+    """Altitude of the standard atmosphere at a pressure (inverse of Eq. 3 of [1]).
+
+    Parameters
+    ----------
+    pressure : array_like
+        Pressure [Pa].
+
+    Returns
+    -------
+    numpy.ndarray
+        Altitude [m].
+    """
+    p = _as_float(pressure)
+    if check:
+        _check_pressure(p)
+    return _out((1.0 - (p / STANDARD_PRESSURE) ** (1.0 / 5.2559)) / 2.25577e-5)
+
+
+# ---------------------------------------------------------------------------------------
+# humidity ratio hub
+# ---------------------------------------------------------------------------------------
+def humidity_ratio_from_vapor_pressure(vapor_pressure, pressure, *, check=True):
+    """Humidity ratio from the partial pressure of water vapour.
+
+    Parameters
+    ----------
+    vapor_pressure : array_like
+        Partial pressure of water vapour [Pa], 0 up to 0.617 ``pressure`` (W = 1 kg/kg).
+    pressure : array_like
+        Total (station) pressure [Pa].
+
+    Returns
+    -------
+    numpy.ndarray
+        Humidity ratio [kg/kg dry air].
+
+    References
+    ----------
+    ASHRAE Handbook Fundamentals 2017, Ch. 1, Eq. 20: W = 0.621945 pw / (p - pw).
+    """
+    pw, p = _as_float(vapor_pressure), _as_float(pressure)
+    if check:
+        _check_pressure(p)
+        check_range("vapor_pressure", pw, 0.0, None, "Pa")
+        _check_not_above(
+            "vapor_pressure", pw, _PW_MAX_FRACTION * p, "the vapour pressure of 1 kg/kg", "Pa"
+        )
+    return _out(MOLAR_MASS_RATIO * pw / (p - pw))
+
+
+def vapor_pressure_from_humidity_ratio(humidity_ratio, pressure, *, check=True):
+    """Partial pressure of water vapour from humidity ratio.
+
+    Parameters
+    ----------
+    humidity_ratio : array_like
+        Humidity ratio [kg/kg dry air], >= 0.
+    pressure : array_like
+        Total pressure [Pa].
+
+    Returns
+    -------
+    numpy.ndarray
+        Vapour pressure [Pa].
+
+    References
+    ----------
+    ASHRAE Handbook Fundamentals 2017, Ch. 1, Eq. 20 solved for pw:
+    pw = p W / (0.621945 + W).
+    """
+    w, p = _as_float(humidity_ratio), _as_float(pressure)
+    if check:
+        _check_pressure(p)
+        check_range("humidity_ratio", w, 0.0, 1.0, "kg/kg")
+    return _out(p * w / (MOLAR_MASS_RATIO + w))
+
+
+def saturation_humidity_ratio(drybulb, pressure, *, check=True):
+    """Humidity ratio of saturated air.
+
+    Parameters
+    ----------
+    drybulb : array_like
+        Dry-bulb temperature [°C].
+    pressure : array_like
+        Total pressure [Pa].
+
+    Returns
+    -------
+    numpy.ndarray
+        Saturation humidity ratio Ws [kg/kg dry air].
+
+    References
+    ----------
+    ASHRAE Handbook Fundamentals 2017, Ch. 1, Eq. 23: Ws = 0.621945 pws / (p - pws).
+    """
+    t, p = _as_float(drybulb), _as_float(pressure)
+    if check:
+        _check_drybulb("drybulb", t)
+        _check_pressure(p)
+    pws = np.exp(_ln_pws(t))
+    # Above the boiling point at this pressure there is no saturation state.
+    pws = np.minimum(pws, 0.999 * p)
+    return _out(MOLAR_MASS_RATIO * pws / (p - pws))
+
+
+def _check_humidity_ratio(drybulb, humidity_ratio, pressure):
+    check_range("humidity_ratio", humidity_ratio, 0.0, 1.0, "kg/kg")
+    ws = saturation_humidity_ratio(drybulb, pressure, check=False)
+    _check_not_above("humidity_ratio", humidity_ratio, ws, "saturation at the dry bulb", "kg/kg")
+
+
+def humidity_ratio_from_relative_humidity(drybulb, relative_humidity, pressure, *, check=True):
+    """Humidity ratio from dry bulb and relative humidity.
+
+    Parameters
+    ----------
+    drybulb : array_like
+        Dry-bulb temperature [°C].
+    relative_humidity : array_like
+        Relative humidity [0..1].
+    pressure : array_like
+        Total pressure [Pa].
+
+    Returns
+    -------
+    numpy.ndarray
+        Humidity ratio [kg/kg dry air].
+
+    References
+    ----------
+    ASHRAE Handbook Fundamentals 2017, Ch. 1, Eq. 24 (pw = phi pws) and Eq. 20.
+    """
+    t, rh, p = _as_float(drybulb), _as_float(relative_humidity), _as_float(pressure)
+    if check:
+        _check_drybulb("drybulb", t)
+        check_range("relative_humidity", rh, 0.0, 1.0, "(fraction)")
+        _check_pressure(p)
+    pws = np.exp(_ln_pws(t))
+    if check:
+        # Near or above the boiling point at p, a high relative humidity asks for more
+        # vapour than the air can be said to carry: cap it where W reaches 1 kg/kg.
+        _check_not_above(
+            "relative_humidity",
+            rh,
+            _PW_MAX_FRACTION * p / pws,
+            "the value that gives 1 kg/kg at this dry bulb and pressure (near boiling)",
+            "(fraction)",
+        )
+    pw = rh * pws
+    return _out(MOLAR_MASS_RATIO * pw / (p - pw))
+
+
+def relative_humidity_from_humidity_ratio(drybulb, humidity_ratio, pressure, *, check=True):
+    """Relative humidity from dry bulb and humidity ratio.
+
+    Parameters
+    ----------
+    drybulb : array_like
+        Dry-bulb temperature [°C].
+    humidity_ratio : array_like
+        Humidity ratio [kg/kg dry air], 0 to saturation.
+    pressure : array_like
+        Total pressure [Pa].
+
+    Returns
+    -------
+    numpy.ndarray
+        Relative humidity [0..1].
+
+    References
+    ----------
+    ASHRAE Handbook Fundamentals 2017, Ch. 1, Eqs. 20 and 24: phi = pw / pws.
+    """
+    t, w, p = _as_float(drybulb), _as_float(humidity_ratio), _as_float(pressure)
+    if check:
+        _check_drybulb("drybulb", t)
+        _check_pressure(p)
+        _check_humidity_ratio(t, w, p)
+    pw = p * w / (MOLAR_MASS_RATIO + w)
+    return _out(np.minimum(pw / np.exp(_ln_pws(t)), 1.0))
+
+
+def humidity_ratio_from_dew_point(dew_point, pressure, *, check=True):
+    """Humidity ratio from dew point: the saturation humidity ratio at the dew point.
+
+    Parameters
+    ----------
+    dew_point : array_like
+        Dew-point temperature [°C], up to the dew point of 1 kg/kg at ``pressure``.
+    pressure : array_like
+        Total pressure [Pa].
+
+    Returns
+    -------
+    numpy.ndarray
+        Humidity ratio [kg/kg dry air].
+
+    References
+    ----------
+    ASHRAE Handbook Fundamentals 2017, Ch. 1, Eqs. 5/6 at the dew point and Eq. 20
+    (pw = pws(td), the definition of dew point, Eq. 37).
+    """
+    td, p = _as_float(dew_point), _as_float(pressure)
+    if check:
+        _check_drybulb("dew_point", td)
+        _check_pressure(p)
+    pw = np.exp(_ln_pws(td))
+    if check and np.any(pw > _PW_MAX_FRACTION * p):
+        highest = dew_point_from_vapor_pressure(_PW_MAX_FRACTION * p, check=False)
+        _check_not_above("dew_point", td, highest, "the dew point of 1 kg/kg", "°C")
+    return _out(MOLAR_MASS_RATIO * pw / (p - pw))
+
+
+def _ln_kpa(vapor_pressure):
+    """ln of the vapour pressure in kPa (floored at 1e-9 kPa, far below -100 °C)."""
+    return np.log(np.maximum(vapor_pressure, 1e-6) * 1e-3)
+
+
+def _dew_point_first_guess(alpha):
+    """Closed-form dew point [°C] from alpha = ln pw, pw in kPa, accurate to about 0.1 K
+    from -20 to 93 °C (about 1 K at -60 °C); a first guess for Newton iterations.
+
+    ASHRAE Handbook Fundamentals 2017, Ch. 1, Eq. 39 (dew point 0 to 93 °C) and Eq. 40
+    (below 0 °C).
+    """
+    above_freezing = 6.54 + alpha * (14.526 + alpha * (0.7389 + alpha * 0.09486))
+    above_freezing = above_freezing + 0.4569 * np.exp(0.1984 * alpha)  # pw^0.1984
+    below_freezing = 6.09 + alpha * (12.608 + alpha * 0.4959)
+    guess = np.where(above_freezing >= 0.0, above_freezing, below_freezing)
+    return np.minimum(np.maximum(guess, DRYBULB_MIN_C), DRYBULB_MAX_C)
+
+
+def dew_point_from_vapor_pressure(vapor_pressure, *, check=True):
+    """Dew point: the temperature at which the saturation pressure equals ``vapor_pressure``.
+
+    Solved by Newton iteration on ln pws for the whole array at once, started from the
+    handbook's closed-form approximation (Eqs. 39 and 40 of [1]).
+
+    Parameters
+    ----------
+    vapor_pressure : array_like
+        Partial pressure of water vapour [Pa], > 0.
+
+    Returns
+    -------
+    numpy.ndarray
+        Dew-point temperature [°C], -100 to 200 °C.
+
+    References
+    ----------
+    ASHRAE Handbook Fundamentals 2017, Ch. 1, Eq. 37 (pws(td) = pw) with Eqs. 5 and 6;
+    first guess from Eqs. 39 and 40.
+    """
+    pw = _as_float(vapor_pressure)
+    if check:
+        check_range("vapor_pressure", pw, _PWS_LOWEST, _PWS_HIGHEST, "Pa")
+    alpha = _ln_kpa(pw)
+    td = np.array(_dew_point_first_guess(alpha), dtype=float)
+    flat_td = td.reshape(-1)
+    # ln pw [ln Pa], the target of ln pws (equal to ln pw for pw in range)
+    flat_target = np.reshape(alpha + np.log(1000.0), -1)
+    # pws is increasing, so the form of the answer is known from pw: ice (Eq. 5) at or
+    # below the triple-point pressure, water (Eq. 6) above.
+    form = _form_coefficients(np.reshape(pw <= _PWS_TRIPLE, -1))
+    # Whole-array steps while most elements still move, then an active set.
+    active = None
+    for _ in range(40):
+        x = flat_td if active is None else flat_td[active]
+        target = flat_target if active is None else flat_target[active]
+        if active is None:
+            ln_pws, slope = _ln_pws_with_slope_on_form(x, form)
+        else:
+            ln_pws, slope = _ln_pws_with_slope(x)  # same root, no coefficients to gather
+        step = (ln_pws - target) / slope
+        x_new = np.minimum(np.maximum(x - step, DRYBULB_MIN_C), DRYBULB_MAX_C)
+        # ln pws is increasing and concave with |f''/(2 f')| = about 1/T < 0.006 /K, so
+        # after a Newton step s the error left is below 0.006 s^2: a step under 1e-3 K
+        # leaves less than 1e-8 K.
+        moving = np.abs(step) >= 1e-3
+        if active is None:
+            flat_td[:] = x_new
+            left = np.flatnonzero(moving)
+            active = None if left.size > flat_td.size // 2 else left
+        else:
+            flat_td[active] = x_new
+            active = active[moving]
+        if active is not None and active.size == 0:
+            break
+    return _out(td)
+
+
+def dew_point_from_humidity_ratio(humidity_ratio, pressure, *, check=True):
+    """Dew point from humidity ratio.
+
+    Parameters
+    ----------
+    humidity_ratio : array_like
+        Humidity ratio [kg/kg dry air], > 0.
+    pressure : array_like
+        Total pressure [Pa].
+
+    Returns
+    -------
+    numpy.ndarray
+        Dew-point temperature [°C].
+
+    References
+    ----------
+    ASHRAE Handbook Fundamentals 2017, Ch. 1, Eq. 20 (pw from W) and Eq. 37.
+    """
+    w, p = _as_float(humidity_ratio), _as_float(pressure)
+    if check:
+        _check_pressure(p)
+        check_range("humidity_ratio", w, 0.0, 1.0, "kg/kg", low_inclusive=False)
+    pw = p * w / (MOLAR_MASS_RATIO + w)
+    return dew_point_from_vapor_pressure(pw, check=check)
+
+
+def _humidity_ratio_from_wet_bulb(t, twb, p, *, with_slope=False):
+    """Eqs. 33 (water, twb >= 0 °C) and 35 (ice) of [1], no checks.
+
+    With ``with_slope`` also return dW/dtwb [kg/kg/K] for Newton iterations.
+    """
+    if with_slope:
+        ln_pws, dln_pws = _ln_pws_with_slope(twb)
+    else:
+        ln_pws = _ln_pws(twb)
+    # The cap only binds above the boiling point at ``p``; the wet-bulb solver keeps its
+    # bracket below the temperature where pws = 0.9 p, so the slope below stays exact.
+    pws = np.minimum(np.exp(ln_pws), 0.999 * p)
+    ws_star = MOLAR_MASS_RATIO * pws / (p - pws)
+    # The water form holds at and above 0 °C (Eq. 33), the ice form below (Eq. 35).
+    water = twb >= 0.0
+    if np.all(water):
+        a, b, c = LATENT_HEAT_0C, CP_LIQUID_WATER - CP_WATER_VAPOR, CP_LIQUID_WATER
+    elif not np.any(water):
+        a, b, c = 2830.0, 0.24, 2.1
+    else:
+        a = np.where(water, LATENT_HEAT_0C, 2830.0)
+        b = np.where(water, CP_LIQUID_WATER - CP_WATER_VAPOR, 0.24)
+        c = np.where(water, CP_LIQUID_WATER, 2.1)
+    numerator = (a - b * twb) * ws_star - CP_DRY_AIR * (t - twb)
+    denominator = a + CP_WATER_VAPOR * t - c * twb
+    w = numerator / denominator
+    if not with_slope:
+        return w
+    dws = MOLAR_MASS_RATIO * p * pws * dln_pws / (p - pws) ** 2
+    dnum = -b * ws_star + (a - b * twb) * dws + CP_DRY_AIR
+    slope = (dnum * denominator + numerator * c) / denominator**2
+    return w, slope
+
+
+def humidity_ratio_from_wet_bulb(drybulb, wet_bulb, pressure, *, check=True):
+    """Humidity ratio from dry bulb and thermodynamic wet bulb.
+
+    Parameters
+    ----------
+    drybulb : array_like
+        Dry-bulb temperature [°C].
+    wet_bulb : array_like
+        Thermodynamic wet-bulb temperature [°C], not above the dry bulb.
+    pressure : array_like
+        Total pressure [Pa].
+
+    Returns
+    -------
+    numpy.ndarray
+        Humidity ratio [kg/kg dry air].
+
+    References
+    ----------
+    ASHRAE Handbook Fundamentals 2017, Ch. 1, Eq. 33 (wet bulb above freezing) and
+    Eq. 35 (below freezing).
+    """
+    t, twb, p = _as_float(drybulb), _as_float(wet_bulb), _as_float(pressure)
+    if check:
+        _check_drybulb("drybulb", t)
+        _check_drybulb("wet_bulb", twb)
+        _check_pressure(p)
+        _check_not_above("wet_bulb", twb, t, "the dry bulb", "°C")
+    w = _humidity_ratio_from_wet_bulb(t, twb, p)
+    if check and np.any(w < 0):
+        bad = np.broadcast_to(w < 0, np.shape(w))
+        idx = np.flatnonzero(bad)
+        raise InputRangeError(
+            "wet_bulb",
+            "wet_bulb is too far below the dry bulb: the air would hold negative moisture"
+            + ("" if np.ndim(w) == 0 else f" at {idx.size} elements (indices {idx[:5].tolist()})")
+            + "; allowed from the dry air wet bulb up to the dry bulb",
+            "dry-air wet bulb to dry bulb",
+            idx,
+        )
+    return _out(w)
+
+
+def _wet_bulb_first_guess(t, w, p):
+    """Approximate wet bulb [°C]: Eq. 33 of [1] with Ws* linearised about the dew point.
+
+    The dew point comes from the closed form of Eqs. 39/40 and the slope of ln pws from
+    Clausius-Clapeyron (L/(Rv T^2), L over ice below 0 °C). Ws* is convex, so the
+    tangent under-estimates it and the guess mostly lies at or above the root, where
+    Newton descends monotonically; the guess only saves iterations, never the answer.
+    """
+    pw = p * w / (MOLAR_MASS_RATIO + w)
+    td = _dew_point_first_guess(_ln_kpa(pw))
+    dln_pws = np.where(td < 0.0, 6132.0, 5417.0) / (td + ZERO_CELSIUS) ** 2
+    slope = w * p / (p - pw) * dln_pws  # dWs/dt at the dew point [1/K]
+    b = CP_LIQUID_WATER - CP_WATER_VAPOR
+    a = LATENT_HEAT_0C - b * td
+    numerator = w * b * td + CP_WATER_VAPOR * w * t + CP_DRY_AIR * t + a * slope * td
+    return numerator / (a * slope + CP_DRY_AIR + CP_LIQUID_WATER * w)
+
+
+def wet_bulb_from_humidity_ratio(drybulb, humidity_ratio, pressure, *, check=True):
+    """Thermodynamic wet bulb from dry bulb and humidity ratio.
+
+    Solves Eq. 33/35 of [1] for the wet bulb by Newton iteration on whole arrays,
+    clipped to a bracket between -100 °C and the dry bulb (and below the temperature at
+    which the saturation pressure reaches 0.9 of the total pressure, where W would
+    exceed 1 kg/kg). In the narrow band (about 0.3 K) just above 0 °C where both the
+    water form (Eq. 33) and the ice form (Eq. 35) have a root, the root over water is
+    returned. Air so cold and dry that its wet bulb would lie below -100 °C, the end of
+    the formulation's range, gets -100 °C.
+
+    Parameters
+    ----------
+    drybulb : array_like
+        Dry-bulb temperature [°C].
+    humidity_ratio : array_like
+        Humidity ratio [kg/kg dry air], 0 to saturation.
+    pressure : array_like
+        Total pressure [Pa].
+
+    Returns
+    -------
+    numpy.ndarray
+        Thermodynamic wet-bulb temperature [°C], converged to about 1e-7 K or better.
+
+    References
+    ----------
+    ASHRAE Handbook Fundamentals 2017, Ch. 1, Eqs. 33 and 35; first guess from Eqs. 39
+    and 40.
+    """
+    t, w, p = _as_float(drybulb), _as_float(humidity_ratio), _as_float(pressure)
+    if check:
+        _check_drybulb("drybulb", t)
+        _check_pressure(p)
+        _check_humidity_ratio(t, w, p)
+    t, w, p = np.broadcast_arrays(t, w, p)
+    shape = t.shape
+    t, w, p = (np.array(a, dtype=float).ravel() for a in (t, w, p))
+    lo = np.full_like(t, DRYBULB_MIN_C)
+    hi = t.copy()
+    hot = t > 60.0
+    if np.any(hot):
+        # Above the boiling point at p, Ws* has no meaning; at pws = 0.9 p, Ws* = 5.6
+        # and Eq. 33 gives W > 1 kg/kg for any dry bulb up to 200 °C, so the root lies
+        # below that temperature.
+        boiling = dew_point_from_vapor_pressure(0.9 * p[hot], check=False)
+        hi[hot] = np.minimum(hi[hot], boiling)
+    # Near 0 °C Eqs. 33 and 35 can both have a root (they differ at the switch). Take
+    # the wet bulb over water (Eq. 33) whenever it exists, the ice form otherwise.
+    # Eq. 33 at twb = 0: W = (2501 Ws*(0) - 1.006 t) / (2501 + 1.86 t).
+    ws_0c = MOLAR_MASS_RATIO * _PWS_0C / (p - _PWS_0C)
+    water = (t >= 0) & (
+        (LATENT_HEAT_0C * ws_0c - CP_DRY_AIR * t) / (LATENT_HEAT_0C + CP_WATER_VAPOR * t) <= w
+    )
+    lo = np.where(water, 0.0, lo)
+    hi = np.where(~water & (t >= 0), np.minimum(hi, -1e-9), hi)
+    lo = np.minimum(lo, hi)
+    # Each element stays on one form of the psychrometer equation: Eq. 33 (water,
+    # a = 2501, b = 2.326, c = 4.186) or Eq. 35 (ice, a = 2830, b = 0.24, c = 2.1).
+    # Multiplied through by its (positive) denominator, W(t*) = W reads
+    #   F(t*) = (a - b t*) Ws*(t*) + (1.006 + c W) t* - 1.006 t - W (a + 1.86 t) = 0.
+    a = np.where(water, LATENT_HEAT_0C, 2830.0)
+    b = np.where(water, CP_LIQUID_WATER - CP_WATER_VAPOR, 0.24)
+    linear = CP_DRY_AIR + np.where(water, CP_LIQUID_WATER, 2.1) * w
+    constant = -CP_DRY_AIR * t - w * (a + CP_WATER_VAPOR * t)
+    # The saturation form (Eq. 5 or 6) at the root is known too: ice if the root is at
+    # or below the triple point, that is if F(0.01 °C) >= 0 (pws there is _PWS_TRIPLE).
+    ws_triple = MOLAR_MASS_RATIO * _PWS_TRIPLE / (p - _PWS_TRIPLE)
+    f_triple = (a - b * TRIPLE_POINT_C) * ws_triple + linear * TRIPLE_POINT_C + constant
+    form = _form_coefficients(~water | (f_triple >= 0.0))
+    # On one form F is smooth, increasing and convex in t* (Ws* is convex; a - b t* > 0),
+    # so Newton from above the root descends monotonically onto it, and a step from
+    # below lands above it: clipped to the bracket [lo, hi], which holds the root, the
+    # plain Newton iteration converges without a bisection safeguard. (A root below
+    # -100 °C, very cold and dry air, converges onto lo = -100 °C.) Once most elements
+    # are done, the rest are iterated alone (an active set).
+    x = _wet_bulb_first_guess(t, w, p)
+    x = np.minimum(np.maximum(x, lo), hi)
+    rows = (lo, hi, p, a, b, linear, constant)
+    active = None
+    for _ in range(100):
+        if active is None:
+            xa, (lo_a, hi_a, pa, aa, ba, linear_a, constant_a), form_a = x, rows, form
+        else:
+            xa = x[active]
+            lo_a, hi_a, pa, aa, ba, linear_a, constant_a = (row[active] for row in rows)
+            form_a = tuple(k[active] if np.ndim(k) else k for k in form)
+        ln_pws, dln_pws = _ln_pws_with_slope_on_form(xa, form_a)
+        pws = np.exp(ln_pws)
+        dry = pa - pws  # above 0.1 p inside the bracket
+        ws_star = MOLAR_MASS_RATIO * pws / dry
+        lever = aa - ba * xa
+        f = lever * ws_star + linear_a * xa + constant_a
+        slope = lever * ws_star * dln_pws * pa / dry - ba * ws_star + linear_a  # > 1
+        x_new = np.minimum(np.maximum(xa - f / slope, lo_a), hi_a)
+        # Newton converges quadratically: |F''/(2 F')| stays below 0.11 /K from -100 to
+        # 200 °C and 30 to 120 kPa (about 0.03 /K at room conditions), so after a
+        # Newton step under 1e-3 K the error left is below 1.1e-7 K: the element is done.
+        moving = np.abs(x_new - xa) >= 1e-3
+        if active is None:
+            x = x_new
+            left = np.flatnonzero(moving)
+            active = None if left.size > x.size // 2 else left
+        else:
+            x[active] = x_new
+            active = active[moving]
+        if active is not None and active.size == 0:
+            break
+    return _out(x.reshape(shape))
+
+
+# ---------------------------------------------------------------------------------------
+# enthalpy, volume, density
+# ---------------------------------------------------------------------------------------
+def enthalpy_from_humidity_ratio(drybulb, humidity_ratio, *, check=True):
+    """Specific enthalpy of moist air.
+
+    Parameters
+    ----------
+    drybulb : array_like
+        Dry-bulb temperature [°C].
+    humidity_ratio : array_like
+        Humidity ratio [kg/kg dry air].
+
+    Returns
+    -------
+    numpy.ndarray
+        Enthalpy [kJ/kg dry air], referenced to dry air and liquid water at 0 °C.
+
+    References
+    ----------
+    ASHRAE Handbook Fundamentals 2017, Ch. 1, Eq. 32: h = 1.006 t + W (2501 + 1.86 t).
+    """
+    t, w = _as_float(drybulb), _as_float(humidity_ratio)
+    if check:
+        _check_drybulb("drybulb", t)
+        check_range("humidity_ratio", w, 0.0, 1.0, "kg/kg")
+    return _out(CP_DRY_AIR * t + w * (LATENT_HEAT_0C + CP_WATER_VAPOR * t))
+
+
+def drybulb_from_enthalpy(enthalpy, humidity_ratio, *, check=True):
+    """Dry bulb from enthalpy and humidity ratio (Eq. 32 of [1] solved for t).
+
+    Parameters
+    ----------
+    enthalpy : array_like
+        Enthalpy [kJ/kg dry air].
+    humidity_ratio : array_like
+        Humidity ratio [kg/kg dry air].
+
+    Returns
+    -------
+    numpy.ndarray
+        Dry-bulb temperature [°C].
+
+    References
+    ----------
+    ASHRAE Handbook Fundamentals 2017, Ch. 1, Eq. 32: t = (h - 2501 W)/(1.006 + 1.86 W).
+    """
+    h, w = _as_float(enthalpy), _as_float(humidity_ratio)
+    if check:
+        check_range("enthalpy", h, -150.0, 3000.0, "kJ/kg")
+        check_range("humidity_ratio", w, 0.0, 1.0, "kg/kg")
+    t = (h - LATENT_HEAT_0C * w) / (CP_DRY_AIR + CP_WATER_VAPOR * w)
+    if check:
+        _check_drybulb("drybulb (from enthalpy)", t)
+    return _out(t)
+
+
+def humidity_ratio_from_enthalpy(drybulb, enthalpy, *, check=True):
+    """Humidity ratio from dry bulb and enthalpy (Eq. 32 of [1] solved for W).
+
+    Parameters
+    ----------
+    drybulb : array_like
+        Dry-bulb temperature [°C].
+    enthalpy : array_like
+        Enthalpy [kJ/kg dry air].
+
+    Returns
+    -------
+    numpy.ndarray
+        Humidity ratio [kg/kg dry air].
+
+    References
+    ----------
+    ASHRAE Handbook Fundamentals 2017, Ch. 1, Eq. 32: W = (h - 1.006 t)/(2501 + 1.86 t).
+    """
+    t, h = _as_float(drybulb), _as_float(enthalpy)
+    if check:
+        _check_drybulb("drybulb", t)
+    w = (h - CP_DRY_AIR * t) / (LATENT_HEAT_0C + CP_WATER_VAPOR * t)
+    if check:
+        check_range("humidity_ratio (from enthalpy)", w, 0.0, 1.0, "kg/kg")
+    return _out(w)
+
+
+def specific_volume_from_humidity_ratio(drybulb, humidity_ratio, pressure, *, check=True):
+    """Specific volume of moist air per unit mass of dry air.
+
+    Parameters
+    ----------
+    drybulb : array_like
+        Dry-bulb temperature [°C].
+    humidity_ratio : array_like
+        Humidity ratio [kg/kg dry air].
+    pressure : array_like
+        Total pressure [Pa].
+
+    Returns
+    -------
+    numpy.ndarray
+        Specific volume [m³/kg dry air].
+
+    References
+    ----------
+    ASHRAE Handbook Fundamentals 2017, Ch. 1, Eq. 26:
+    v = 0.287042 (t + 273.15)(1 + 1.607858 W)/p, p in kPa.
+    """
+    t, w, p = _as_float(drybulb), _as_float(humidity_ratio), _as_float(pressure)
+    if check:
+        _check_drybulb("drybulb", t)
+        _check_pressure(p)
+        check_range("humidity_ratio", w, 0.0, 1.0, "kg/kg")
+    return _out(R_DRY_AIR * (t + ZERO_CELSIUS) * (1.0 + VOLUME_WATER_FACTOR * w) / p)
+
+
+def density_from_humidity_ratio(drybulb, humidity_ratio, pressure, *, check=True):
+    """Density of moist air (mass of dry air plus vapour per unit volume).
+
+    Parameters
+    ----------
+    drybulb : array_like
+        Dry-bulb temperature [°C].
+    humidity_ratio : array_like
+        Humidity ratio [kg/kg dry air].
+    pressure : array_like
+        Total pressure [Pa].
+
+    Returns
+    -------
+    numpy.ndarray
+        Density [kg moist air/m³].
+
+    References
+    ----------
+    ASHRAE Handbook Fundamentals 2017, Ch. 1, Eq. 11: rho = (1 + W)/v.
+    """
+    v = specific_volume_from_humidity_ratio(drybulb, humidity_ratio, pressure, check=check)
+    return _out((1.0 + _as_float(humidity_ratio)) / v)
+
+
+def degree_of_saturation(drybulb, humidity_ratio, pressure, *, check=True):
+    """Degree of saturation mu = W / Ws.
+
+    Parameters
+    ----------
+    drybulb : array_like
+        Dry-bulb temperature [°C].
+    humidity_ratio : array_like
+        Humidity ratio [kg/kg dry air].
+    pressure : array_like
+        Total pressure [Pa].
+
+    Returns
+    -------
+    numpy.ndarray
+        Degree of saturation [-].
+
+    References
+    ----------
+    ASHRAE Handbook Fundamentals 2017, Ch. 1, Eq. 12.
+    """
+    t, w, p = _as_float(drybulb), _as_float(humidity_ratio), _as_float(pressure)
+    if check:
+        _check_drybulb("drybulb", t)
+        _check_pressure(p)
+        _check_humidity_ratio(t, w, p)
+    return _out(w / saturation_humidity_ratio(t, p, check=False))
+
+
+# ---------------------------------------------------------------------------------------
+# air state
+# ---------------------------------------------------------------------------------------
+@dataclass(frozen=True, eq=False)
+class AirState:
+    """An immutable moist-air state (scalar or array of states).
+
+    The state is fixed by dry bulb, humidity ratio and pressure; every other
+    property is derived on first use and cached.
+
+    Parameters
+    ----------
+    drybulb : array_like
+        Dry-bulb temperature [°C].
+    humidity_ratio : array_like
+        Humidity ratio [kg/kg dry air], 0 to saturation.
+    pressure : array_like
+        Total pressure [Pa]; defaults to standard sea-level pressure.
+    """
+
+    drybulb: np.ndarray
+    humidity_ratio: np.ndarray
+    pressure: np.ndarray = STANDARD_PRESSURE
+
+    def __post_init__(self):
+        t, w, p = (_as_float(v) for v in (self.drybulb, self.humidity_ratio, self.pressure))
+        _check_drybulb("drybulb", t)
+        _check_pressure(p)
+        _check_humidity_ratio(t, w, p)
+        object.__setattr__(self, "drybulb", _out(t))
+        object.__setattr__(self, "humidity_ratio", _out(w))
+        object.__setattr__(self, "pressure", _out(p))
+
+    @classmethod
+    def from_relative_humidity(cls, drybulb, relative_humidity, pressure=STANDARD_PRESSURE):
+        """State from dry bulb [°C], relative humidity [0..1] and pressure [Pa]."""
+        return cls(
+            drybulb,
+            humidity_ratio_from_relative_humidity(drybulb, relative_humidity, pressure),
+            pressure,
+        )
+
+    @classmethod
+    def from_wet_bulb(cls, drybulb, wet_bulb, pressure=STANDARD_PRESSURE):
+        """State from dry bulb [°C], wet bulb [°C] and pressure [Pa]."""
+        return cls(drybulb, humidity_ratio_from_wet_bulb(drybulb, wet_bulb, pressure), pressure)
+
+    @classmethod
+    def from_dew_point(cls, drybulb, dew_point, pressure=STANDARD_PRESSURE):
+        """State from dry bulb [°C], dew point [°C] and pressure [Pa]."""
+        _check_not_above("dew_point", dew_point, drybulb, "the dry bulb", "°C")
+        return cls(drybulb, humidity_ratio_from_dew_point(dew_point, pressure), pressure)
+
+    @classmethod
+    def from_enthalpy(cls, enthalpy, humidity_ratio, pressure=STANDARD_PRESSURE):
+        """State from enthalpy [kJ/kg dry air], humidity ratio [kg/kg] and pressure [Pa]."""
+        return cls(drybulb_from_enthalpy(enthalpy, humidity_ratio), humidity_ratio, pressure)
+
+    @cached_property
+    def enthalpy(self):
+        """Enthalpy [kJ/kg dry air]."""
+        return enthalpy_from_humidity_ratio(self.drybulb, self.humidity_ratio, check=False)
+
+    @cached_property
+    def vapor_pressure(self):
+        """Partial pressure of water vapour [Pa]."""
+        return vapor_pressure_from_humidity_ratio(self.humidity_ratio, self.pressure, check=False)
+
+    @cached_property
+    def dew_point(self):
+        """Dew-point temperature [°C] (-100 °C for perfectly dry air)."""
+        w = np.maximum(_as_float(self.humidity_ratio), 1e-12)
+        return dew_point_from_humidity_ratio(w, self.pressure, check=False)
+
+    @cached_property
+    def wet_bulb(self):
+        """Thermodynamic wet-bulb temperature [°C]."""
+        return wet_bulb_from_humidity_ratio(
+            self.drybulb, self.humidity_ratio, self.pressure, check=False
+        )
+
+    @cached_property
+    def relative_humidity(self):
+        """Relative humidity [0..1]."""
+        return relative_humidity_from_humidity_ratio(
+            self.drybulb, self.humidity_ratio, self.pressure, check=False
+        )
+
+    @cached_property
+    def specific_volume(self):
+        """Specific volume [m³/kg dry air]."""
+        return specific_volume_from_humidity_ratio(
+            self.drybulb, self.humidity_ratio, self.pressure, check=False
+        )
+
+    @cached_property
+    def density(self):
+        """Moist-air density [kg/m³]."""
+        return density_from_humidity_ratio(
+            self.drybulb, self.humidity_ratio, self.pressure, check=False
+        )
+
+
+def air_state(
+    *,
+    drybulb,
+    humidity_ratio=None,
+    wet_bulb=None,
+    dew_point=None,
+    relative_humidity=None,
+    pressure=STANDARD_PRESSURE,
+) -> AirState:
+    """A moist-air state from its dry bulb and exactly one humidity property.
+
+    Parameters
+    ----------
+    drybulb : array_like
+        Dry-bulb temperature [°C].
+    humidity_ratio, wet_bulb, dew_point, relative_humidity : array_like, optional
+        Exactly one of: humidity ratio [kg/kg dry air], thermodynamic wet bulb [°C],
+        dew point [°C] or relative humidity [0..1].
+    pressure : array_like
+        Total pressure [Pa]; standard sea-level pressure by default.
+
+    Returns
+    -------
+    AirState
+
+    Examples
+    --------
+    >>> state = air_state(drybulb=24.0, relative_humidity=0.5)
+    >>> round(float(state.dew_point), 2)
+    12.94
+    """
+    given = {
+        "humidity_ratio": humidity_ratio,
+        "wet_bulb": wet_bulb,
+        "dew_point": dew_point,
+        "relative_humidity": relative_humidity,
+    }
+    named = [name for name, value in given.items() if value is not None]
+    if len(named) != 1:
+        allowed = "exactly one of humidity_ratio, wet_bulb, dew_point, relative_humidity"
+        raise InputRangeError(
+            "air_state",
+            f"air_state: given {', '.join(named) if named else 'no humidity property'}; "
+            f"allowed: {allowed}",
+            allowed,
+        )
+    if humidity_ratio is not None:
+        return AirState(drybulb, humidity_ratio, pressure)
+    if wet_bulb is not None:
+        return AirState.from_wet_bulb(drybulb, wet_bulb, pressure)
+    if dew_point is not None:
+        return AirState.from_dew_point(drybulb, dew_point, pressure)
+    return AirState.from_relative_humidity(drybulb, relative_humidity, pressure)

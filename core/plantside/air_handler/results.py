@@ -1,0 +1,369 @@
+"""Results of the air-handler hour model: final states, loads and the energy bookkeeping.
+
+:func:`hourly_results` turns the converged pass of
+:func:`plantside.air_handler.model.air_handler_hours` into every published column.
+All states are recomputed from the final zone humidity, so the energy balance
+
+    coil_total - heating_coil - preheat = zone_sensible + zone_latent + reheat
+        + ventilation_sensible + ventilation_latent + fan_heat
+        - economizer_effect - recovery_effect - condensate_heat
+
+holds as an identity of the reported states (ASHRAE Handbook Fundamentals 2017
+Ch. 1: Eq. 32 for enthalpy; mixing, heating and cooling-and-dehumidifying
+balances; q = m_da [(h1 - h2) - (W1 - W2) h_w2] for the cooling coil with the
+condensate leaving at the coil leaving dry bulb).
+
+Definitions of the bookkeeping terms (m = supply dry-air mass flow, x = outdoor-air
+fraction, x_min = minimum outdoor-air fraction, o = outdoor, o' = after recovery,
+r = return):
+
+- ventilation = m x_min (h_o - h_r), split into sensible m x_min c_p(W_r) (t_o - t_r)
+  and latent m x_min (W_o - W_r)(2501 + 1.86 t_o);
+- economizer_effect = m (x - x_min)(h_r - h_o): the load the extra outdoor air takes off
+  the coil (negative when it adds load);
+- recovery_effect = m x (h_o - h_o'): positive when recovery cools or dries the outdoor
+  air, negative when it heats it;
+- zone sensible = m c_p(W_s)(t_z - t_s) - reheat + m c_p(W_z)(t_r - t_z) (room and
+  return plenum), zone latent = m (W_z - W_s)(2501 + 1.86 t_z).
+"""
+
+from __future__ import annotations
+
+from types import SimpleNamespace
+
+import numpy as np
+
+from plantside.air.economizer import MODE_OFF
+from plantside.constants import (
+    CP_DRY_AIR,
+    CP_LIQUID_WATER,
+    CP_WATER_VAPOR,
+    LATENT_HEAT_0C,
+    MOLAR_MASS_RATIO,
+    R_DRY_AIR,
+    VOLUME_WATER_FACTOR,
+    ZERO_CELSIUS,
+)
+from plantside.constants import STANDARD_AIR_DENSITY as _RHO_STD
+
+__all__ = ["HOURLY_COLUMNS", "hourly_results"]
+
+#: Dry-bulb tolerance under which a coil is idle [K].
+COIL_IDLE_K = 1e-6
+
+#: Column names of :func:`air_handler_hours` (and of the hourly DataFrame), in order.
+HOURLY_COLUMNS = (
+    "occupied",
+    "operating",
+    "economizer_mode",
+    "outdoor_drybulb_C",
+    "outdoor_humidity_ratio_kgkg",
+    "outdoor_enthalpy_kJkg",
+    "pressure_Pa",
+    "supply_mass_flow_kgs",
+    "supply_airflow_m3s",
+    "supply_airflow_standard_m3s",
+    "supply_airflow_actual_m3s",
+    "airflow_fraction",
+    "outdoor_air_fraction",
+    "outdoor_mass_flow_kgs",
+    "recovery_fraction",
+    "zone_drybulb_C",
+    "zone_humidity_ratio_kgkg",
+    "zone_enthalpy_kJkg",
+    "zone_relative_humidity",
+    "return_drybulb_C",
+    "return_humidity_ratio_kgkg",
+    "return_enthalpy_kJkg",
+    "recovered_drybulb_C",
+    "recovered_humidity_ratio_kgkg",
+    "recovered_enthalpy_kJkg",
+    "mixed_drybulb_C",
+    "mixed_humidity_ratio_kgkg",
+    "mixed_enthalpy_kJkg",
+    "coil_entering_drybulb_C",
+    "coil_entering_humidity_ratio_kgkg",
+    "coil_entering_enthalpy_kJkg",
+    "coil_leaving_drybulb_C",
+    "coil_leaving_humidity_ratio_kgkg",
+    "coil_leaving_enthalpy_kJkg",
+    "supply_drybulb_C",
+    "supply_humidity_ratio_kgkg",
+    "supply_enthalpy_kJkg",
+    "apparatus_dew_point_C",
+    "bypass_factor",
+    "coil_wet",
+    "coil_total_kW",
+    "coil_sensible_kW",
+    "coil_latent_kW",
+    "condensate_kgs",
+    "condensate_heat_kW",
+    "preheat_kW",
+    "heating_coil_kW",
+    "reheat_kW",
+    "zone_sensible_kW",
+    "zone_latent_kW",
+    "zone_sensible_unmet_kW",
+    "zone_latent_unmet_kW",
+    "plenum_gain_kW",
+    "ventilation_sensible_kW",
+    "ventilation_latent_kW",
+    "fan_power_kW",
+    "fan_heat_kW",
+    "economizer_effect_kW",
+    "recovery_effect_kW",
+)
+
+_STATE_COLUMNS = tuple(
+    c
+    for c in HOURLY_COLUMNS
+    if c.endswith(("_C", "_kgkg", "_kJkg", "relative_humidity", "bypass_factor"))
+    and not c.startswith("outdoor_")
+)
+_FLOW_AND_LOAD_COLUMNS = (
+    *(c for c in HOURLY_COLUMNS if c.endswith(("_kW", "_kgs", "_m3s"))),
+    "airflow_fraction",
+    "outdoor_air_fraction",
+    "recovery_fraction",
+)
+
+
+def _h(t, w):
+    """Enthalpy [kJ/kg dry air], ASHRAE Handbook Fundamentals 2017 Ch. 1 Eq. 32."""
+    return CP_DRY_AIR * t + w * (LATENT_HEAT_0C + CP_WATER_VAPOR * t)
+
+
+def hourly_results(v: SimpleNamespace) -> dict:
+    """Every published column from the model's converged pass.
+
+    Parameters
+    ----------
+    v : types.SimpleNamespace
+        The variables of :func:`plantside.air_handler.model.air_handler_hours` after its
+        last pass (arrays in SI; names as there).
+
+    Returns
+    -------
+    dict of str to numpy.ndarray
+        See :func:`plantside.air_handler.model.air_handler_hours`.
+    """
+    (
+        w_s,
+        recovery,
+        w_e,
+        reheat_mode,
+        change,
+        t_r,
+        w_z,
+        blow_through,
+        cooling,
+        m,
+        h_g_zone,
+        heating,
+        occupied,
+        operating,
+        t_o,
+        w_o,
+        h_o,
+        p,
+        airflow_fraction,
+        x,
+        f,
+        t_z,
+        t_o2,
+        w_o2,
+        h_o2,
+        fan_power,
+        fan_heat,
+        t_adp,
+        preheat_t,
+        t_cl,
+        t_need,
+        t_hmax,
+        t_ss,
+        q_sens,
+        q_lat,
+        rho,
+        bf,
+        x_min,
+        eps_l,
+        q_room,
+        mode,
+        pws_zone,
+    ) = (
+        v.w_s,
+        v.recovery,
+        v.w_e,
+        v.reheat_mode,
+        v.change,
+        v.t_r,
+        v.w_z,
+        v.blow_through,
+        v.cooling,
+        v.m,
+        v.h_g_zone,
+        v.heating,
+        v.occupied,
+        v.operating,
+        v.t_o,
+        v.w_o,
+        v.h_o,
+        v.p,
+        v.airflow_fraction,
+        v.x,
+        v.f,
+        v.t_z,
+        v.t_o2,
+        v.w_o2,
+        v.h_o2,
+        v.fan_power,
+        v.fan_heat,
+        v.t_adp,
+        v.preheat_t,
+        v.t_cl,
+        v.t_need,
+        v.t_hmax,
+        v.t_ss,
+        v.q_sens,
+        v.q_lat,
+        v.rho,
+        v.bf,
+        v.x_min,
+        v.eps_l,
+        v.q_room,
+        v.mode,
+        v.pws_zone,
+    )
+    w_cl = w_s
+    if recovery:
+        w_o2 = w_o + f * eps_l * (w_z - w_o)
+        h_o2 = _h(t_o2, w_o2)
+    h_r = _h(t_r, w_z)
+    h_m = h_r + x * (h_o2 - h_r)
+    w_m = w_e
+    c_m = CP_DRY_AIR + CP_WATER_VAPOR * w_m
+    t_m = (h_m - LATENT_HEAT_0C * w_m) / c_m
+    t_ph = t_m if preheat_t is None else np.maximum(t_m, preheat_t)
+    preheat = m * c_m * (t_ph - t_m)
+    t_e = t_ph + fan_heat / (m * c_m) if blow_through else t_ph
+    # Coil duties as decided in the last pass (the humidity solution belongs to them);
+    # the final dry bulbs differ from that pass by the iteration tolerance only, and the
+    # clamps keep a coil from reversing its duty within that tolerance.
+    heat_coil = ~cooling & (t_e < t_cl - COIL_IDLE_K)
+    t_leave = np.where(
+        cooling, np.minimum(t_cl, t_e), np.where(heat_coil, np.maximum(t_cl, t_e), t_e)
+    )
+    wet = cooling & (w_cl < w_e)
+    condensate = m * (w_e - w_cl)
+    condensate_heat = condensate * CP_LIQUID_WATER * t_leave
+    c_cl = CP_DRY_AIR + CP_WATER_VAPOR * w_cl
+    coil_sensible = np.where(cooling, m * c_cl * (t_e - t_leave), 0.0)
+    coil_latent = condensate * (LATENT_HEAT_0C + CP_WATER_VAPOR * t_e) - condensate_heat
+    heating_coil = np.where(heat_coil, m * c_m * (t_leave - t_e), 0.0)
+    h_cl = _h(t_leave, w_cl)
+    h_supply = h_cl if blow_through else h_cl + fan_heat / m
+    t_supply = (h_supply - LATENT_HEAT_0C * w_cl) / c_cl
+    # zone: what the supply air takes up in the room and the plenum, from the states
+    zone_latent = m * (w_z - w_cl) * h_g_zone
+    to_room = m * c_cl * (t_z - t_supply)
+    plenum = m * (CP_DRY_AIR + CP_WATER_VAPOR * w_z) * (t_r - t_z)
+    if reheat_mode:
+        reheat = np.where(heating, 0.0, np.maximum(to_room - q_room, 0.0))
+    else:
+        reheat = np.zeros(np.shape(to_room))
+    zone_sensible = to_room - reheat + plenum
+    undersized = np.where(heating, t_need > t_hmax, t_need < t_ss)
+    unmet_sensible = np.where(undersized, q_sens - zone_sensible, 0.0)
+    zone_latent_unmet = np.where(
+        np.abs(q_lat - zone_latent) > 1e-9 * (1.0 + np.abs(q_lat)), q_lat - zone_latent, 0.0
+    )
+    # ventilation, economizer and recovery terms
+    ventilation_sensible = m * x_min * (CP_DRY_AIR + CP_WATER_VAPOR * w_z) * (t_o - t_r)
+    ventilation_latent = m * x_min * (w_o - w_z) * (LATENT_HEAT_0C + CP_WATER_VAPOR * t_o)
+    economizer_effect = m * (x - x_min) * (h_r - h_o)
+    recovery_effect = m * x * (h_o - h_o2)
+
+    out = {
+        "occupied": occupied,
+        "operating": operating,
+        "economizer_mode": np.where(operating, mode, MODE_OFF).astype(np.int8),
+        "outdoor_drybulb_C": t_o,
+        "outdoor_humidity_ratio_kgkg": w_o,
+        "outdoor_enthalpy_kJkg": h_o,
+        "pressure_Pa": p,
+        "supply_mass_flow_kgs": m,
+        "supply_airflow_m3s": m / rho,
+        "supply_airflow_standard_m3s": m / _RHO_STD,
+        # actual volume at the supply state: v of Eq. 26, ASHRAE Handbook Fundamentals Ch. 1
+        "supply_airflow_actual_m3s": m
+        * R_DRY_AIR
+        * (t_supply + ZERO_CELSIUS)
+        * (1.0 + VOLUME_WATER_FACTOR * w_cl)
+        / p,
+        "airflow_fraction": airflow_fraction,
+        "outdoor_air_fraction": x,
+        "outdoor_mass_flow_kgs": m * x,
+        "recovery_fraction": f,
+        "zone_drybulb_C": t_z,
+        "zone_humidity_ratio_kgkg": w_z,
+        "zone_enthalpy_kJkg": _h(t_z, w_z),
+        "zone_relative_humidity": np.minimum(p * w_z / ((MOLAR_MASS_RATIO + w_z) * pws_zone), 1.0),
+        "return_drybulb_C": t_r,
+        "return_humidity_ratio_kgkg": w_z,
+        "return_enthalpy_kJkg": h_r,
+        "recovered_drybulb_C": t_o2,
+        "recovered_humidity_ratio_kgkg": w_o2,
+        "recovered_enthalpy_kJkg": h_o2,
+        "mixed_drybulb_C": t_m,
+        "mixed_humidity_ratio_kgkg": w_m,
+        "mixed_enthalpy_kJkg": h_m,
+        "coil_entering_drybulb_C": t_e,
+        "coil_entering_humidity_ratio_kgkg": w_e,
+        "coil_entering_enthalpy_kJkg": _h(t_e, w_e),
+        "coil_leaving_drybulb_C": t_leave,
+        "coil_leaving_humidity_ratio_kgkg": w_cl,
+        "coil_leaving_enthalpy_kJkg": h_cl,
+        "supply_drybulb_C": t_supply,
+        "supply_humidity_ratio_kgkg": w_cl,
+        "supply_enthalpy_kJkg": h_supply,
+        "apparatus_dew_point_C": np.where(wet, t_adp, np.nan),
+        "bypass_factor": np.where(wet, bf, np.nan),
+        "coil_wet": wet,
+        "coil_total_kW": coil_sensible + coil_latent,
+        "coil_sensible_kW": coil_sensible,
+        "coil_latent_kW": coil_latent,
+        "condensate_kgs": condensate,
+        "condensate_heat_kW": condensate_heat,
+        "preheat_kW": preheat,
+        "heating_coil_kW": heating_coil,
+        "reheat_kW": reheat,
+        "zone_sensible_kW": zone_sensible,
+        "zone_latent_kW": zone_latent,
+        "zone_sensible_unmet_kW": unmet_sensible,
+        "zone_latent_unmet_kW": zone_latent_unmet,
+        "plenum_gain_kW": plenum,
+        "ventilation_sensible_kW": ventilation_sensible,
+        "ventilation_latent_kW": ventilation_latent,
+        "fan_power_kW": fan_power,
+        "fan_heat_kW": fan_heat,
+        "economizer_effect_kW": economizer_effect,
+        "recovery_effect_kW": recovery_effect,
+    }
+    shape = np.broadcast_shapes(*(np.shape(v) for v in out.values()))
+    for key, value in out.items():
+        if np.shape(value) != shape:
+            out[key] = np.broadcast_to(value, shape)
+    if not np.all(operating):
+        off = ~operating
+        for key in _STATE_COLUMNS:
+            out[key] = np.where(off, np.nan, out[key])
+        for key in _FLOW_AND_LOAD_COLUMNS:
+            out[key] = np.where(off, 0.0, out[key])
+        out["coil_wet"] = out["coil_wet"] & operating
+        # the zone loads of off hours are not met by this unit
+        out["zone_sensible_unmet_kW"] = np.where(off, q_sens, out["zone_sensible_unmet_kW"])
+        out["zone_latent_unmet_kW"] = np.where(off, q_lat, out["zone_latent_unmet_kW"])
+    out["humidity_iteration_change"] = change
+    adp_required = np.where(cooling & operating, t_adp, np.nan)
+    out["apparatus_dew_point_required_C"] = np.broadcast_to(adp_required, shape)
+    return out

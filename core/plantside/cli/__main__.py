@@ -1,0 +1,5 @@
+import sys
+
+from plantside.cli.main import main
+
+sys.exit(main())

@@ -1,0 +1,266 @@
+"""The ``plantside`` command line, for headless work and scripts.
+
+Commands (``plantside COMMAND --help`` for each)::
+
+    plantside design  SCENARIO [--json]            design points and plant size, as a table
+    plantside year    SCENARIO --out DIR [--format csv|parquet]
+                                                    hourly results + summary JSON
+    plantside charts  SCENARIO --out DIR            every chart as PNG and SVG
+    plantside climates                              the bundled fictional climates
+    plantside sweep   SWEEP --out DIR [--workers N | --scheduler ADDR]
+                                                    batch of cases -> one table
+
+Exit status: 0 on success, 2 for a user mistake (bad scenario, unreadable file) with the
+message on stderr, never a traceback for a user mistake.
+"""
+
+from __future__ import annotations
+
+import argparse
+import json
+import sys
+from pathlib import Path
+
+import numpy as np
+
+from plantside.cli.sweep import add_sweep_parser
+from plantside.errors import PlantsideError
+from plantside.units import to_display
+
+__all__ = ["main"]
+
+EXIT_OK = 0
+EXIT_BAD_INPUT = 2
+
+
+def _fmt(quantity, value_si, system, digits=1):
+    value, unit = to_display(quantity, value_si, system)
+    return f"{float(value):,.{digits}f} {unit}"
+
+
+def _condition_text(condition, system) -> str:
+    """A design condition in the user's units, e.g. 'dehumidification 0.4 %: 78.7 °F DP'."""
+    main = {
+        "cooling": ("temperature", condition.drybulb, "DB"),
+        "heating": ("temperature", condition.drybulb, "DB"),
+        "dehumidification": ("temperature", condition.dew_point, "DP"),
+        "enthalpy": ("enthalpy", condition.enthalpy, ""),
+    }[condition.kind]
+    text = f"{condition.kind} {condition.percent:g} %: {_fmt(main[0], main[1], system)} {main[2]}"
+    if condition.kind == "cooling":
+        text += f" / {_fmt('temperature', condition.wet_bulb, system)} MCWB"
+    elif condition.kind in ("dehumidification", "enthalpy"):
+        text += f" / {_fmt('temperature', condition.drybulb, system)} MCDB"
+    return text.replace("  ", " ").strip()
+
+
+def _design_text(result) -> str:
+    from plantside.study.run import heating_load_columns
+
+    scenario = result.scenario
+    system = scenario.unit_system
+    lines = [
+        f"{scenario.title}",
+        f"Site: {result.weather.site} ({result.weather.hours} h of weather); units: {system}",
+        "",
+    ]
+    for condition in result.conditions.conditions:
+        wanted = (
+            scenario.heating_design_percent
+            if condition.kind == "heating"
+            else scenario.cooling_design_percent
+        )
+        if np.isclose(condition.percent, wanted):
+            lines.append(f"  design condition {_condition_text(condition, system)}")
+    lines.append("")
+    width = max(14, *(len(u.name) + 2 for u in result.air_handlers))
+    header = (
+        f"{'air handler':<{width}}{'condition':<18}{'zone':>14}{'coil total':>14}"
+        f"{'coil sens.':>14}{'coil lat.':>14}{'coil/zone':>10}"
+    )
+    lines += [header, "-" * len(header)]
+    for unit in result.air_handlers:
+        for kind, point in unit.cooling_design.points.items():
+            zone = point.loads["zone_sensible_kW"] + point.loads["zone_latent_kW"]
+            coil = point.loads["coil_total_kW"]
+            ratio = coil / zone if zone > 0 else float("nan")
+            mark = " *" if kind == unit.cooling_design.governing else ""
+            lines.append(
+                f"{unit.name:<{width}}{kind + mark:<18}{_fmt('power', zone, system):>14}"
+                f"{_fmt('power', coil, system):>14}"
+                f"{_fmt('power', point.loads['coil_sensible_kW'], system):>14}"
+                f"{_fmt('power', point.loads['coil_latent_kW'], system):>14}{ratio:>10.2f}"
+            )
+        heat = sum(unit.heating_design.loads[c] for c in heating_load_columns)
+        lines.append(
+            f"{unit.name:<{width}}{'heating':<18}{'':>14}{_fmt('heating_power', heat, system):>14}"
+        )
+    lines += ["(* governs the coil)", ""]
+    cooling_kind = str(result.cooling.design_table["plant_kW"].idxmax())
+    governing = {
+        "cooling": result.conditions.cooling(cooling_kind, scenario.cooling_design_percent),
+        "heating": result.conditions.heating(scenario.heating_design_percent),
+    }
+    for plant, quantity in ((result.cooling, "power"), (result.heating, "heating_power")):
+        condition = governing[plant.kind]
+        lines.append(
+            f"{plant.kind.capitalize()} plant: design load "
+            f"{_fmt(quantity, plant.design_load, system)}"
+            f" ({_condition_text(condition, system)}); with {plant.margin_percent:g} % margin "
+            f"{_fmt(quantity, plant.design_capacity, system)}; the year's peak "
+            f"{_fmt(quantity, plant.annual_peak, system)}"
+        )
+    lines.append("")
+    lines += [f"! {c}" for c in result.cautions]
+    return "\n".join(lines)
+
+
+def _load(path):
+    from plantside.study.run import run_study
+    from plantside.study.scenario import load_scenario
+
+    return run_study(load_scenario(path))
+
+
+def _cmd_design(args) -> int:
+    result = _load(args.scenario)
+    if args.json:
+        from plantside.study.run import study_summary
+
+        print(json.dumps(study_summary(result), indent=2, allow_nan=False))
+    else:
+        print(_design_text(result))
+    return EXIT_OK
+
+
+def _cmd_year(args) -> int:
+    from plantside.study.run import study_summary
+
+    result = _load(args.scenario)
+    out = Path(args.out)
+    out.mkdir(parents=True, exist_ok=True)
+    written = []
+    for unit in result.air_handlers:
+        safe = "".join(ch if ch.isalnum() or ch in "-_" else "_" for ch in unit.name)
+        frame = unit.hourly
+        if args.format == "parquet":
+            path = out / f"hourly_{safe}.parquet"
+            frame.to_parquet(path)
+        else:
+            path = out / f"hourly_{safe}.csv"
+            frame.to_csv(path, float_format="%.6g")
+        written.append(path)
+    summary = study_summary(result)
+    path = out / "summary.json"
+    path.write_text(json.dumps(summary, indent=2, allow_nan=False), encoding="utf-8")
+    written.append(path)
+    return _report_written(written, args.json)
+
+
+def _cmd_charts(args) -> int:
+    # The same charts the dashboard shows, built by the dashboard itself (headless), so a
+    # report and a meeting never disagree: the plant view, then each air handler's view.
+    from plantside.charts.export import save_chart
+    from plantside.dashboard.app import CHARTS, Dashboard
+    from plantside.dashboard.download import safe_filename
+    from plantside.study.scenario import load_scenario
+
+    scenario = load_scenario(args.scenario)
+    out = Path(args.out)
+    out.mkdir(parents=True, exist_ok=True)
+    views = [("plant", Dashboard(scenario, view="plant"))]
+    views += [
+        (
+            safe_filename(spec.settings.name.replace(" ", "-").lower()),
+            Dashboard(scenario, view="air_handler", air_handler=index),
+        )
+        for index, spec in enumerate(scenario.air_handlers)
+    ]
+    written = []
+    for prefix, dashboard in views:
+        for name, stem in CHARTS.items():
+            written += save_chart(
+                dashboard.chart_specs[name],
+                out,
+                f"{prefix}_{stem}",
+                formats=("png", "svg"),
+                stamp=dashboard.stamp(),
+            )
+    return _report_written(written, args.json)
+
+
+def _report_written(written, as_json: bool) -> int:
+    if as_json:
+        print(json.dumps({"written": [str(p) for p in written]}, indent=2))
+    else:
+        for path in written:
+            print(path)
+    return EXIT_OK
+
+
+def _cmd_climates(args) -> int:
+    from plantside.climate.bundled import BUNDLED_CLIMATES, bundled_climate_description
+
+    if args.json:
+        print(
+            json.dumps(
+                [
+                    {"name": n, "description": bundled_climate_description(n)}
+                    for n in BUNDLED_CLIMATES
+                ],
+                indent=2,
+            )
+        )
+    else:
+        for name in BUNDLED_CLIMATES:
+            print(bundled_climate_description(name))
+    return EXIT_OK
+
+
+def build_parser() -> argparse.ArgumentParser:
+    """The argument parser (exposed for the docs and tests)."""
+    parser = argparse.ArgumentParser(
+        prog="plantside",
+        description="What the central plant sees: coil loads, design conditions, part-load "
+        "hours and plant sizing. A preliminary design aid; final selection by a licensed "
+        "engineer under local codes.",
+    )
+    sub = parser.add_subparsers(dest="command", required=True)
+    design = sub.add_parser("design", help="design points and plant size as a table")
+    design.add_argument("scenario", help="scenario TOML file")
+    design.add_argument("--json", action="store_true", help="machine-readable SI output")
+    design.set_defaults(func=_cmd_design)
+    year = sub.add_parser("year", help="hourly results (CSV/Parquet) and summary JSON")
+    year.add_argument("scenario")
+    year.add_argument("--out", required=True, help="output folder")
+    year.add_argument("--format", choices=("csv", "parquet"), default="csv")
+    year.add_argument("--json", action="store_true", help="list written files as JSON")
+    year.set_defaults(func=_cmd_year)
+    charts = sub.add_parser("charts", help="every chart of the study as PNG and SVG")
+    charts.add_argument("scenario")
+    charts.add_argument("--out", required=True, help="output folder")
+    charts.add_argument("--json", action="store_true", help="list written files as JSON")
+    charts.set_defaults(func=_cmd_charts)
+    climates = sub.add_parser("climates", help="list the bundled fictional climates")
+    climates.add_argument("--json", action="store_true")
+    climates.set_defaults(func=_cmd_climates)
+    add_sweep_parser(sub)
+    return parser
+
+
+def main(argv=None) -> int:
+    """Entry point of the ``plantside`` command; returns the exit status."""
+    parser = build_parser()
+    args = parser.parse_args(argv)
+    try:
+        return args.func(args)
+    except PlantsideError as error:
+        print(f"plantside: error: {error}", file=sys.stderr)
+        return EXIT_BAD_INPUT
+    except OSError as error:
+        print(f"plantside: error: {error}", file=sys.stderr)
+        return EXIT_BAD_INPUT
+
+
+if __name__ == "__main__":
+    sys.exit(main())

@@ -1,0 +1,12 @@
+"""A study: a scenario file, every air handler of it, and the plants they load.
+
+The orchestration layer: reads the scenario, runs each air handler against the
+climate, and hands the coil loads to the plant. Nothing here computes physics.
+
+Modules
+-------
+scenario    the scenario TOML file: fields, units, validation (at the edge)
+run         ``run_study``: every unit's year and design points, the plants, cautions
+sweep       a sweep file: the cases (fields varied over climates)
+sweep_run   running a sweep's cases on a process pool or a Dask cluster
+"""

@@ -1,0 +1,420 @@
+"""Run a whole study: every air handler of a scenario, and the plants they load.
+
+This is the orchestration layer above the physics: it reads the weather and the
+design conditions once, runs each air handler's design points and hourly year,
+sums the coil loads coincidentally into the cooling and heating plant loads, and
+sizes, bins and stages each plant option. Nothing here computes physics itself.
+
+The plant's design load is coincident too: every air handler is evaluated at the
+same design outdoor state (dry-bulb, dew-point and enthalpy conditions at the
+scenario's annual percentage), the coil loads are summed per condition, and the
+largest sum governs. Heating is sized at the 99.6 or 99 % heating dry bulb.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from datetime import date
+
+import numpy as np
+import pandas as pd
+
+from plantside import __version__
+from plantside.air_handler.year import (
+    AirHandlerSettings,
+    CoolingDesignSummary,
+    DesignPoint,
+    cooling_design_points,
+    heating_design_point,
+    hourly_year,
+)
+from plantside.air_handler.zone_loads import HourlyZoneLoads
+from plantside.climate.design_conditions import DesignConditions, design_conditions_from_weather
+from plantside.climate.weather import Weather
+from plantside.plant.efficiency import project_weighted_efficiency
+from plantside.plant.loads import diversity_table, plant_load_from_coil_loads
+from plantside.plant.part_load import load_duration_curve, part_load_bins
+from plantside.plant.sizing import design_capacity_from_design_load, sizing_cautions, sizing_summary
+from plantside.plant.staging import (
+    PlantOption,
+    compare_plant_options,
+    compare_stage_hours,
+    stage_machines,
+)
+from plantside.study.scenario import PlantOptionSpec, Scenario
+
+__all__ = [
+    "AirHandlerResult",
+    "PlantResult",
+    "StudyResult",
+    "heating_load_columns",
+    "run_study",
+    "study_summary",
+]
+
+#: Hourly columns whose sum is an air handler's heating coil load [kW].
+heating_load_columns = ("preheat_kW", "heating_coil_kW", "reheat_kW")
+
+#: The cautions every study carries, whatever its numbers.
+GENERAL_CAUTIONS = (
+    "Preliminary design aid: final equipment selection and sizing belong to a licensed "
+    "engineer working under the local codes and standards.",
+    "Undersizing risks spaces that run warm and humid (comfort complaints, mould); "
+    "oversizing risks short cycling, wear and poor dehumidification at part load.",
+)
+
+
+@dataclass(frozen=True)
+class AirHandlerResult:
+    """One air handler's results: its hourly year and its design points."""
+
+    name: str
+    settings: AirHandlerSettings
+    hourly: pd.DataFrame
+    cooling_design: CoolingDesignSummary
+    heating_design: DesignPoint
+
+    @property
+    def heating_hourly(self) -> np.ndarray:
+        """Hourly heating coil load (preheat + heating + reheat) [kW]."""
+        return sum(self.hourly[c].to_numpy() for c in heating_load_columns)
+
+    @property
+    def zone_hourly(self) -> np.ndarray:
+        """Hourly zone cooling load met (sensible + latent, >= 0) [kW]."""
+        total = self.hourly["zone_sensible_kW"] + self.hourly["zone_latent_kW"]
+        return np.maximum(total.to_numpy(), 0.0)
+
+
+@dataclass(frozen=True)
+class PlantResult:
+    """A cooling or heating plant: loads, sizing, part-load hours and options compared.
+
+    All loads in kW, energies in kWh (SI); convert only for display.
+    """
+
+    kind: str
+    hourly_load: np.ndarray
+    design_load: float
+    governing: str
+    design_table: pd.DataFrame
+    margin_percent: float
+    design_capacity: float
+    sizing: pd.DataFrame
+    bins: pd.DataFrame
+    duration: pd.DataFrame
+    diversity: pd.DataFrame
+    options: pd.DataFrame
+    stage_hours: pd.DataFrame
+    efficiency: pd.DataFrame
+    cautions: tuple[str, ...] = field(default=())
+
+    @property
+    def annual_energy(self) -> float:
+        """Year's load energy [kWh] (hourly steps)."""
+        return float(self.hourly_load.sum())
+
+    @property
+    def annual_peak(self) -> float:
+        """Year's peak hourly load [kW]."""
+        return float(self.hourly_load.max()) if self.hourly_load.size else 0.0
+
+
+@dataclass(frozen=True)
+class StudyResult:
+    """Everything a study produced."""
+
+    scenario: Scenario
+    weather: Weather
+    conditions: DesignConditions
+    air_handlers: tuple[AirHandlerResult, ...]
+    cooling: PlantResult
+    heating: PlantResult
+    cautions: tuple[str, ...]
+
+
+def _options(specs: tuple[PlantOptionSpec, ...], capacity: float, kind: str):
+    if not specs:
+        specs = (PlantOptionSpec(f"1 x 100 % {kind}", (1.0,)),)
+    options = [
+        PlantOption.from_fractions(
+            s.name, max(capacity, 1e-6), s.capacity_fractions, s.minimum_turndown
+        )
+        for s in specs
+    ]
+    return specs, options
+
+
+def _efficiency_table(loads, specs, options) -> pd.DataFrame:
+    rows = []
+    for spec, option in zip(specs, options, strict=True):
+        if spec.efficiency is None:
+            continue
+        staged = stage_machines(loads, option.capacities, option.minimum_turndown)
+        result = project_weighted_efficiency(
+            staged.machine_load, option.capacities, spec.efficiency, spec.efficiency_metric
+        )
+        rows.append(
+            {
+                "option": spec.name,
+                "metric": spec.efficiency_metric,
+                "rated_iplv": result.rated_iplv,
+                "project_iplv": result.project_iplv,
+                "average_efficiency": result.average_efficiency,
+                "average_cop": result.average_cop,
+                "cooling_energy_kWh": result.cooling_energy,
+                "input_energy_kWh": result.input_energy,
+            }
+        )
+    return pd.DataFrame(rows)
+
+
+def _plant(
+    kind, coil_loads, zone_loads, design_table, governing, design_load, margin, gain, specs
+) -> PlantResult:
+    hourly = plant_load_from_coil_loads(coil_loads, gain)
+    capacity = design_capacity_from_design_load(design_load, margin)
+    specs, options = _options(specs, capacity, kind)
+    cautions = tuple(sizing_cautions(hourly, capacity)) if capacity > 0 else ()
+    return PlantResult(
+        kind=kind,
+        hourly_load=hourly,
+        design_load=float(design_load),
+        governing=governing,
+        design_table=design_table,
+        margin_percent=float(margin),
+        design_capacity=float(capacity),
+        sizing=sizing_summary(hourly, design_load, margin),
+        bins=part_load_bins(hourly, max(capacity, 1e-6)),
+        duration=load_duration_curve(hourly),
+        diversity=diversity_table(coil_loads, zone_loads, gain),
+        options=compare_plant_options(hourly, options),
+        stage_hours=compare_stage_hours(hourly, options),
+        efficiency=_efficiency_table(hourly, specs, options)
+        if kind == "cooling"
+        else pd.DataFrame(),
+        cautions=cautions,
+    )
+
+
+def _design_zone(zone, kind: str):
+    """Zone loads for a design point.
+
+    A load model is evaluated by the air-handler model at the design dry bulb. Hourly
+    loads from a file carry no outdoor state, so the design hour is taken from the file
+    itself: the hour of largest sensible cooling load for cooling (its latent load
+    coincident), the hour of largest heating load for heating. This is the file's own
+    peak, not a load at the site's design condition; say so where it is shown.
+    """
+    if not isinstance(zone, HourlyZoneLoads) or zone.hours == 1:
+        return zone
+    index = int(np.argmax(zone.sensible) if kind == "cooling" else np.argmin(zone.sensible))
+    return HourlyZoneLoads(
+        sensible=zone.sensible[index : index + 1],
+        latent=zone.latent[index : index + 1],
+        internal_sensible=zone.internal_sensible[index : index + 1],
+        occupied=zone.occupied[index : index + 1],
+        source=f"{zone.source} (peak {kind} hour {index + 1})",
+    )
+
+
+def run_study(scenario: Scenario, weather: Weather | None = None) -> StudyResult:
+    """Run every air handler of ``scenario`` and size its cooling and heating plants.
+
+    Parameters
+    ----------
+    scenario : Scenario
+        The validated study.
+    weather : Weather, optional
+        Use this weather instead of the scenario's (e.g. an uploaded year).
+
+    Returns
+    -------
+    StudyResult
+    """
+    weather = scenario.load_weather() if weather is None else weather
+    conditions = design_conditions_from_weather(weather)
+    percent = scenario.cooling_design_percent
+    heating_condition = conditions.heating(scenario.heating_design_percent)
+    units = []
+    for index, spec in enumerate(scenario.air_handlers):
+        zone = scenario.zone_loads(index, weather)
+        units.append(
+            AirHandlerResult(
+                name=spec.settings.name,
+                settings=spec.settings,
+                hourly=hourly_year(spec.settings, weather, zone),
+                cooling_design=cooling_design_points(
+                    spec.settings, _design_zone(zone, "cooling"), conditions.conditions, percent
+                ),
+                heating_design=heating_design_point(
+                    spec.settings, _design_zone(zone, "heating"), heating_condition
+                ),
+            )
+        )
+    gain = scenario.distribution_gain_percent
+    factor = 1.0 + gain / 100.0
+
+    # Coincident design: every unit at the same outdoor state; the largest sum governs.
+    kinds = list(units[0].cooling_design.points)
+    rows = []
+    for kind in kinds:
+        point = units[0].cooling_design.points[kind]
+        row = {"kind": kind, "condition": point.label}
+        for unit in units:
+            row[f"{unit.name}_coil_total_kW"] = unit.cooling_design.points[kind].loads[
+                "coil_total_kW"
+            ]
+            row[f"{unit.name}_zone_kW"] = (
+                unit.cooling_design.points[kind].loads["zone_sensible_kW"]
+                + unit.cooling_design.points[kind].loads["zone_latent_kW"]
+            )
+        row["coil_total_kW"] = sum(row[f"{u.name}_coil_total_kW"] for u in units)
+        row["zone_total_kW"] = sum(row[f"{u.name}_zone_kW"] for u in units)
+        row["plant_kW"] = row["coil_total_kW"] * factor
+        rows.append(row)
+    cooling_table = pd.DataFrame(rows).set_index("kind")
+    governing_kind = str(cooling_table["plant_kW"].idxmax())
+    cooling = _plant(
+        "cooling",
+        {u.name: u.hourly["coil_total_kW"].to_numpy() for u in units},
+        {u.name: u.zone_hourly for u in units},
+        cooling_table,
+        str(cooling_table.loc[governing_kind, "condition"]),
+        float(cooling_table.loc[governing_kind, "plant_kW"]),
+        scenario.cooling_margin_percent,
+        gain,
+        scenario.cooling_options,
+    )
+
+    heating_row = {"kind": "heating", "condition": units[0].heating_design.label}
+    for unit in units:
+        heating_row[f"{unit.name}_heating_kW"] = sum(
+            unit.heating_design.loads[c] for c in heating_load_columns
+        )
+    heating_row["coil_total_kW"] = sum(heating_row[f"{u.name}_heating_kW"] for u in units)
+    heating_row["plant_kW"] = heating_row["coil_total_kW"] * factor
+    heating_table = pd.DataFrame([heating_row]).set_index("kind")
+    heating = _plant(
+        "heating",
+        {u.name: u.heating_hourly for u in units},
+        None,
+        heating_table,
+        heating_row["condition"],
+        heating_row["plant_kW"],
+        scenario.heating_margin_percent,
+        gain,
+        scenario.heating_options,
+    )
+    unit_cautions = tuple(
+        f"{u.name}: {c}"
+        for u in units
+        for c in (
+            *u.hourly.attrs.get("cautions", ()),
+            *u.cooling_design.points[u.cooling_design.governing].cautions,
+        )
+    )
+    return StudyResult(
+        scenario=scenario,
+        weather=weather,
+        conditions=conditions,
+        air_handlers=tuple(units),
+        cooling=cooling,
+        heating=heating,
+        cautions=GENERAL_CAUTIONS
+        + cooling.cautions
+        + heating.cautions
+        + tuple(dict.fromkeys(unit_cautions)),
+    )
+
+
+#: SI unit suffixes for the columns of the design-condition tables in the JSON summary.
+_SUFFIXES = {
+    "drybulb": "drybulb_C",
+    "wet_bulb": "wet_bulb_C",
+    "dew_point": "dew_point_C",
+    "humidity_ratio": "humidity_ratio_kgkg",
+    "enthalpy": "enthalpy_kJkg",
+    "pressure": "pressure_Pa",
+    "percent": "percent_of_hours",
+}
+
+
+def _records(frame: pd.DataFrame) -> list[dict]:
+    frame = frame.reset_index() if frame.index.name else frame
+    frame = frame.drop(columns=["design_value"], errors="ignore").rename(columns=_SUFFIXES)
+    return [
+        {
+            k: (
+                None
+                if isinstance(v, float) and not np.isfinite(v)
+                else (v.item() if hasattr(v, "item") else v)
+            )
+            for k, v in row.items()
+        }
+        for row in frame.to_dict(orient="records")
+    ]
+
+
+def study_summary(result: StudyResult) -> dict:
+    """A JSON-ready summary in SI with unit-suffixed keys (the command line's ``--json``)."""
+    scenario = result.scenario
+    units = []
+    for unit in result.air_handlers:
+        design = unit.cooling_design
+        governing = design.points[design.governing]
+        hourly = unit.hourly
+        units.append(
+            {
+                "name": unit.name,
+                "governing_condition": governing.label,
+                "design_coil_total_kW": governing.loads["coil_total_kW"],
+                "design_coil_sensible_kW": governing.loads["coil_sensible_kW"],
+                "design_coil_latent_kW": governing.loads["coil_latent_kW"],
+                "design_zone_sensible_kW": governing.loads["zone_sensible_kW"],
+                "design_zone_latent_kW": governing.loads["zone_latent_kW"],
+                "design_conditions": _records(design.table),
+                "heating_design_kW": sum(
+                    unit.heating_design.loads[c] for c in heating_load_columns
+                ),
+                "annual_peak_coil_total_kW": float(hourly["coil_total_kW"].max()),
+                "annual_coil_total_kWh": float(hourly["coil_total_kW"].sum()),
+                "annual_heating_kWh": float(unit.heating_hourly.sum()),
+                "economizer_hours": {
+                    str(k): int(v) for k, v in hourly["economizer_mode"].value_counts().items()
+                },
+                "supply_drybulb_C": unit.settings.supply_drybulb,
+                "minimum_outdoor_air_fraction": unit.settings.minimum_outdoor_air_fraction,
+                "airflow_basis": unit.settings.airflow_basis,
+            }
+        )
+
+    def plant(p: PlantResult) -> dict:
+        return {
+            "governing_condition": p.governing,
+            "design_load_kW": p.design_load,
+            "margin_percent": p.margin_percent,
+            "design_capacity_kW": p.design_capacity,
+            "annual_peak_kW": p.annual_peak,
+            "annual_energy_kWh": p.annual_energy,
+            "design_conditions": _records(p.design_table),
+            "sizing": _records(p.sizing),
+            "part_load_bins": _records(p.bins),
+            "diversity": _records(p.diversity),
+            "options": _records(p.options),
+            "stage_hours": _records(p.stage_hours),
+            "efficiency": _records(p.efficiency),
+        }
+
+    return {
+        "plantside_version": __version__,
+        "date": date.today().isoformat(),
+        "title": scenario.title,
+        "site": result.weather.site,
+        "hours": result.weather.hours,
+        "design_conditions": _records(result.conditions.to_frame()),
+        "air_handlers": units,
+        "cooling_plant": plant(result.cooling),
+        "heating_plant": plant(result.heating),
+        "cautions": list(result.cautions),
+    }
