@@ -274,6 +274,22 @@ def test_missing_base_and_stray_tables(tmp_path):
         load_sweep(path)
 
 
+@pytest.mark.parametrize("load", [load_scenario, load_sweep])
+def test_scenario_and_sweep_files_get_the_same_file_checks(tmp_path, load):
+    # one guard for both kinds of file: missing, too large (the 1,000 kB limit the README's
+    # "Ranges the model accepts" table states), not UTF-8
+    with pytest.raises(ScenarioError, match=r"absent\.toml: \(file\): file not found"):
+        load(tmp_path / "absent.toml")
+    big = tmp_path / "big.toml"
+    big.write_text("# " + "x" * 1_000_001 + "\n")
+    with pytest.raises(ScenarioError, match="larger than the 1000 kB allowed"):
+        load(big)
+    latin = tmp_path / "latin1.toml"
+    latin.write_bytes('title = "Caf\xe9"\n'.encode("latin-1"))
+    with pytest.raises(ScenarioError, match="not UTF-8 text"):
+        load(latin)
+
+
 def test_bad_sweep_on_the_command_line_exits_2_naming_the_field(tmp_path, capsys):
     path = write_sweep(tmp_path, '[sweep.axes]\n"air_handler[1].bypas_factor" = [0.1]\n')
     assert main(["sweep", str(path), "--out", str(tmp_path / "out")]) == 2

@@ -591,6 +591,27 @@ def load_scenario(path) -> Scenario:
         The ``.toml`` file. Relative file names inside it resolve against its folder.
     """
     path = Path(path)
+    return loads_scenario(read_toml_text(path), str(path), path.parent)
+
+
+def read_toml_text(path: Path) -> str:
+    """The text of a scenario or sweep file, after the checks every such file gets.
+
+    Parameters
+    ----------
+    path : pathlib.Path
+        The ``.toml`` file.
+
+    Returns
+    -------
+    str
+        The file's text (UTF-8, a byte-order mark dropped).
+
+    Raises
+    ------
+    ScenarioError
+        If the file is missing, larger than ``MAX_SCENARIO_BYTES`` or not UTF-8 text.
+    """
     source = str(path)
     if not path.is_file():
         raise ScenarioError(source, "(file)", "file not found")
@@ -598,12 +619,10 @@ def load_scenario(path) -> Scenario:
         raise ScenarioError(
             source, "(file)", f"larger than the {MAX_SCENARIO_BYTES // 1000} kB allowed"
         )
-    raw = path.read_bytes()
     try:
-        text = raw.decode("utf-8-sig")
+        return path.read_bytes().decode("utf-8-sig")
     except UnicodeDecodeError as error:
         raise ScenarioError(source, "(file)", f"not UTF-8 text ({error.reason})") from error
-    return loads_scenario(text, source, path.parent)
 
 
 # ---------------------------------------------------------------------------------------

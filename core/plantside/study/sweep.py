@@ -50,9 +50,9 @@ from plantside.climate.design_conditions import COOLING_PERCENTS, HEATING_PERCEN
 from plantside.errors import InputRangeError, ScenarioError
 from plantside.study.scenario import (
     FIELD_QUANTITIES,
-    MAX_SCENARIO_BYTES,
     Scenario,
     load_scenario,
+    read_toml_text,
     scenario_from_dict,
     scenario_to_dict,
 )
@@ -818,15 +818,4 @@ def load_sweep(path) -> Sweep:
     Sweep
     """
     path = Path(path)
-    source = str(path)
-    if not path.is_file():
-        raise ScenarioError(source, "(file)", "file not found")
-    if path.stat().st_size > MAX_SCENARIO_BYTES:
-        raise ScenarioError(
-            source, "(file)", f"larger than the {MAX_SCENARIO_BYTES // 1000} kB allowed"
-        )
-    try:
-        text = path.read_bytes().decode("utf-8-sig")
-    except UnicodeDecodeError as error:
-        raise ScenarioError(source, "(file)", f"not UTF-8 text ({error.reason})") from error
-    return loads_sweep(text, source, path.parent)
+    return loads_sweep(read_toml_text(path), str(path), path.parent)
