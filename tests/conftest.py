@@ -2,6 +2,7 @@
 
 import os
 
+import psychrolib
 import pytest
 from hypothesis import HealthCheck, settings
 
@@ -23,3 +24,13 @@ def sea_level_pressure():
     """Standard atmospheric pressure at sea level [Pa]; ASHRAE Handbook Fundamentals 2017
     Ch. 1 Table 1."""
     return 101325.0
+
+
+@pytest.fixture(autouse=True)
+def _psychrolib_in_si():
+    """psychrolib's unit system is global; SI is the suite's default. A test that switches
+    it to IP (to compare with an I-P table) must not leak that into the next test, so it is
+    set before each test and reset after."""
+    psychrolib.SetUnitSystem(psychrolib.SI)
+    yield
+    psychrolib.SetUnitSystem(psychrolib.SI)

@@ -239,7 +239,6 @@ def _line(frame, family, label=None):
 
 
 def test_psychrometric_curves_against_psychrolib_si():
-    psychrolib.SetUnitSystem(psychrolib.SI)
     # 56 points over -10..45 °C put a point on every whole degree
     grid = frames.psychrometric_grid_frame(101325.0, "SI", (-10.0, 45.0, 0.030), points=56)
     saturation = _line(grid, "saturation").set_index("drybulb")

@@ -29,14 +29,6 @@ from plantside.air.coils import (
 )
 from plantside.errors import InputRangeError
 
-
-@pytest.fixture(autouse=True)
-def _psychrolib_in_si():
-    """psychrolib's unit system is global and SI is the suite's default; a test elsewhere
-    may leave it in IP, so set it before each test (and leave it in SI)."""
-    psychrolib.SetUnitSystem(psychrolib.SI)
-
-
 P = 101325.0  # Pa, ASHRAE 2017 Ch. 1 Table 1
 
 

@@ -21,8 +21,6 @@ from plantside.climate.design_conditions import (
 from plantside.climate.weather import Weather
 from plantside.errors import InputRangeError
 
-psychrolib.SetUnitSystem(psychrolib.SI)
-
 N = 8760
 
 

@@ -14,8 +14,6 @@ from plantside.climate.design_day import (
 )
 from plantside.errors import InputRangeError
 
-psychrolib.SetUnitSystem(psychrolib.SI)
-
 # ASHRAE Handbook Fundamentals 2017 (SI), Ch. 14, Table 6, "Fraction of Daily Temperature
 # Range", hours 1..24 (FROM MEMORY; the handbook was not at hand to confirm the values).
 TABLE_6_HOURS_1_TO_24 = [

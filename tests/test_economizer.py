@@ -35,13 +35,6 @@ from plantside.errors import InputRangeError
 P = 101325.0  # Pa, ASHRAE 2017 Ch. 1 Table 1
 
 
-@pytest.fixture(autouse=True)
-def _psychrolib_in_si():
-    """psychrolib's unit system is global and SI is the suite's default; a test elsewhere
-    may leave it in IP, so set it before each test (and leave it in SI)."""
-    psychrolib.SetUnitSystem(psychrolib.SI)
-
-
 def _w_for_enthalpy(t, h):
     return ma.humidity_ratio_from_enthalpy(t, h)
 

@@ -41,7 +41,7 @@ SATURATION_PRESSURE_REL = 3e-4
 
 @pytest.fixture(scope="module")
 def psy():
-    psychrolib.SetUnitSystem(psychrolib.SI)
+    """psychrolib, in SI (the autouse fixture in conftest.py sets it before each test)."""
     return psychrolib
 
 

@@ -61,7 +61,6 @@ def _best_time(function, *args, repeats):
 
 @pytest.mark.benchmark
 def test_benchmark_year_of_states_against_psychrolib_loop():
-    psychrolib.SetUnitSystem(psychrolib.SI)
     drybulb, w, pressure = _synthetic_year()
     assert drybulb.min() < -2.0 and drybulb.max() > 25.0  # frost and summer in the year
     _vectorised(drybulb, w, pressure)  # warm-up

@@ -18,8 +18,6 @@ from plantside.climate.fictional_sites import (
 from plantside.climate.generate import main
 from plantside.errors import InputRangeError
 
-psychrolib.SetUnitSystem(psychrolib.SI)
-
 DATA = Path(fictional_sites.__file__).parents[1] / "data"
 SITE_SLUGS = list(SITES)
 

@@ -15,8 +15,6 @@ from plantside.climate.bundled import load_bundled_climate
 from plantside.climate.weather_csv import read_weather_csv
 from plantside.errors import InputFileError, InputRangeError
 
-psychrolib.SetUnitSystem(psychrolib.SI)
-
 HOURS = pd.date_range("2023-01-01", periods=8760, freq="h")
 
 
