@@ -43,14 +43,6 @@ from plantside.air_handler.zone_loads import HourlyZoneLoads, ZoneLoadModel, zon
 from plantside.constants import M3S_PER_CFM, STANDARD_AIR_DENSITY, W_PER_BTUH
 from plantside.errors import InputRangeError
 
-
-@pytest.fixture(autouse=True)
-def _psychrolib_in_si():
-    """psychrolib's unit system is global and SI is the suite's default; a test elsewhere
-    may leave it in IP, so set it before each test (and leave it in SI)."""
-    psychrolib.SetUnitSystem(psychrolib.SI)
-
-
 P = 101325.0  # Pa, ASHRAE 2017 Ch. 1 Table 1
 
 ZONE = ZoneLoadModel(
@@ -63,7 +55,7 @@ ZONE = ZoneLoadModel(
 )
 VAV = AirHandlerSettings(name="AHU-T", supply_airflow=5.0, supply_fan_power=5.0)
 
-# The column names of the published contract (notes/CONTRACT_air_handler.md): add, never rename.
+# The published column names (DEVELOPERS.md, "The air-handler contract"): add, never rename.
 CONTRACT_COLUMNS = """
 month occupied operating economizer_mode outdoor_drybulb_C outdoor_humidity_ratio_kgkg
 outdoor_enthalpy_kJkg pressure_Pa supply_mass_flow_kgs supply_airflow_m3s

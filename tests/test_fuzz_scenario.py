@@ -48,9 +48,9 @@ def _examples(count: int) -> int:
     return max(1, round(count * FUZZ_SCALE))
 
 
-#: Defects found here, reported in /work/notes/robustness.md: (exception type, plantside
-#: function in the traceback, text of its line) -> id. Counted, not failed, while unfixed;
-#: each has a strict xfail test below, and its entry must go once the fix lands.
+#: Defects found here: (exception type, plantside function in the traceback, text of its
+#: line) -> id. Counted, not failed, while unfixed; each has a strict xfail test below, and
+#: its entry must go once the fix lands.
 KNOWN_DEFECTS: dict[tuple[type, str, str], str] = {}  # S2 fixed in deb230c
 
 # The section part of a field: a dotted path of known table names with list positions.
@@ -328,7 +328,7 @@ def test_unknown_key_gets_a_suggestion_and_the_allowed_keys():
 
 
 # ---------------------------------------------------------------------------------------
-# defects found by the fuzz (S2-S4 in /work/notes/robustness.md), fixed in deb230c: regressions
+# defects found by the fuzz (S2-S4), fixed in deb230c: kept as regressions
 # ---------------------------------------------------------------------------------------
 @pytest.mark.parametrize("value", ["", "metric", "kelvin"])
 def test_s2_bad_weather_units_names_the_field(value):

@@ -17,8 +17,9 @@ Physics behind each refusal (sources beside each case):
   equations divide by it);
 - outdoor air cannot exceed the supply air (mass balance of the mixing box).
 
-The model has no setting for the zone's ventilation need (see the last tests and
-/work/notes/robustness.md): only the existing fixed minimum outdoor airflow is tested.
+The zone's ventilation need is the user's figure (``ventilation_airflow_required``, from
+ASHRAE 62.1 or the local code): the ventilation tests check that outdoor air below it at the
+lowest airflow is refused, and that a fixed minimum outdoor airflow is held at every airflow.
 """
 
 from __future__ import annotations
@@ -300,9 +301,9 @@ def test_impossible_outdoor_states_are_refused_by_the_hour_model():
 # outdoor air and the zone's ventilation need
 # ---------------------------------------------------------------------------------------
 def test_fixed_minimum_outdoor_airflow_is_held_at_every_airflow():
-    # The one ventilation floor the model has: a fixed minimum outdoor airflow. With
+    # A ventilation floor without a stated need: a fixed minimum outdoor airflow. With
     # variable volume the outdoor-air fraction rises as the supply falls, so the outdoor
-    # mass flow never drops below it (contract: "VAV -> larger fraction").
+    # mass flow never drops below it (DEVELOPERS.md, "The air-handler contract").
     weather = load_bundled_climate("Korva Plains")
     settings = AirHandlerSettings(
         supply_airflow=6.0,

@@ -24,7 +24,8 @@ For every combination:
   (``apparatus_dew_point_C`` and ``bypass_factor`` are NaN by contract when the coil is
   dry or off: they must be finite where the coil is wet); off hours carry zero loads;
 - the energy balance of the air-handler contract holds in every operating hour to 0.1 %
-  of the gross flows (/work/notes/CONTRACT_air_handler.md; the model states < 1e-6);
+  of the gross flows (DEVELOPERS.md, "The air-handler contract": an identity of the
+  reported numbers, to the humidity iteration's tolerance);
 - the dashboard's headline figures are finite: design zone load, design coil load, their
   ratio, annual peak coil load, cooling energy, hours above 75 % of the recommended
   capacity (the definitions of ``plantside.dashboard.state.DashboardState._assemble``,
@@ -401,8 +402,8 @@ def test_dashboard_headline_figures_stay_finite_at_every_control_end(climate):
     from plantside.study.scenario import loads_scenario
 
     # The SI example without its supply reset (16 °C) and with preheat at 4 °C, so that the
-    # dashboard's whole supply range is open to the model (see D1 in
-    # /work/notes/robustness.md for the example as it is).
+    # dashboard's whole supply range is open to the model (the example as it is: defect D1,
+    # test_impossible_requests.py::test_defect_d1_dashboard_supply_range_is_what_the_model_accepts).
     path = Path(__file__).parents[1] / "example_data" / "scenarios" / "linden_office_si.toml"
     text = path.read_text(encoding="utf-8")
     text = "\n".join(line for line in text.splitlines() if "supply_reset" not in line)
