@@ -39,21 +39,11 @@ from plantside.air_handler.year import (
     hourly_year,
     outdoor_air_sweep,
 )
-from plantside.air_handler.zone_loads import HourlyZoneLoads, ZoneLoadModel, zone_loads_for_weather
+from plantside.air_handler.zone_loads import HourlyZoneLoads, zone_loads_for_weather
 from plantside.constants import M3S_PER_CFM, STANDARD_AIR_DENSITY, W_PER_BTUH
 from plantside.errors import InputRangeError
 
 P = 101325.0  # Pa, ASHRAE 2017 Ch. 1 Table 1
-
-ZONE = ZoneLoadModel(
-    cooling_design_sensible=60.0,
-    cooling_design_latent=10.0,
-    cooling_design_drybulb=33.0,
-    heating_design_load=40.0,
-    heating_design_drybulb=-8.0,
-    internal_fraction=0.5,
-)
-VAV = AirHandlerSettings(name="AHU-T", supply_airflow=5.0, supply_fan_power=5.0)
 
 # The published column names (DEVELOPERS.md, "The air-handler contract"): add, never rename.
 CONTRACT_COLUMNS = """
@@ -73,37 +63,47 @@ zone_latent_unmet_kW plenum_gain_kW ventilation_sensible_kW ventilation_latent_k
 fan_heat_kW economizer_effect_kW recovery_effect_kW
 """.split()
 
-CONFIGURATIONS = {
-    "vav_economizer_draw_through": VAV,
-    "cv_blow_through_recovery_plenum_reheat": replace(
-        VAV,
-        fan_control="constant_volume",
-        fan_position="blow_through",
-        recovery_sensible_effectiveness=0.7,
-        recovery_latent_effectiveness=0.5,
-        return_plenum_fraction=0.3,
-        low_load_response="reheat",
-        economizer="differential_enthalpy",
-    ),
-    "outdoor_air_unit_dew_point_coil": replace(
-        VAV,
-        supply_airflow=2.0,
-        all_outdoor_air=True,
-        coil_model="leaving_dew_point",
-        leaving_dew_point=11.0,
-        supply_drybulb=14.0,
-    ),
-    "fixed_outdoor_airflow_fixed_adp_reset_occupied": replace(
-        VAV,
-        minimum_outdoor_airflow=1.0,
-        coil_model="apparatus_dew_point",
-        apparatus_dew_point=9.0,
-        supply_reset_drybulb=16.0,
-        economizer="differential_drybulb",
-        economizer_integrated=False,
-        fan_schedule="occupied",
-    ),
-}
+CONFIGURATION_NAMES = [
+    "vav_economizer_draw_through",
+    "cv_blow_through_recovery_plenum_reheat",
+    "outdoor_air_unit_dew_point_coil",
+    "fixed_outdoor_airflow_fixed_adp_reset_occupied",
+]
+
+
+def _configurations(vav_unit):
+    """The units of CONFIGURATION_NAMES, whose years every hour-by-hour check runs on."""
+    return {
+        "vav_economizer_draw_through": vav_unit,
+        "cv_blow_through_recovery_plenum_reheat": replace(
+            vav_unit,
+            fan_control="constant_volume",
+            fan_position="blow_through",
+            recovery_sensible_effectiveness=0.7,
+            recovery_latent_effectiveness=0.5,
+            return_plenum_fraction=0.3,
+            low_load_response="reheat",
+            economizer="differential_enthalpy",
+        ),
+        "outdoor_air_unit_dew_point_coil": replace(
+            vav_unit,
+            supply_airflow=2.0,
+            all_outdoor_air=True,
+            coil_model="leaving_dew_point",
+            leaving_dew_point=11.0,
+            supply_drybulb=14.0,
+        ),
+        "fixed_outdoor_airflow_fixed_adp_reset_occupied": replace(
+            vav_unit,
+            minimum_outdoor_airflow=1.0,
+            coil_model="apparatus_dew_point",
+            apparatus_dew_point=9.0,
+            supply_reset_drybulb=16.0,
+            economizer="differential_drybulb",
+            economizer_integrated=False,
+            fan_schedule="occupied",
+        ),
+    }
 
 
 @pytest.fixture(scope="module")
@@ -112,8 +112,10 @@ def weather():
 
 
 @pytest.fixture(scope="module")
-def years(weather):
-    return {name: hourly_year(s, weather, ZONE) for name, s in CONFIGURATIONS.items()}
+def years(weather, office_zone, vav_unit):
+    return {
+        name: hourly_year(s, weather, office_zone) for name, s in _configurations(vav_unit).items()
+    }
 
 
 def _balance_residual(frame):
@@ -146,15 +148,15 @@ def test_hourly_frame_matches_contract(years, weather):
 
 
 # --- energy balance, every hour of a year ---------------------------------------------------
-@pytest.mark.parametrize("name", list(CONFIGURATIONS))
-def test_energy_balance_every_hour(years, name):
+@pytest.mark.parametrize("name", CONFIGURATION_NAMES)
+def test_energy_balance_every_hour(years, name, office_zone):
     frame = years[name]
     operating = frame["operating"]
     residual, scale = _balance_residual(frame[operating])
     # zone + ventilation + fan - economizer - recovery (- condensate) = coil, to 0.1 %
     assert (residual <= 1e-3 * scale + 1e-6).all()
     # the zone load given is the zone load met (or reported unmet), to 0.1 %
-    loads = zone_loads_for_weather(ZONE, synthetic_weather())
+    loads = zone_loads_for_weather(office_zone, synthetic_weather())
     sensible = frame["zone_sensible_kW"] + frame["zone_sensible_unmet_kW"]
     latent = frame["zone_latent_kW"] + frame["zone_latent_unmet_kW"]
     np.testing.assert_allclose(sensible, loads.sensible, rtol=1e-3, atol=1e-3)
@@ -265,7 +267,7 @@ def test_quick_formulas_at_standard_conditions():
 
 
 # --- facts of the trade ---------------------------------------------------------------------
-def test_full_outdoor_air_coil_load_does_not_depend_on_return_air():
+def test_full_outdoor_air_coil_load_does_not_depend_on_return_air(vav_unit):
     hot = (34.0, float(ma.humidity_ratio_from_wet_bulb(34.0, 25.0, P)), P)
     # Constant volume with the supply held at its set point (reheat at the zones): a VAV
     # unit's airflow, or a unit that raises its supply temperature, follows the room load.
@@ -285,7 +287,7 @@ def test_full_outdoor_air_coil_load_does_not_depend_on_return_air():
     # an integrated economizer at 100 % outdoor air (hot but below its high limit)
     mild_hot = (23.5, float(ma.humidity_ratio_from_wet_bulb(23.5, 18.0, P)), P)
     unit = replace(
-        VAV, economizer="fixed_drybulb", supply_fan_power=0.0, fan_control="constant_volume"
+        vav_unit, economizer="fixed_drybulb", supply_fan_power=0.0, fan_control="constant_volume"
     )
     d = design_point(unit, (40.0, 2.0), mild_hot)
     e = design_point(unit, (40.0, 12.0), mild_hot)
@@ -293,10 +295,10 @@ def test_full_outdoor_air_coil_load_does_not_depend_on_return_air():
     assert d.loads["coil_total_kW"] == pytest.approx(e.loads["coil_total_kW"], rel=1e-9)
 
 
-def test_minimum_outdoor_air_mild_climate_approaches_zone_plus_ventilation():
+def test_minimum_outdoor_air_mild_climate_approaches_zone_plus_ventilation(vav_unit):
     # Mild hour, dampers at minimum, no economizer, no fan: coil = zone + ventilation, the
     # ventilation evaluated independently with psychrolib from the outdoor and return states.
-    unit = replace(VAV, economizer="none", supply_fan_power=0.0, fan_control="constant_volume")
+    unit = replace(vav_unit, economizer="none", supply_fan_power=0.0, fan_control="constant_volume")
     outdoor = (26.0, float(ma.humidity_ratio_from_relative_humidity(26.0, 0.55, P)), P)
     point = design_point(unit, (45.0, 6.0), outdoor)
     row = point.row
@@ -315,13 +317,15 @@ def test_minimum_outdoor_air_mild_climate_approaches_zone_plus_ventilation():
 
 
 # --- airflow ------------------------------------------------------------------------------------
-def test_standard_and_actual_airflow_at_altitude():
+def test_standard_and_actual_airflow_at_altitude(vav_unit):
     # 1,500 m: standard atmosphere pressure (ASHRAE 2017 Ch. 1 Eq. 3), about 84.6 kPa.
     p = float(ma.pressure_from_altitude(1500.0))
     outdoor = (30.0, 0.008, p)
-    standard = design_point(replace(VAV, fan_control="constant_volume"), (50.0, 5.0), outdoor)
+    standard = design_point(replace(vav_unit, fan_control="constant_volume"), (50.0, 5.0), outdoor)
     actual = design_point(
-        replace(VAV, fan_control="constant_volume", airflow_basis="actual"), (50.0, 5.0), outdoor
+        replace(vav_unit, fan_control="constant_volume", airflow_basis="actual"),
+        (50.0, 5.0),
+        outdoor,
     )
     assert standard.row["supply_mass_flow_kgs"] == pytest.approx(5.0 * STANDARD_AIR_DENSITY)
     # actual: m = Q / v of saturated air at the 13 °C supply set point (psychrolib Eq. 26)
@@ -334,12 +338,12 @@ def test_standard_and_actual_airflow_at_altitude():
     assert actual.loads["coil_total_kW"] < standard.loads["coil_total_kW"]
 
 
-def test_variable_volume_and_fixed_outdoor_airflow():
+def test_variable_volume_and_fixed_outdoor_airflow(vav_unit):
     loads = HourlyZoneLoads(sensible=[60.0, 30.0, 10.0, 2.0], latent=5.0)
     t = np.full(4, 28.0)
     w = np.full(4, 0.010)
-    cv = air_handler_hours(replace(VAV, fan_control="constant_volume"), t, w, P, loads)
-    vav = air_handler_hours(replace(VAV, minimum_outdoor_airflow=1.0), t, w, P, loads)
+    cv = air_handler_hours(replace(vav_unit, fan_control="constant_volume"), t, w, P, loads)
+    vav = air_handler_hours(replace(vav_unit, minimum_outdoor_airflow=1.0), t, w, P, loads)
     np.testing.assert_allclose(cv["airflow_fraction"], 1.0)
     # VAV follows the room load, down to the 30 % minimum
     assert np.all(np.diff(vav["airflow_fraction"]) <= 1e-12)
@@ -352,20 +356,20 @@ def test_variable_volume_and_fixed_outdoor_airflow():
     # constant-volume at part load: the supply air is delivered warmer (coil unloads)
     assert np.all(np.diff(cv["supply_drybulb_C"]) > 0)
     # a fraction setting keeps the same fraction at every airflow
-    frac = air_handler_hours(VAV, t, w, P, loads)
+    frac = air_handler_hours(vav_unit, t, w, P, loads)
     np.testing.assert_allclose(frac["outdoor_air_fraction"], 0.2)
 
 
-def test_supply_reset_fan_heat_plenum_and_reheat():
+def test_supply_reset_fan_heat_plenum_and_reheat(vav_unit):
     loads = HourlyZoneLoads(sensible=[40.0] * 3, latent=4.0, internal_sensible=[20.0] * 3)
     t = np.array([5.0, 15.5, 25.0])
     w = np.array([0.004, 0.007, 0.010])
-    reset = replace(VAV, supply_reset_drybulb=16.0, economizer="none", supply_fan_power=0.0)
+    reset = replace(vav_unit, supply_reset_drybulb=16.0, economizer="none", supply_fan_power=0.0)
     r = air_handler_hours(reset, t, w, P, loads)
     # linear reset: 16 °C at or below 10 °C outdoor, 13 °C at or above 21 °C (halfway: 14.5)
     np.testing.assert_allclose(r["supply_drybulb_C"], [16.0, 14.5, 13.0], atol=1e-9)
     # draw-through fan: supply - coil leaving = fan heat / (m c_p)
-    fan = replace(VAV, supply_fan_power=6.0, economizer="none")
+    fan = replace(vav_unit, supply_fan_power=6.0, economizer="none")
     r = air_handler_hours(fan, t, w, P, loads)
     cp = 1.006 + 1.86 * r["supply_humidity_ratio_kgkg"]
     rise = r["fan_heat_kW"] / (r["supply_mass_flow_kgs"] * cp)
@@ -378,8 +382,8 @@ def test_supply_reset_fan_heat_plenum_and_reheat():
         blow["coil_entering_drybulb_C"] - blow["mixed_drybulb_C"], rise, rtol=1e-6
     )
     # return plenum: half the internal gain goes to the return air, less supply air needed
-    plenum = air_handler_hours(replace(VAV, return_plenum_fraction=0.5), t, w, P, loads)
-    plain = air_handler_hours(VAV, t, w, P, loads)
+    plenum = air_handler_hours(replace(vav_unit, return_plenum_fraction=0.5), t, w, P, loads)
+    plain = air_handler_hours(vav_unit, t, w, P, loads)
     cp_r = 1.006 + 1.86 * plenum["return_humidity_ratio_kgkg"]
     np.testing.assert_allclose(
         plenum["return_drybulb_C"] - plenum["zone_drybulb_C"],
@@ -389,8 +393,10 @@ def test_supply_reset_fan_heat_plenum_and_reheat():
     assert np.all(plenum["supply_mass_flow_kgs"] < plain["supply_mass_flow_kgs"])
     # reheat: at minimum airflow the supply stays at 13 °C and reheat makes up the rest
     small = HourlyZoneLoads(sensible=[3.0], latent=1.0)
-    held = air_handler_hours(replace(VAV, low_load_response="reheat"), [26.0], [0.01], P, small)
-    raised = air_handler_hours(VAV, [26.0], [0.01], P, small)
+    held = air_handler_hours(
+        replace(vav_unit, low_load_response="reheat"), [26.0], [0.01], P, small
+    )
+    raised = air_handler_hours(vav_unit, [26.0], [0.01], P, small)
     m, cp = held["supply_mass_flow_kgs"][0], 1.006 + 1.86 * held["supply_humidity_ratio_kgkg"][0]
     assert held["supply_drybulb_C"][0] == pytest.approx(13.0, abs=1e-5)
     assert held["reheat_kW"][0] == pytest.approx(m * cp * (24.0 - 13.0) - 3.0, rel=1e-6)
@@ -407,37 +413,37 @@ def test_fan_off_hours(years):
     assert (frame.loc[off, "zone_sensible_unmet_kW"] != 0).any()
 
 
-def test_bad_hourly_inputs():
+def test_bad_hourly_inputs(vav_unit):
     loads = HourlyZoneLoads(sensible=[10.0, 10.0], latent=1.0)
     # the weather importer's range (-70 to 60 °C) is the model's range too
-    air_handler_hours(VAV, [-70.0, 60.0], [0.0, 0.02], P, loads)
+    air_handler_hours(vav_unit, [-70.0, 60.0], [0.0, 0.02], P, loads)
     with pytest.raises(InputRangeError, match="outdoor_drybulb"):
-        air_handler_hours(VAV, [-71.0, 10.0], [0.0, 0.002], P, loads)
+        air_handler_hours(vav_unit, [-71.0, 10.0], [0.0, 0.002], P, loads)
     with pytest.raises(InputRangeError, match="outdoor_humidity_ratio"):
-        air_handler_hours(VAV, [10.0, 10.0], [0.002, 0.05], P, loads)
+        air_handler_hours(vav_unit, [10.0, 10.0], [0.002, 0.05], P, loads)
     with pytest.raises(InputRangeError, match="zone_loads"):
-        air_handler_hours(VAV, [10.0, 10.0, 11.0], [0.002] * 3, P, loads)
+        air_handler_hours(vav_unit, [10.0, 10.0, 11.0], [0.002] * 3, P, loads)
     with pytest.raises(InputRangeError, match="minimum_outdoor_air_fraction"):
         air_handler_hours(
-            VAV, [10.0, 10.0], [0.002] * 2, P, loads, minimum_outdoor_air_fraction=1.5
+            vav_unit, [10.0, 10.0], [0.002] * 2, P, loads, minimum_outdoor_air_fraction=1.5
         )
 
 
 # --- cautions and the sweep ----------------------------------------------------------------------
-def test_humid_zone_caution():
+def test_humid_zone_caution(office_zone, vav_unit):
     weather = synthetic_weather(mean=22.0, swing=6.0, dew_depression=2.0, hours=24 * 30, seed=3)
-    humid = replace(ZONE, cooling_design_latent=40.0)
-    frame = hourly_year(replace(VAV, bypass_factor=0.3, supply_drybulb=15.0), weather, humid)
+    humid = replace(office_zone, cooling_design_latent=40.0)
+    frame = hourly_year(replace(vav_unit, bypass_factor=0.3, supply_drybulb=15.0), weather, humid)
     assert any("mould" in c for c in frame.attrs["cautions"])
     muggy = (28.0, float(ma.humidity_ratio_from_dew_point(25.0, P)), P)
-    point = design_point(replace(VAV, bypass_factor=0.3, supply_drybulb=15.0), humid, muggy)
+    point = design_point(replace(vav_unit, bypass_factor=0.3, supply_drybulb=15.0), humid, muggy)
     assert any("mould" in c for c in point.cautions)
 
 
-def test_sweep_agrees_with_single_runs(weather):
-    sweep = outdoor_air_sweep(VAV, weather, ZONE, fractions=[0.0, 0.3, 1.0])
+def test_sweep_agrees_with_single_runs(weather, office_zone, vav_unit):
+    sweep = outdoor_air_sweep(vav_unit, weather, office_zone, fractions=[0.0, 0.3, 1.0])
     assert list(sweep.columns) == list(SWEEP_COLUMNS)
-    single = hourly_year(replace(VAV, minimum_outdoor_air_fraction=0.3), weather, ZONE)
+    single = hourly_year(replace(vav_unit, minimum_outdoor_air_fraction=0.3), weather, office_zone)
     row = sweep.iloc[1]
     # to the solution tolerance (a block of fractions may take one pass more or fewer)
     assert row["coil_total_kWh"] == pytest.approx(single["coil_total_kW"].sum(), rel=1e-5)
@@ -489,6 +495,7 @@ def test_random_settings_give_finite_balanced_years(
     reheat,
     basis,
     latent,
+    office_zone,
 ):
     settings = AirHandlerSettings(
         supply_airflow=5.0,
@@ -511,7 +518,7 @@ def test_random_settings_give_finite_balanced_years(
         apparatus_dew_point_min=-5.0,
         low_load_response="reheat" if reheat else "raise_supply_temperature",
     )
-    frame = hourly_year(settings, SHORT, replace(ZONE, cooling_design_latent=latent))
+    frame = hourly_year(settings, SHORT, replace(office_zone, cooling_design_latent=latent))
     values = frame[[c for c in frame.columns if c.endswith(("_kW", "_kgs", "_m3s"))]]
     assert np.isfinite(values.to_numpy()).all()
     residual, scale = _balance_residual(frame)

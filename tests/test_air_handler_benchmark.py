@@ -20,7 +20,7 @@ from plantside.air_handler.year import (
     hourly_year,
     outdoor_air_sweep,
 )
-from plantside.air_handler.zone_loads import HourlyZoneLoads, ZoneLoadModel, zone_loads_for_weather
+from plantside.air_handler.zone_loads import HourlyZoneLoads, zone_loads_for_weather
 
 pytestmark = pytest.mark.benchmark
 
@@ -32,13 +32,6 @@ SETTINGS = AirHandlerSettings(
     supply_fan_power=5.0,
     economizer="differential_enthalpy",
     recovery_sensible_effectiveness=0.7,
-)
-ZONE = ZoneLoadModel(
-    cooling_design_sensible=60.0,
-    cooling_design_latent=10.0,
-    cooling_design_drybulb=33.0,
-    heating_design_load=40.0,
-    heating_design_drybulb=-8.0,
 )
 
 
@@ -58,9 +51,9 @@ def _median_seconds(function, repeats):
 
 
 @pytest.fixture(scope="module")
-def case():
+def case(office_zone):
     weather = synthetic_weather()
-    return weather, zone_loads_for_weather(ZONE, weather)
+    return weather, zone_loads_for_weather(office_zone, weather)
 
 
 def _year(weather, loads, check=True):

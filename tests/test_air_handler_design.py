@@ -23,21 +23,10 @@ from plantside.air_handler.year import (
     design_point,
     heating_design_point,
 )
-from plantside.air_handler.zone_loads import ZoneLoadModel
 from plantside.climate.design_conditions import design_conditions_from_weather
 from plantside.errors import InputRangeError
 
 P = 101325.0  # Pa, ASHRAE 2017 Ch. 1 Table 1
-
-ZONE = ZoneLoadModel(
-    cooling_design_sensible=60.0,
-    cooling_design_latent=10.0,
-    cooling_design_drybulb=33.0,
-    heating_design_load=40.0,
-    heating_design_drybulb=-8.0,
-    internal_fraction=0.5,
-)
-VAV = AirHandlerSettings(name="AHU-T", supply_airflow=5.0, supply_fan_power=5.0)
 
 
 @pytest.fixture(scope="module")
@@ -66,8 +55,8 @@ HUMID_CONDITIONS = [
 ]
 
 
-def test_design_point_breakdown_and_state_points():
-    point = design_point(VAV, ZONE, HUMID_CONDITIONS[0])
+def test_design_point_breakdown_and_state_points(office_zone, vav_unit):
+    point = design_point(vav_unit, office_zone, HUMID_CONDITIONS[0])
     assert point.kind == "cooling" and point.label == "cooling 0.4 %"
     assert list(point.states.index) == [
         "outdoor",
@@ -94,7 +83,7 @@ def test_design_point_breakdown_and_state_points():
     assert point.economizer_mode == "locked_out"
 
 
-def test_governing_cooling_condition():
+def test_governing_cooling_condition(office_zone, vav_unit):
     # A 100 % outdoor-air unit in a humid climate: dew-point or enthalpy condition governs.
     doas = AirHandlerSettings(
         supply_airflow=3.0,
@@ -102,7 +91,7 @@ def test_governing_cooling_condition():
         fan_control="constant_volume",
         supply_fan_power=3.0,
     )
-    summary = cooling_design_points(doas, ZONE, HUMID_CONDITIONS)
+    summary = cooling_design_points(doas, office_zone, HUMID_CONDITIONS)
     assert set(summary.points) == {"cooling", "dehumidification", "enthalpy"}
     assert summary.governing in ("dehumidification", "enthalpy")
     assert summary.governing_latent == "dehumidification"
@@ -110,30 +99,30 @@ def test_governing_cooling_condition():
     table = summary.table
     assert table.loc[summary.governing, "coil_total_kW"] == table["coil_total_kW"].max()
     # A mostly recirculating unit with a large sensible zone load: the dry-bulb condition.
-    recirculating = replace(VAV, supply_airflow=12.0, minimum_outdoor_air_fraction=0.05)
-    big = replace(ZONE, cooling_design_sensible=120.0, cooling_design_latent=2.0)
+    recirculating = replace(vav_unit, supply_airflow=12.0, minimum_outdoor_air_fraction=0.05)
+    big = replace(office_zone, cooling_design_sensible=120.0, cooling_design_latent=2.0)
     assert cooling_design_points(recirculating, big, HUMID_CONDITIONS).governing == "cooling"
     # with too little design airflow the zone runs warm: said plainly
     small = cooling_design_points(replace(recirculating, supply_airflow=8.0), big, HUMID_CONDITIONS)
     assert small.points["cooling"].loads["zone_sensible_unmet_kW"] > 0
     assert any("airflow" in c for c in small.points["cooling"].cautions)
     with pytest.raises(InputRangeError, match="no enthalpy"):
-        cooling_design_points(doas, ZONE, HUMID_CONDITIONS[:2])
+        cooling_design_points(doas, office_zone, HUMID_CONDITIONS[:2])
 
 
-def test_design_points_from_the_design_condition_module(weather):
+def test_design_points_from_the_design_condition_module(weather, office_zone, vav_unit):
     conditions = design_conditions_from_weather(weather)
-    summary = cooling_design_points(VAV, ZONE, conditions, percent=1.0)
+    summary = cooling_design_points(vav_unit, office_zone, conditions, percent=1.0)
     assert summary.governing in ("cooling", "dehumidification", "enthalpy")
     heating = next(c for c in conditions.conditions if c.kind == "heating")
-    point = heating_design_point(VAV, ZONE, heating)
+    point = heating_design_point(vav_unit, office_zone, heating)
     assert point.loads["heating_coil_kW"] > 0 and point.loads["coil_total_kW"] == 0
 
 
-def test_heating_design_point():
-    point = heating_design_point(VAV, ZONE, HUMID_CONDITIONS[3])
+def test_heating_design_point(office_zone, vav_unit):
+    point = heating_design_point(vav_unit, office_zone, HUMID_CONDITIONS[3])
     row = point.row
-    # envelope loss only at the heating design dry bulb: -40 kW (ZONE.heating_design_load)
+    # envelope loss only at the heating design dry bulb: -40 kW (office_zone.heating_design_load)
     assert row["zone_sensible_kW"] == pytest.approx(-40.0, rel=1e-6)
     assert point.economizer_mode == "heating"
     assert row["supply_drybulb_C"] > 21.0
@@ -175,9 +164,9 @@ def test_heating_design_point():
         ("recovery_sensible_effectiveness", {"recovery_sensible_effectiveness": 1.5}, "0 to 0.95"),
     ],
 )
-def test_bad_settings_name_field_and_range(field, changes, allowed):
+def test_bad_settings_name_field_and_range(field, changes, allowed, vav_unit):
     with pytest.raises(InputRangeError) as info:
-        replace(VAV, **changes)
+        replace(vav_unit, **changes)
     assert info.value.field == field
     assert allowed in str(info.value)
 
@@ -195,16 +184,16 @@ def test_apparatus_dew_point_the_coil_cannot_produce():
 
 
 @pytest.mark.parametrize("value", ["5", True, None])
-def test_numbers_must_be_numbers(value):
+def test_numbers_must_be_numbers(value, office_zone, vav_unit):
     # A number field given as text or true/false is refused where it enters.
     with pytest.raises(InputRangeError) as info:
-        replace(VAV, supply_airflow=value)
+        replace(vav_unit, supply_airflow=value)
     assert info.value.field == "supply_airflow"
     with pytest.raises(InputRangeError) as info:
-        replace(VAV, all_outdoor_air="yes")
+        replace(vav_unit, all_outdoor_air="yes")
     assert info.value.field == "all_outdoor_air"
     with pytest.raises(InputRangeError) as info:
-        replace(ZONE, cooling_design_sensible="60")
+        replace(office_zone, cooling_design_sensible="60")
     assert info.value.field == "cooling_design_sensible"
 
 
@@ -218,11 +207,11 @@ def test_numbers_must_be_numbers(value):
          "at least 0.1"),
     ],
 )  # fmt: skip
-def test_outdoor_air_below_the_ventilation_need_is_refused(changes, field, allowed):
+def test_outdoor_air_below_the_ventilation_need_is_refused(changes, field, allowed, vav_unit):
     with pytest.raises(InputRangeError) as info:
-        replace(VAV, ventilation_airflow_required=0.5, **changes)
+        replace(vav_unit, ventilation_airflow_required=0.5, **changes)
     assert info.value.field == field
     assert allowed in str(info.value) and "ventilation" in str(info.value)
     # enough outdoor air at the lowest airflow: accepted
-    replace(VAV, ventilation_airflow_required=0.5, minimum_outdoor_air_fraction=0.34)
-    replace(VAV, ventilation_airflow_required=0.5, minimum_outdoor_airflow=0.5)
+    replace(vav_unit, ventilation_airflow_required=0.5, minimum_outdoor_air_fraction=0.34)
+    replace(vav_unit, ventilation_airflow_required=0.5, minimum_outdoor_airflow=0.5)
