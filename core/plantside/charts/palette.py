@@ -34,8 +34,8 @@ from __future__ import annotations
 import functools
 
 import altair as alt
-from altair.utils import schemapi
 
+from plantside.charts.altair_internals import debug_mode
 from plantside.charts.frames import records
 
 __all__ = [
@@ -308,7 +308,7 @@ def chart_builder(function):
 
     @functools.wraps(function)
     def build(*args, **kwargs):
-        with schemapi.debug_mode(False):
+        with debug_mode(False):
             return function(*args, **kwargs)
 
     return build

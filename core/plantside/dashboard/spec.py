@@ -24,12 +24,17 @@ import numbers
 
 import altair as alt
 import numpy as np
-from altair.expr.core import Expression
-from altair.utils import parse_shorthand, update_nested
-from altair.utils.schemapi import SchemaBase, Undefined
-from altair.vegalite.v6 import api as _api
-from altair.vegalite.v6.schema import channels as _channels
-from altair.vegalite.v6.schema import core as _core
+
+from plantside.charts.altair_internals import (
+    Expression,
+    SchemaBase,
+    Undefined,
+    parse_shorthand,
+    update_nested,
+)
+from plantside.charts.altair_internals import vegalite_api as _api
+from plantside.charts.altair_internals import vegalite_channels as _channels
+from plantside.charts.altair_internals import vegalite_core as _core
 
 __all__ = ["SpecWriter", "UnsupportedChartError", "altair_spec", "fast_spec"]
 
