@@ -34,8 +34,17 @@ CHROMIUM_FLAGS = [
     "--no-first-run",
     "--disable-quic",
 ]
+#: What the browser tests need from apt, as the README's test command installs it: the
+#: browser without its recommended extras (headless, no GPU, no desktop), and the font the
+#: charts name first (the committed screenshots are drawn in it).
+CHROMIUM_PACKAGES = ("--no-install-recommends", "chromium", "fonts-liberation")
 REPOSITORY = Path(__file__).resolve().parents[2]
-SCREENSHOTS = Path(__file__).resolve().parent / "screenshots"
+#: The screenshots the README shows (tracked): rewritten only when asked, by setting
+#: ``PLANTSIDE_REFRESH_SCREENSHOTS=1`` (DEVELOPERS.md, "Run").
+COMMITTED_SCREENSHOTS = Path(__file__).resolve().parent / "screenshots"
+#: Where every other run writes its screenshots (ignored by git), to look at after a run.
+LATEST_SCREENSHOTS = Path(__file__).resolve().parent / ".screenshots"
+REFRESH_SCREENSHOTS = "PLANTSIDE_REFRESH_SCREENSHOTS"
 SERVER_START_TIMEOUT_S = 180.0
 #: Time allowed for a widget to appear or a result to change on the page [ms].
 WIDGET_TIMEOUT_MS = 120_000
@@ -184,11 +193,11 @@ def stop_server(server: VoilaServer) -> None:
 def chromium_executable() -> Path:
     """Debian's Chromium; installed with apt-get when missing, as the README's test command does."""
     if not CHROMIUM.exists() and shutil.which("apt-get") and os.geteuid() == 0:
-        subprocess.run(["apt-get", "install", "-y", "chromium"], check=False, timeout=900)
+        subprocess.run(["apt-get", "install", "-y", *CHROMIUM_PACKAGES], check=False, timeout=900)
     if not CHROMIUM.exists():
         pytest.fail(
-            "browser tests need Debian's Chromium at /usr/bin/chromium: "
-            "run `apt-get install -y chromium` (the README's test command does)"
+            "browser tests need Debian's Chromium at /usr/bin/chromium: run "
+            f"`apt-get install -y {' '.join(CHROMIUM_PACKAGES)}` (the README's test command does)"
         )
     return CHROMIUM
 
@@ -245,8 +254,12 @@ def dashboard_server(tmp_path_factory):
 
 @pytest.fixture(scope="session")
 def screenshots_folder() -> Path:
-    SCREENSHOTS.mkdir(parents=True, exist_ok=True)
-    return SCREENSHOTS
+    """The folder the screenshot tests write to: the ignored ``.screenshots`` unless
+    ``PLANTSIDE_REFRESH_SCREENSHOTS=1`` asks to refresh the committed ones."""
+    refresh = os.environ.get(REFRESH_SCREENSHOTS, "") == "1"
+    folder = COMMITTED_SCREENSHOTS if refresh else LATEST_SCREENSHOTS
+    folder.mkdir(parents=True, exist_ok=True)
+    return folder
 
 
 @pytest.fixture(scope="module")
