@@ -123,4 +123,4 @@ def test_charts_writes_every_dashboard_chart_as_png_and_svg(tmp_path):
     for svg in svgs:
         root = ET.fromstring(svg.read_text(encoding="utf-8"))
         assert root.tag.endswith("svg")
-        assert "Elmstead Works" in svg.read_text(encoding="utf-8")  # the scenario stamp
+        assert "Tinderloft Works" in svg.read_text(encoding="utf-8")  # the scenario stamp
