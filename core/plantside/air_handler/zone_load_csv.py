@@ -5,8 +5,14 @@ reads it as data only: it is never executed and its content never used as a path
 
 Accepted file
 -------------
-- Text, UTF-8 (with or without byte-order mark) or Windows-1252; LF or CRLF line
-  ends. Lines starting with ``#`` before the header are comments.
+The file is taken in by :mod:`plantside.hourly_csv` (shared with the weather
+reader); this module says which columns zone loads need, their units and checks.
+
+- Text, UTF-8 (with or without byte-order mark), UTF-16 with a byte-order mark,
+  or Windows-1252 (noted); LF or CRLF line ends. Lines starting with ``#`` before
+  the header are comments.
+- The header row is found by its column names (a sensible and a latent column)
+  among the first 20 non-comment lines; lines above it are skipped and noted.
 - Separator ``,``, ``;`` or tab, found from the header line. With ``;`` or tab a
   decimal comma (``12,5``) is accepted.
 - One header row, then one row per hour, in time order from the first hour of the
@@ -34,7 +40,8 @@ Validation
 All problems are collected and raised together as one
 :class:`plantside.errors.InputFileError`, each naming the row number(s) (line
 numbers of the file) and the column: missing or duplicated columns, text where a
-number is expected, empty cells, rows with missing or extra fields, values out of
+number is expected, empty cells (a short row's missing fields are empty cells),
+rows with more fields than the header, values out of
 range (sensible and latent -100,000 to 100,000 kW, internal gains 0 to 100,000
 kW), an hour column that is not consecutive, and a row count other than 8760 or
 8784 (or ``expected_hours``). Sign convention: sensible positive = cooling
@@ -43,42 +50,41 @@ needed, negative = heating needed; latent positive = moisture added to the zone.
 
 from __future__ import annotations
 
-import csv
-import io
-import os
-import re
-from pathlib import Path
-
 import numpy as np
 
 from plantside.air_handler.zone_loads import LOAD_LIMIT_KW, HourlyZoneLoads
 from plantside.constants import W_PER_BTUH
-from plantside.errors import InputFileError
+from plantside.hourly_csv.headers import role_of, split_header
+from plantside.hourly_csv.layout import HourlyTable, read_hourly_table
+from plantside.hourly_csv.source import read_text
+from plantside.hourly_csv.values import flags, numbers
 
 __all__ = ["DEFAULT_MAX_BYTES", "read_zone_loads_csv"]
 
 #: Largest file accepted [bytes].
 DEFAULT_MAX_BYTES = 20_000_000
 
+#: Normalised header names of each role (see plantside.hourly_csv.headers).
 _ROLES = {
-    "sensible": ("sensible", "sensibleload", "qs", "sensiblekw"),
+    "sensible": ("sensible", "sensibleload", "qs"),
     "latent": ("latent", "latentload", "ql"),
     "internal_sensible": ("internalsensible", "internal", "internalgains", "internalgain"),
     "occupied": ("occupied", "occupancy"),
     "hour": ("hour", "hourofyear", "hoy"),
 }
-# unit text (normalised) -> kW per unit
-_UNITS = {
-    "kw": 1.0,
-    "w": 1e-3,
-    "btuh": W_PER_BTUH / 1000.0,
-    "btu/h": W_PER_BTUH / 1000.0,
-    "btuhr": W_PER_BTUH / 1000.0,
-    "btu/hr": W_PER_BTUH / 1000.0,
-    "mbh": W_PER_BTUH,
+#: Unit words (plantside.hourly_csv.headers.unit_key form) -> canonical unit.
+_UNIT_ALIASES = {
+    "kw": "kW",
+    "w": "W",
+    "btuh": "Btu/h",
+    "btu/h": "Btu/h",
+    "btuhr": "Btu/h",
+    "btu/hr": "Btu/h",
+    "mbh": "MBH",
 }
-_TRUE = {"1", "true", "yes", "y", "t"}
-_FALSE = {"0", "false", "no", "n", "f"}
+#: kW per unit (NIST SP 811 Btu/h, via plantside.constants).
+_KW_PER_UNIT = {"kW": 1.0, "W": 1e-3, "Btu/h": W_PER_BTUH / 1000.0, "MBH": W_PER_BTUH}
+_SYSTEM_UNIT = {"SI": "kW", "IP": "Btu/h"}
 _RANGES = {
     "sensible": (-LOAD_LIMIT_KW, LOAD_LIMIT_KW),
     "latent": (-LOAD_LIMIT_KW, LOAD_LIMIT_KW),
@@ -86,96 +92,9 @@ _RANGES = {
 }
 
 
-def _too_big(name, size, max_bytes):
-    return InputFileError(
-        name, [f"the file is {size:,} bytes; at most {max_bytes:,} bytes are accepted"]
-    )
-
-
-def _read(source, max_bytes, name):
-    if isinstance(source, bytes | bytearray):
-        name = name or "zone loads"
-        if len(source) > max_bytes:
-            raise _too_big(name, len(source), max_bytes)
-        return bytes(source), name
-    if isinstance(source, str | os.PathLike) and not (isinstance(source, str) and "\n" in source):
-        path = Path(source)
-        name = name or path.name
-        try:
-            size = path.stat().st_size
-            if size > max_bytes:
-                raise _too_big(name, size, max_bytes)
-            return path.read_bytes(), name
-        except FileNotFoundError:
-            raise InputFileError(name, [f"no file '{path.name}' was found"]) from None
-        except IsADirectoryError:
-            raise InputFileError(name, [f"'{path.name}' is a folder, not a file"]) from None
-        except OSError as error:
-            raise InputFileError(name, [f"the file cannot be read ({error.strerror})"]) from None
-    if isinstance(source, str):
-        name = name or "zone loads"
-        data = source.encode("utf-8")
-        if len(data) > max_bytes:
-            raise _too_big(name, len(data), max_bytes)
-        return data, name
-    name = name or str(getattr(source, "name", "zone loads"))
-    data = source.read(max_bytes + 1)
-    if isinstance(data, str):
-        data = data.encode("utf-8")
-    if len(data) > max_bytes:
-        raise InputFileError(name, [f"the file exceeds {max_bytes:,} bytes"])
-    return data, name
-
-
-def _decode(data: bytes, name: str) -> str:
-    if data.startswith((b"\xff\xfe", b"\xfe\xff")):
-        try:
-            return data.decode("utf-16")
-        except UnicodeDecodeError:
-            raise InputFileError(name, ["row 1: the file cannot be read as UTF-16 text"]) from None
-    if b"\x00" in data:
-        raise InputFileError(
-            name,
-            [
-                "row 1: the file contains NUL bytes: it is not a text (CSV) file; "
-                "save it as UTF-8 CSV"
-            ],
-        )
-    for encoding in ("utf-8-sig", "cp1252"):
-        try:
-            return data.decode(encoding)
-        except UnicodeDecodeError:
-            continue
-    return data.decode("latin-1")
-
-
-def _split_header(text):
-    """Return (role key, unit text or None) of one header cell."""
-    raw = text.strip()
-    unit = None
-    bracket = re.search(r"[\[(]([^\])]*)[\])]\s*$", raw)
-    if bracket:
-        unit = bracket.group(1).strip().lower().replace(" ", "")
-        raw = raw[: bracket.start()]
-    key = re.sub(r"[^a-z0-9]", "", raw.lower())
-    if unit is None:
-        for candidate in sorted(_UNITS, key=len, reverse=True):
-            bare = re.sub(r"[^a-z0-9]", "", candidate)
-            if key.endswith(bare) and len(key) > len(bare):
-                stem = key[: -len(bare)]
-                if any(stem in names for names in _ROLES.values()):
-                    return stem, candidate
-    return key, unit
-
-
-def _rows_text(rows, limit=6):
-    rows = list(rows)
-    shown = ", ".join(str(r) for r in rows[:limit])
-    return (
-        f"row {shown}"
-        if len(rows) == 1
-        else f"rows {shown}" + (f" and {len(rows) - limit} more" if len(rows) > limit else "")
-    )
+def _is_header(cells: list[str]) -> bool:
+    roles = {role_of(split_header(cell, _UNIT_ALIASES).name, _ROLES) for cell in cells}
+    return {"sensible", "latent"} <= roles
 
 
 def read_zone_loads_csv(
@@ -207,192 +126,150 @@ def read_zone_loads_csv(
     InputFileError
         Listing every problem with its row number(s) and column.
     """
-    data, name = _read(source, max_bytes, name)
-    text = _decode(data, name)
-    lines = text.splitlines()
-    first = 0
-    while first < len(lines) and (
-        not lines[first].strip() or lines[first].lstrip().startswith("#")
-    ):
-        first += 1
-    if first >= len(lines):
-        raise InputFileError(name, ["the file has no header row"])
+    source_text = read_text(
+        source, max_bytes=max_bytes, kind="zone loads", name=name, text_allowed=True
+    )
     allowed = (8760, 8784) if expected_hours is None else (int(expected_hours),)
-    # The row count alone can rule a file out: say so before parsing any row.
-    rows_present = sum(1 for line in lines[first + 1 :] if line.strip())
-    if rows_present > max(allowed):
-        raise InputFileError(
-            name,
-            [
-                f"the file has {rows_present} data rows; allowed "
-                f"{' or '.join(str(a) for a in allowed)} (one per hour)"
-            ],
-        )
-    header_line = lines[first]
-    delimiter = max((",", ";", "\t"), key=header_line.count)
-    decimal_comma = delimiter in (";", "\t")
-    reader = csv.reader(io.StringIO("\n".join(lines[first:])), delimiter=delimiter)
-    header_row = first + 1
-    rows = []
-    try:
-        for row in reader:
-            rows.append(row)
-    except csv.Error as error:
-        raise InputFileError(
-            name, [f"row {first + reader.line_num}: cannot be read as CSV ({error})"]
-        ) from None
-    header, body = rows[0], rows[1:]
-    problems, notes = [], []
+    allowed_text = " or ".join(str(a) for a in allowed)
 
-    default_unit = None
-    if units is not None:
-        system = str(units).strip().upper()
-        if system not in ("SI", "IP"):
-            problems.append(f"units = {units!r}: allowed 'SI' (kW) or 'IP' (Btu/h)")
-        default_unit = "kw" if system == "SI" else "btuh"
+    def row_limit(data_rows: int, header_row: int) -> str | None:
+        # The row count alone can rule a file out: say so before parsing any row.
+        if data_rows <= max(allowed):
+            return None
+        return f"the file has {data_rows} data rows; allowed {allowed_text} (one per hour)"
 
-    columns = {}
-    ignored = []
-    for index, cell in enumerate(header):
-        key, unit = _split_header(cell)
-        role = next((r for r, names in _ROLES.items() if key in names), None)
-        if role is None:
-            ignored.append(cell.strip())
-            continue
-        if role in columns:
-            problems.append(
-                f"row {header_row}: columns '{header[columns[role][0]].strip()}' and "
-                f"'{cell.strip()}' both give the {role.replace('_', ' ')} load; keep one"
-            )
-            continue
-        columns[role] = (index, unit)
-    if ignored:
-        notes.append("ignored columns: " + ", ".join(c for c in ignored if c))
-    for role in ("sensible", "latent"):
-        if role not in columns:
-            problems.append(
-                f"row {header_row}: no {role} load column (expected a header such as "
-                f"'{role}_kW' or '{role}_Btuh'); found: {', '.join(c.strip() for c in header)}"
-            )
-    if problems:
-        raise InputFileError(name, problems)
-
-    factors = {}
-    for role in ("sensible", "latent", "internal_sensible"):
-        if role not in columns:
-            continue
-        index, unit = columns[role]
-        unit = unit or default_unit
-        if unit is None:
-            problems.append(
-                f"row {header_row}, column '{header[index].strip()}': no unit; put it in the "
-                "header (e.g. sensible_kW, latent_Btuh) or pass units='SI' or 'IP'"
-            )
-        elif unit not in _UNITS:
-            problems.append(
-                f"row {header_row}, column '{header[index].strip()}': unit '{unit}' is not "
-                "recognised; allowed kW, W, Btu/h (Btuh), MBH"
-            )
-        else:
-            factors[role] = _UNITS[unit]
-    if problems:
-        raise InputFileError(name, problems)
-
-    n = len(body)
-    width = len(header)
-    values = {role: np.full(n, np.nan) for role in columns}
-    bad_fields, bad_number, empty, bad_flag = [], {}, {}, {}
-    for i, row in enumerate(body):
-        row_number = header_row + 1 + i
-        if len(row) != width and not (len(row) > width and not any(c.strip() for c in row[width:])):
-            bad_fields.append(row_number)
-            if len(row) < width:
-                continue
-        for role, (index, _) in columns.items():
-            cell = row[index].strip() if index < len(row) else ""
-            if cell == "":
-                empty.setdefault(role, []).append(row_number)
-                continue
-            if role == "occupied":
-                flag = cell.lower()
-                if flag in _TRUE:
-                    values[role][i] = 1.0
-                elif flag in _FALSE:
-                    values[role][i] = 0.0
-                else:
-                    bad_flag.setdefault(role, []).append(row_number)
-                continue
-            number = cell.replace(",", ".") if decimal_comma else cell
-            try:
-                values[role][i] = float(number)
-            except ValueError:
-                bad_number.setdefault(role, []).append(row_number)
-    if bad_fields:
-        problems.append(
-            f"{_rows_text(bad_fields)}: number of fields differs from the header ({width})"
-        )
-    for role, rows_ in empty.items():
-        problems.append(f"{_rows_text(rows_)}, column '{header[columns[role][0]].strip()}': empty")
-    for role, rows_ in bad_number.items():
-        problems.append(
-            f"{_rows_text(rows_)}, column '{header[columns[role][0]].strip()}': not a number"
-        )
-    for role, rows_ in bad_flag.items():
-        problems.append(
-            f"{_rows_text(rows_)}, column '{header[columns[role][0]].strip()}': "
-            "not 1/0, true/false or yes/no"
-        )
-    for role, factor in factors.items():
-        values[role] = values[role] * factor
-        low, high = _RANGES[role]
-        finite = np.isfinite(values[role])
-        out = finite & ((values[role] < low) | (values[role] > high))
-        nonfinite = ~finite & ~np.isin(
-            np.arange(n),
-            np.array(
-                [r - header_row - 1 for r in empty.get(role, []) + bad_number.get(role, [])],
-                dtype=int,
-            ),
-        )
-        column = header[columns[role][0]].strip()
-        if np.any(out):
-            rows_ = header_row + 1 + np.flatnonzero(out)
-            problems.append(
-                f"{_rows_text(rows_)}, column '{column}': outside the allowed range "
-                f"{low:g} to {high:g} kW (first {values[role][out][0]:.6g} kW)"
-            )
-        if np.any(nonfinite):
-            rows_ = header_row + 1 + np.flatnonzero(nonfinite)
-            problems.append(f"{_rows_text(rows_)}, column '{column}': not a finite number")
+    table = read_hourly_table(
+        source_text,
+        is_header=_is_header,
+        example_header="hour,sensible_kW,latent_kW",
+        row_limit=row_limit,
+    )
+    # Problems in the header stop the read; problems in rows are all collected first.
+    rows_problems = len(table.problems)
+    columns = _choose_columns(table, units)
+    if len(table.problems) > rows_problems:
+        table.fail()
+    values = {
+        role: _column_values(table, role, header, factor)
+        for role, (header, factor) in columns.items()
+    }
+    n = len(table.frame)
     if "hour" in columns:
-        index = columns["hour"][0]
-        column = header[index].strip()
-        hours = values["hour"]
-        if np.all(np.isfinite(hours)) and n:
-            start = hours[0]
-            if start not in (0.0, 1.0):
-                problems.append(
-                    f"row {header_row + 1}, column '{column}': first hour {start:g}; allowed 0 or 1"
-                )
-            else:
-                wrong = np.flatnonzero(hours != start + np.arange(n))
-                if wrong.size:
-                    problems.append(
-                        f"{_rows_text(header_row + 1 + wrong)}, column '{column}': hours are not "
-                        "consecutive (one row per hour, in order, is required)"
-                    )
+        _check_hours(table, columns["hour"][0], values["hour"])
     if n not in allowed:
-        problems.append(
-            f"the file has {n} data rows (rows {header_row + 1} to {header_row + n}); "
-            f"allowed {' or '.join(str(a) for a in allowed)} (one per hour)"
+        table.problems.append(
+            f"the file has {n} data rows (rows {table.header_row + 1} to {table.header_row + n}); "
+            f"allowed {allowed_text} (one per hour)"
         )
-    if problems:
-        raise InputFileError(name, problems)
+    if table.problems:
+        table.fail()
     return HourlyZoneLoads(
         sensible=values["sensible"],
         latent=values["latent"],
         internal_sensible=values.get("internal_sensible"),
         occupied=None if "occupied" not in values else values["occupied"].astype(bool),
-        source=name,
-        notes=tuple(notes),
+        source=table.name,
+        notes=tuple(table.notes),
     )
+
+
+def _choose_columns(table: HourlyTable, units) -> dict[str, tuple[str, float | None]]:
+    """Role -> (header, kW per file unit; None for the flag and hour columns)."""
+    row = table.header_row
+    default_unit = None
+    if units is not None:
+        system = str(units).strip().upper()
+        if system not in _SYSTEM_UNIT:
+            table.problems.append(f"units = {units!r}: allowed 'SI' (kW) or 'IP' (Btu/h)")
+        default_unit = _SYSTEM_UNIT.get(system)
+    found, ignored = {}, []
+    for header in table.headers:
+        cell = split_header(header, _UNIT_ALIASES)
+        role = role_of(cell.name, _ROLES)
+        if role is None:
+            ignored.append(header.strip())
+        elif role in found:
+            table.problems.append(
+                f"row {row}: columns '{found[role][0].strip()}' and '{header.strip()}' both give "
+                f"the {role.replace('_', ' ')} load; keep one"
+            )
+        else:
+            found[role] = (header, cell)
+    if ignored:
+        table.notes.append("ignored columns: " + ", ".join(c for c in ignored if c))
+    for role in ("sensible", "latent"):
+        if role not in found:
+            table.problems.append(
+                f"row {row}: no {role} load column (expected a header such as '{role}_kW' or "
+                f"'{role}_Btuh'); found: {', '.join(h.strip() for h in table.headers)}; "
+                + table.looked_for(f"{role} load", _ROLES[role])
+            )
+    columns = {}
+    for role, (header, cell) in found.items():
+        if role in ("occupied", "hour"):
+            columns[role] = (header, None)
+            continue
+        unit = cell.unit or (None if cell.unit_text else default_unit)
+        if cell.unit_text and cell.unit is None:
+            table.problems.append(
+                f"row {row}, column '{header.strip()}': unit '{cell.unit_text}' is not "
+                "recognised; allowed kW, W, Btu/h (Btuh), MBH"
+            )
+        elif unit is None:
+            table.problems.append(
+                f"row {row}, column '{header.strip()}': no unit; put it in the header (e.g. "
+                "sensible_kW, latent_Btuh) or pass units='SI' or 'IP'"
+            )
+        else:
+            columns[role] = (header, _KW_PER_UNIT[unit])
+    return columns
+
+
+def _column_values(table: HourlyTable, role: str, header: str, factor: float | None):
+    """Values of one column [kW, flag 0/1 or hour]; bad cells are reported."""
+    cells = table.frame[header]
+    where = f"column '{header.strip()}'"
+    if role == "occupied":
+        on, empty, bad = flags(cells)
+        for mask, what in ((empty, "empty"), (bad, "not 1/0, true/false or yes/no")):
+            if mask.any():
+                table.problems.append(f"{table.rows_text(np.flatnonzero(mask))}, {where}: {what}")
+        return on.astype(float)
+    parsed = numbers(cells, decimal_comma=table.decimal_comma, missing_markers={""})
+    for mask, what in (
+        (parsed.missing, "empty"),
+        (parsed.text, "not a number"),
+        (parsed.infinite, "not a finite number"),
+    ):
+        if mask.any():
+            table.problems.append(f"{table.rows_text(np.flatnonzero(mask))}, {where}: {what}")
+    if factor is None:
+        return parsed.values
+    values = parsed.values * factor
+    low, high = _RANGES[role]
+    out = np.isfinite(values) & ((values < low) | (values > high))
+    if out.any():
+        table.problems.append(
+            f"{table.rows_text(np.flatnonzero(out))}, {where}: outside the allowed range "
+            f"{low:g} to {high:g} kW (first {values[out][0]:.6g} kW)"
+        )
+    return values
+
+
+def _check_hours(table: HourlyTable, header: str, hours: np.ndarray) -> None:
+    """An hour column must count 0.. or 1.. by one, row by row."""
+    if not (hours.size and np.isfinite(hours).all()):
+        return
+    where = f"column '{header.strip()}'"
+    start = hours[0]
+    if start not in (0.0, 1.0):
+        table.problems.append(
+            f"row {table.header_row + 1}, {where}: first hour {start:g}; allowed 0 or 1"
+        )
+        return
+    wrong = np.flatnonzero(hours != start + np.arange(hours.size))
+    if wrong.size:
+        table.problems.append(
+            f"{table.rows_text(wrong)}, {where}: hours are not consecutive (one row per hour, "
+            "in order, is required)"
+        )
