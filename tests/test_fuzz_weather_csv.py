@@ -9,7 +9,8 @@ line ends, truncation, binary junk. Every outcome must be one of:
 - :class:`~plantside.errors.InputFileError` whose every problem names a row and/or a
   column, or :class:`~plantside.errors.InputRangeError` naming the argument,
 
-never any other exception. Mutations that do not change the meaning of a file (column
+never any other exception (the harness is ``csv_fuzz``, shared with the zone-load
+fuzz). Mutations that do not change the meaning of a file (column
 order, CRLF, BOM, UTF-16, Windows-1252, semicolons with decimal commas) must give the
 same year as the original. The number of cases run is printed at the end of the module.
 
@@ -23,118 +24,65 @@ spans 54 kPa at 5,000 m to 101.325 kPa at sea level; project rule rounded out).
 from __future__ import annotations
 
 import math
-import os
 import re
-import traceback
 from collections import Counter
-from dataclasses import dataclass, field, replace
+from dataclasses import replace
 from pathlib import Path
 
 import numpy as np
 import pytest
+from csv_fuzz import (
+    EXTREME_NUMBERS,
+    JUNK_CELLS,
+    Table,
+    case_count_fixture,
+    examples,
+    file_bytes,
+    judge,
+    mutated_tables,
+)
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 from plantside.climate.weather_csv import read_weather_csv
-from plantside.errors import InputFileError, InputRangeError
+from plantside.errors import InputFileError
 from plantside.units import fahrenheit_from_celsius, inhg_from_pa
 
 BUNDLED = Path(__file__).parents[1] / "core" / "plantside" / "data" / "linden_vale.csv"
 
 #: Cases run per outcome; printed at the end of the module.
 OUTCOMES: Counter = Counter()
+_print_case_count = case_count_fixture(OUTCOMES, "weather CSV fuzz")
 
-#: Multiplies every max_examples here (default 1; e.g. PLANTSIDE_FUZZ_SCALE=20 for a long
-#: hunt by hand; CI keeps the default so the three fuzz files stay under a minute).
-FUZZ_SCALE = float(os.environ.get("PLANTSIDE_FUZZ_SCALE", "1"))
-
-
-def _examples(count: int) -> int:
-    return max(1, round(count * FUZZ_SCALE))
-
-
-# Text a person or a spreadsheet might leave in a number cell, including formula-
-# injection and path-like strings (they must be read as text, never acted on).
-JUNK_CELLS = [
-    "abc",
-    "N/A",
-    "",
-    " ",
-    "1.2.3",
-    "--",
-    "12°C",
-    "twelve",
-    "=cmd|' /C calc'!A0",
-    '=HYPERLINK("http://example.invalid")',
-    "@SUM(1+1)",
-    "+1+1",
-    "../../etc/passwd",
-    "C:\\Windows\\system.ini",
-    "/dev/zero",
-    "__import__('os').system('true')",
-    "nan",
-    "inf",
-    "-inf",
-    "Infinity",
-    "1e999",
-    "-1e999",
-    "0x1A",
-    "١٢",  # Arabic-Indic digits
-    "12\u00a05",  # no-break space inside a number
-    "1,5",
-    '"quoted',
-    "\x00",
-    "\ufeff12",
-]
-EXTREME_NUMBERS = [
-    "1e308",
-    "-1e308",
-    "1e-308",
-    "5e-324",
-    "0",
-    "-0.0",
-    "1e15",
-    "-9999",
-    "9999",
-    "99999999999999999999",
-    "-273.15",
-    "1E+02",
-    ".5",
-    "+7",
-]
+# The shared pools plus a temperature with its unit glued on and a cold absolute zero.
+JUNK = [*JUNK_CELLS, "12°C"]
+EXTREMES = [*EXTREME_NUMBERS, "-273.15"]
 UNIT_WORDS = ["C", "F", "K", "degC", "°F", "kPa", "Pa", "inHg", "g/kg", "%", "furlongs", "", "mbar"]
+RENAMES = ["temp", "wb", "w", "humidity", "p", "x", "", "dry bulb", "hour"]
+ENCODINGS = ["utf-8", "utf-8-sig", "utf-16", "utf-16-le", "utf-16-be", "latin-1", "cp1252"]
 
 
-# ---------------------------------------------------------------------------------------
-# a CSV as a structure that mutations edit
-# ---------------------------------------------------------------------------------------
-@dataclass
-class Table:
-    names: list[str]  # quantity part of each header
-    units: list[str]  # unit word of each header ("" for none)
-    rows: list[list[str]]  # cells with '.' decimals
-    style: str = "paren"  # header style: "paren" -> 'name (unit)', "suffix" -> 'name_unit'
-    separator: str = ","
-    decimal_comma: bool = False
-    comments: list[str] = field(default_factory=list)
-    kwargs: dict = field(default_factory=dict)
+def _units_argument(draw, table):
+    table.kwargs["units"] = draw(st.sampled_from([None, "SI", "IP", "si"]))
 
-    def header(self, i: int) -> str:
-        if not self.units[i]:
-            return self.names[i]
-        if self.style == "suffix":
-            return f"{self.names[i]}_{self.units[i]}"
-        return f"{self.names[i]} ({self.units[i]})"
 
-    def text(self, newline: str = "\n", final_newline: bool = True) -> str:
-        def cell(value: str) -> str:
-            if self.decimal_comma and re.fullmatch(r"-?\d+\.\d+", value):
-                value = value.replace(".", ",")
-            return value
+def _fill_gaps_argument(draw, table):
+    table.kwargs["fill_gaps"] = draw(st.booleans())
+    table.kwargs["max_gap_hours"] = draw(st.integers(1, 24))
 
-        lines = list(self.comments)
-        lines.append(self.separator.join(self.header(i) for i in range(len(self.names))))
-        lines += [self.separator.join(cell(c) for c in row) for row in self.rows]
-        return newline.join(lines) + (newline if final_newline else "")
+
+ARGUMENTS = {"units_argument": _units_argument, "fill_gaps": _fill_gaps_argument}
+
+
+def weather_tables(base=None):
+    return mutated_tables(
+        BASES,
+        junk=JUNK,
+        extreme=EXTREMES,
+        unit_words=UNIT_WORDS,
+        renames=RENAMES,
+        arguments=ARGUMENTS,
+        base=base,
+    )
 
 
 def _two_days() -> dict[str, np.ndarray]:
@@ -181,6 +129,7 @@ def _base_tables() -> list[Table]:
                 strict=True,
             )
         ],
+        style="paren",
         kwargs={"altitude": 500.0, "units": "IP"},
     )
     european = Table(
@@ -190,6 +139,7 @@ def _base_tables() -> list[Table]:
             [f"{1 + h // 24:02d}.07.2023", f"{h % 24:02d}:00", f"{t:.1f}", f"{rh:.1f}"]
             for h, t, rh in zip(d["hour"], d["drybulb"], d["relative_humidity"], strict=True)
         ],
+        style="paren",
         separator=";",
         decimal_comma=True,
         comments=["# exported from a fictional logger at Linden Vale"],
@@ -234,46 +184,7 @@ BUNDLED_TABLE = _bundled_table()
 _NAMES_PLACE = re.compile(r"\brows?\b|\bcolumns?\b", re.IGNORECASE)
 
 
-#: Defects this fuzz found, reported in /work/notes/robustness.md, as (exception type,
-#: plantside function it was raised in) -> id. While unfixed they are counted, not failed,
-#: here; each has a strict xfail test below that turns red (XPASS) once the fix lands, and
-#: its entry must then be removed from this table.
-KNOWN_DEFECTS: dict[tuple[type, str], str] = {}  # W1-W4 fixed in dbfbede
-
-
-def _known_defect(error: BaseException) -> str | None:
-    frames = traceback.extract_tb(error.__traceback__)
-    ours = [f for f in frames if "/plantside/" in f.filename.replace("\\", "/")]
-    if not ours:
-        return None
-    for (kind, function), defect in KNOWN_DEFECTS.items():
-        if isinstance(error, kind) and ours[-1].name == function:
-            return defect
-    return None
-
-
-def read_and_judge(data: bytes, kwargs: dict):
-    """Read ``data``; return the Weather or the documented error; fail on anything else."""
-    try:
-        weather = read_weather_csv(data, **kwargs)
-    except InputFileError as error:
-        assert error.problems, "InputFileError without any problem listed"
-        for problem in error.problems:
-            # Each problem names where it is: row number(s) and/or the column.
-            assert _NAMES_PLACE.search(problem), f"problem names no row or column: {problem!r}"
-        assert str(error).startswith(error.source)
-        OUTCOMES["refused (InputFileError)"] += 1
-        return error
-    except InputRangeError as error:
-        assert error.field and error.field in str(error), str(error)
-        OUTCOMES["refused (InputRangeError)"] += 1
-        return error
-    except Exception as error:
-        defect = _known_defect(error)
-        if defect is None:
-            raise
-        OUTCOMES[f"known defect {defect} (reported)"] += 1
-        return error
+def _check_weather(weather, kwargs):
     n = weather.hours
     assert n > 0 and n % 24 == 0, n
     for name in ("drybulb", "humidity_ratio", "pressure"):
@@ -285,153 +196,18 @@ def read_and_judge(data: bytes, kwargs: dict):
     assert ((weather.humidity_ratio >= 0.0) & (weather.humidity_ratio <= 0.045)).all()
     assert ((weather.pressure >= 50_000.0) & (weather.pressure <= 110_000.0)).all()
     assert math.isfinite(weather.altitude)
-    OUTCOMES["loaded"] += 1
-    return weather
 
 
-@pytest.fixture(scope="module", autouse=True)
-def _print_case_count(request):
-    OUTCOMES.clear()
-    yield
-    total = sum(OUTCOMES.values())
-    line = f"weather CSV fuzz: {total} cases ran ({dict(sorted(OUTCOMES.items()))})"
-    print(line)
-    capture = request.config.pluginmanager.getplugin("capturemanager")
-    if capture is not None:
-        with capture.global_and_fixture_disabled():
-            print("\n" + line)
-
-
-# ---------------------------------------------------------------------------------------
-# mutations
-# ---------------------------------------------------------------------------------------
-@st.composite
-def mutated_tables(draw, base=None):
-    table = draw(st.sampled_from(BASES)) if base is None else base
-    table = replace(
-        table,
-        names=list(table.names),
-        units=list(table.units),
-        rows=[list(r) for r in table.rows],
-        comments=list(table.comments),
-        kwargs=dict(table.kwargs),
+def read_and_judge(data: bytes, kwargs: dict):
+    """Read ``data``; return the Weather or the documented error; fail on anything else."""
+    return judge(
+        read_weather_csv,
+        data,
+        kwargs,
+        outcomes=OUTCOMES,
+        names_place=_NAMES_PLACE,
+        check_loaded=_check_weather,
     )
-    for _ in range(draw(st.integers(1, 4))):
-        kind = draw(
-            st.sampled_from(
-                [
-                    "drop_column",
-                    "swap_columns",
-                    "swap_headers",
-                    "text_in_number",
-                    "extreme_number",
-                    "unit_word",
-                    "rename_header",
-                    "drop_row",
-                    "repeat_row",
-                    "swap_rows",
-                    "extra_field",
-                    "missing_field",
-                    "blank_line",
-                    "separator",
-                    "decimal_comma",
-                    "units_argument",
-                    "fill_gaps",
-                ]
-            )
-        )
-        width, height = len(table.names), len(table.rows)
-        if kind == "drop_column" and width > 1:
-            i = draw(st.integers(0, width - 1))
-            for part in (table.names, table.units):
-                del part[i]
-            for row in table.rows:
-                if i < len(row):
-                    del row[i]
-        elif kind in ("swap_columns", "swap_headers") and width > 1:
-            i, j = draw(st.integers(0, width - 1)), draw(st.integers(0, width - 1))
-            for part in (table.names, table.units):
-                part[i], part[j] = part[j], part[i]
-            if kind == "swap_columns":
-                for row in table.rows:
-                    if max(i, j) < len(row):
-                        row[i], row[j] = row[j], row[i]
-        elif kind in ("text_in_number", "extreme_number") and height and width:
-            r, c = draw(st.integers(0, height - 1)), draw(st.integers(0, width - 1))
-            pool = JUNK_CELLS if kind == "text_in_number" else EXTREME_NUMBERS
-            if c < len(table.rows[r]):
-                table.rows[r][c] = draw(st.sampled_from(pool))
-        elif kind == "unit_word" and width:
-            i = draw(st.integers(0, width - 1))
-            table.units[i] = draw(st.sampled_from(UNIT_WORDS))
-        elif kind == "rename_header" and width:
-            i = draw(st.integers(0, width - 1))
-            table.names[i] = draw(
-                st.sampled_from(["temp", "wb", "w", "humidity", "p", "x", "", "dry bulb", "hour"])
-            )
-        elif kind == "drop_row" and height:
-            del table.rows[draw(st.integers(0, height - 1))]
-        elif kind == "repeat_row" and height:
-            r = draw(st.integers(0, height - 1))
-            table.rows.insert(r, list(table.rows[r]))
-        elif kind == "swap_rows" and height > 1:
-            i, j = draw(st.integers(0, height - 1)), draw(st.integers(0, height - 1))
-            table.rows[i], table.rows[j] = table.rows[j], table.rows[i]
-        elif kind == "extra_field" and height:
-            table.rows[draw(st.integers(0, height - 1))].append("1.0")
-        elif kind == "missing_field" and height:
-            row = table.rows[draw(st.integers(0, height - 1))]
-            if row:
-                row.pop()
-        elif kind == "blank_line" and height:
-            table.rows.insert(draw(st.integers(0, height)), [])
-        elif kind == "separator":
-            table.separator = draw(st.sampled_from([",", ";", "\t", "|", " "]))
-        elif kind == "decimal_comma":
-            table.decimal_comma = draw(st.booleans())
-        elif kind == "units_argument":
-            table.kwargs["units"] = draw(st.sampled_from([None, "SI", "IP", "si"]))
-        elif kind == "fill_gaps":
-            table.kwargs["fill_gaps"] = draw(st.booleans())
-            table.kwargs["max_gap_hours"] = draw(st.integers(1, 24))
-    return table
-
-
-ENCODINGS = ["utf-8", "utf-8-sig", "utf-16", "utf-16-le", "utf-16-be", "latin-1", "cp1252"]
-
-
-@st.composite
-def file_bytes(draw, table_strategy):
-    """Serialised bytes of a (mutated) table, then byte-level damage."""
-    table = draw(table_strategy)
-    newline = draw(st.sampled_from(["\n", "\r\n", "\r"]))
-    text = table.text(newline, final_newline=draw(st.booleans()))
-    encoding = draw(st.sampled_from(ENCODINGS))
-    try:
-        data = text.encode(encoding)
-    except UnicodeEncodeError:
-        data = text.encode("utf-8")
-    damage = draw(st.sampled_from(["none", "none", "truncate", "junk", "replace", "bom"]))
-    if damage == "truncate":
-        data = data[: draw(st.integers(0, len(data)))]
-    elif damage == "junk":
-        at = draw(st.integers(0, len(data)))
-        data = data[:at] + draw(st.binary(min_size=1, max_size=64)) + data[at:]
-    elif damage == "replace":
-        data = draw(
-            st.one_of(
-                st.just(b""),
-                st.just(b"\n\n\r\n"),
-                st.just(b"\xef\xbb\xbf"),
-                st.just(b"\xff\xfe"),
-                st.just(b"# only a comment\n"),
-                st.binary(max_size=512),
-                st.text(max_size=200).map(lambda s: s.encode("utf-8")),
-            )
-        )
-    elif damage == "bom":
-        data = draw(st.sampled_from([b"\xef\xbb\xbf", b"\xff\xfe", b"\xfe\xff"])) + data
-    return data, table.kwargs
 
 
 # ---------------------------------------------------------------------------------------
@@ -445,19 +221,17 @@ def test_the_unmutated_bases_load():
         assert weather.hours == 48
 
 
-@settings(max_examples=_examples(200), deadline=None, suppress_health_check=[HealthCheck.too_slow])
-@given(file_bytes(mutated_tables()))
+@settings(max_examples=examples(200), deadline=None, suppress_health_check=[HealthCheck.too_slow])
+@given(file_bytes(weather_tables(), ENCODINGS))
 def test_mutated_two_day_files_load_or_fail_cleanly(case):
     data, kwargs = case
     read_and_judge(data, kwargs)
 
 
-@settings(max_examples=_examples(60), deadline=None, suppress_health_check=[HealthCheck.too_slow])
+@settings(max_examples=examples(60), deadline=None, suppress_health_check=[HealthCheck.too_slow])
 @given(
     file_bytes(
-        mutated_tables(
-            base=replace(BUNDLED_TABLE, rows=BUNDLED_TABLE.rows[: 24 * 20]),
-        )
+        weather_tables(base=replace(BUNDLED_TABLE, rows=BUNDLED_TABLE.rows[: 24 * 20])), ENCODINGS
     )
 )
 def test_mutated_bundled_file_loads_or_fails_cleanly(case):
@@ -466,13 +240,13 @@ def test_mutated_bundled_file_loads_or_fails_cleanly(case):
     read_and_judge(data, kwargs)
 
 
-@settings(max_examples=_examples(150), deadline=None)
+@settings(max_examples=examples(150), deadline=None)
 @given(st.binary(max_size=2048))
 def test_arbitrary_bytes_never_raise_anything_else(data):
     read_and_judge(data, {"altitude": 0.0})
 
 
-@settings(max_examples=_examples(100), deadline=None)
+@settings(max_examples=examples(100), deadline=None)
 @given(
     st.text(alphabet=st.sampled_from(list('0123456789.,;-+eE \t\r\n"#abcCF%()_'))), st.booleans()
 )
@@ -490,7 +264,7 @@ def _same_year(a, b):
     )
 
 
-@settings(max_examples=_examples(80), deadline=None)
+@settings(max_examples=examples(80), deadline=None)
 @given(
     st.sampled_from(range(len(BASES))),
     st.permutations(range(4)),
@@ -517,7 +291,7 @@ def test_meaning_preserving_changes_give_the_same_year(index, order, newline, en
     assert _same_year(weather, reference)
 
 
-@settings(max_examples=_examples(80), deadline=None)
+@settings(max_examples=examples(80), deadline=None)
 @given(
     st.sampled_from(range(len(BASES))),
     st.data(),
@@ -526,7 +300,7 @@ def test_meaning_preserving_changes_give_the_same_year(index, order, newline, en
     st.sampled_from(
         [
             j
-            for j in JUNK_CELLS
+            for j in JUNK
             if j.strip() and j.lower() not in ("nan", "n/a") and not set(j) & set(',;"\x00')
         ]
     ),

@@ -11,7 +11,8 @@ ends, truncation, binary junk. Every outcome must be one of:
 - :class:`~plantside.errors.InputFileError` whose every problem names a row and/or a
   column (or the whole file), or :class:`~plantside.errors.InputRangeError`,
 
-never any other exception. Mutations that keep the meaning (column order, CRLF, BOM, UTF-16,
+never any other exception (the harness is ``csv_fuzz``, shared with the weather
+fuzz). Mutations that keep the meaning (column order, CRLF, BOM, UTF-16,
 Windows-1252, semicolons with decimal commas) give the same loads. The number of cases
 run is printed at the end of the module.
 """
@@ -19,113 +20,59 @@ run is printed at the end of the module.
 from __future__ import annotations
 
 import math
-import os
 import re
-import traceback
 from collections import Counter
-from dataclasses import dataclass, field, replace
+from dataclasses import replace
 from pathlib import Path
 
 import numpy as np
 import pytest
+from csv_fuzz import (
+    EXTREME_NUMBERS,
+    JUNK_CELLS,
+    Table,
+    case_count_fixture,
+    examples,
+    file_bytes,
+    judge,
+    mutated_tables,
+)
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 from plantside.air_handler.zone_load_csv import read_zone_loads_csv
 from plantside.air_handler.zone_loads import HourlyZoneLoads
-from plantside.errors import InputFileError, InputRangeError
+from plantside.errors import InputFileError
 
 EXAMPLE = Path(__file__).parents[1] / "example_data" / "scenarios" / "korva_school_zone_loads.csv"
 HOURS = 48
 
 OUTCOMES: Counter = Counter()
+_print_case_count = case_count_fixture(OUTCOMES, "zone-load CSV fuzz")
 
-#: Multiplies every max_examples here (default 1; e.g. PLANTSIDE_FUZZ_SCALE=20 for a long
-#: hunt by hand; CI keeps the default so the three fuzz files stay under a minute).
-FUZZ_SCALE = float(os.environ.get("PLANTSIDE_FUZZ_SCALE", "1"))
-
-
-def _examples(count: int) -> int:
-    return max(1, round(count * FUZZ_SCALE))
-
-
-JUNK_CELLS = [
-    "abc",
-    "N/A",
-    "",
-    " ",
-    "1.2.3",
-    "--",
-    "12 kW",
-    "twelve",
-    "=cmd|' /C calc'!A0",
-    '=HYPERLINK("http://example.invalid")',
-    "@SUM(1+1)",
-    "+1+1",
-    "../../etc/passwd",
-    "C:\\Windows\\system.ini",
-    "/dev/zero",
-    "__import__('os').system('true')",
-    "nan",
-    "inf",
-    "-inf",
-    "Infinity",
-    "1e999",
-    "0x1A",
-    "١٢",
-    "12\u00a05",
-    "1,5",
-    '"quoted',
-    "\x00",
-    "\ufeff12",
-    "maybe",
-]
-EXTREME_NUMBERS = [
-    "1e308",
-    "-1e308",
-    "1e-308",
-    "5e-324",
-    "0",
-    "-0.0",
-    "1e15",
-    "-9999",
-    "100000",
-    "100001",
-    "99999999999999999999",
-    "1E+02",
-    ".5",
-    "+7",
-]
+# The shared pools plus a load with its unit glued on, a word that is not a flag, and
+# the edges of the documented load range.
+JUNK = [*JUNK_CELLS, "12 kW", "maybe"]
+EXTREMES = [*EXTREME_NUMBERS, "100000", "100001"]
 UNIT_WORDS = ["kW", "W", "Btuh", "Btu/h", "MBH", "kw", "tons", "furlongs", "", "%"]
+RENAMES = ["sensible", "latent", "internal", "hoy", "x", "", "Sensible Load"]
+ENCODINGS = ["utf-8", "utf-8-sig", "utf-16", "utf-16-le", "latin-1", "cp1252"]
 
 
-@dataclass
-class Table:
-    names: list[str]
-    units: list[str]
-    rows: list[list[str]]
-    style: str = "suffix"  # "suffix": name_unit; "bracket": name [unit]
-    separator: str = ","
-    decimal_comma: bool = False
-    comments: list[str] = field(default_factory=list)
-    kwargs: dict = field(default_factory=dict)
+def _arguments(draw, table):
+    table.kwargs["units"] = draw(st.sampled_from([None, "SI", "IP", "ip", "metric"]))
+    table.kwargs["expected_hours"] = draw(st.sampled_from([HOURS, HOURS - 1, None]))
 
-    def header(self, i: int) -> str:
-        if not self.units[i]:
-            return self.names[i]
-        if self.style == "bracket":
-            return f"{self.names[i]} [{self.units[i]}]"
-        return f"{self.names[i]}_{self.units[i]}"
 
-    def text(self, newline: str = "\n", final_newline: bool = True) -> str:
-        def cell(value: str) -> str:
-            if self.decimal_comma and re.fullmatch(r"-?\d+\.\d+", value):
-                value = value.replace(".", ",")
-            return value
-
-        lines = list(self.comments)
-        lines.append(self.separator.join(self.header(i) for i in range(len(self.names))))
-        lines += [self.separator.join(cell(c) for c in row) for row in self.rows]
-        return newline.join(lines) + (newline if final_newline else "")
+def zone_load_tables(base=None):
+    return mutated_tables(
+        BASES,
+        junk=JUNK,
+        extreme=EXTREMES,
+        unit_words=UNIT_WORDS,
+        renames=RENAMES,
+        arguments={"arguments": _arguments},
+        base=base,
+    )
 
 
 def _base_tables() -> list[Table]:
@@ -182,43 +129,8 @@ EXAMPLE_TABLE = _example_table()
 
 _NAMES_PLACE = re.compile(r"\brows?\b|\bcolumns?\b|\bfile\b|\bheader\b|\bunits\b", re.I)
 
-#: Defects this fuzz found, reported in /work/notes/robustness.md: (exception type, plantside
-#: function raised in) -> id. Counted, not failed, while unfixed; each has a strict xfail
-#: test below, and the entry must go once the fix lands.
-KNOWN_DEFECTS: dict[tuple[type, str], str] = {}  # Z1 fixed in c080f05
 
-
-def _known_defect(error: BaseException) -> str | None:
-    frames = traceback.extract_tb(error.__traceback__)
-    ours = [f for f in frames if "/plantside/" in f.filename.replace("\\", "/")]
-    if not ours:
-        return None
-    for (kind, function), defect in KNOWN_DEFECTS.items():
-        if isinstance(error, kind) and ours[-1].name == function:
-            return defect
-    return None
-
-
-def read_and_judge(data: bytes, kwargs: dict):
-    """Read ``data``; return the loads or the documented error; fail on anything else."""
-    try:
-        loads = read_zone_loads_csv(data, **kwargs)
-    except InputFileError as error:
-        assert error.problems, "InputFileError without any problem listed"
-        for problem in error.problems:
-            assert _NAMES_PLACE.search(problem), f"problem names no row or column: {problem!r}"
-        OUTCOMES["refused (InputFileError)"] += 1
-        return error
-    except InputRangeError as error:
-        assert error.field and error.field in str(error), str(error)
-        OUTCOMES["refused (InputRangeError)"] += 1
-        return error
-    except Exception as error:
-        defect = _known_defect(error)
-        if defect is None:
-            raise
-        OUTCOMES[f"known defect {defect} (reported)"] += 1
-        return error
+def _check_loads(loads, kwargs):
     assert isinstance(loads, HourlyZoneLoads)
     expected = kwargs.get("expected_hours")
     assert loads.hours == expected if expected else loads.hours in (8760, 8784), loads.hours
@@ -232,144 +144,18 @@ def read_and_judge(data: bytes, kwargs: dict):
         assert np.isfinite(values).all(), f"non-finite {name} loaded"
         assert ((values >= low) & (values <= high)).all(), name
     assert loads.occupied.dtype == bool and loads.occupied.shape == (loads.hours,)
-    OUTCOMES["loaded"] += 1
-    return loads
 
 
-@pytest.fixture(scope="module", autouse=True)
-def _print_case_count(request):
-    OUTCOMES.clear()
-    yield
-    total = sum(OUTCOMES.values())
-    line = f"zone-load CSV fuzz: {total} cases ran ({dict(sorted(OUTCOMES.items()))})"
-    print(line)
-    capture = request.config.pluginmanager.getplugin("capturemanager")
-    if capture is not None:
-        with capture.global_and_fixture_disabled():
-            print("\n" + line)
-
-
-@st.composite
-def mutated_tables(draw, base=None):
-    table = draw(st.sampled_from(BASES)) if base is None else base
-    table = replace(
-        table,
-        names=list(table.names),
-        units=list(table.units),
-        rows=[list(r) for r in table.rows],
-        comments=list(table.comments),
-        kwargs=dict(table.kwargs),
+def read_and_judge(data: bytes, kwargs: dict):
+    """Read ``data``; return the loads or the documented error; fail on anything else."""
+    return judge(
+        read_zone_loads_csv,
+        data,
+        kwargs,
+        outcomes=OUTCOMES,
+        names_place=_NAMES_PLACE,
+        check_loaded=_check_loads,
     )
-    for _ in range(draw(st.integers(1, 4))):
-        kind = draw(
-            st.sampled_from(
-                [
-                    "drop_column",
-                    "swap_columns",
-                    "swap_headers",
-                    "text_in_number",
-                    "extreme_number",
-                    "unit_word",
-                    "rename_header",
-                    "drop_row",
-                    "repeat_row",
-                    "swap_rows",
-                    "extra_field",
-                    "missing_field",
-                    "blank_line",
-                    "separator",
-                    "decimal_comma",
-                    "arguments",
-                ]
-            )
-        )
-        width, height = len(table.names), len(table.rows)
-        if kind == "drop_column" and width > 1:
-            i = draw(st.integers(0, width - 1))
-            for part in (table.names, table.units):
-                del part[i]
-            for row in table.rows:
-                if i < len(row):
-                    del row[i]
-        elif kind in ("swap_columns", "swap_headers") and width > 1:
-            i, j = draw(st.integers(0, width - 1)), draw(st.integers(0, width - 1))
-            for part in (table.names, table.units):
-                part[i], part[j] = part[j], part[i]
-            if kind == "swap_columns":
-                for row in table.rows:
-                    if max(i, j) < len(row):
-                        row[i], row[j] = row[j], row[i]
-        elif kind in ("text_in_number", "extreme_number") and height and width:
-            r, c = draw(st.integers(0, height - 1)), draw(st.integers(0, width - 1))
-            pool = JUNK_CELLS if kind == "text_in_number" else EXTREME_NUMBERS
-            if c < len(table.rows[r]):
-                table.rows[r][c] = draw(st.sampled_from(pool))
-        elif kind == "unit_word" and width:
-            table.units[draw(st.integers(0, width - 1))] = draw(st.sampled_from(UNIT_WORDS))
-        elif kind == "rename_header" and width:
-            table.names[draw(st.integers(0, width - 1))] = draw(
-                st.sampled_from(["sensible", "latent", "internal", "hoy", "x", "", "Sensible Load"])
-            )
-        elif kind == "drop_row" and height:
-            del table.rows[draw(st.integers(0, height - 1))]
-        elif kind == "repeat_row" and height:
-            r = draw(st.integers(0, height - 1))
-            table.rows.insert(r, list(table.rows[r]))
-        elif kind == "swap_rows" and height > 1:
-            i, j = draw(st.integers(0, height - 1)), draw(st.integers(0, height - 1))
-            table.rows[i], table.rows[j] = table.rows[j], table.rows[i]
-        elif kind == "extra_field" and height:
-            table.rows[draw(st.integers(0, height - 1))].append(draw(st.sampled_from(["1", ""])))
-        elif kind == "missing_field" and height:
-            row = table.rows[draw(st.integers(0, height - 1))]
-            if row:
-                row.pop()
-        elif kind == "blank_line" and height:
-            table.rows.insert(draw(st.integers(0, height)), [])
-        elif kind == "separator":
-            table.separator = draw(st.sampled_from([",", ";", "\t", "|", " "]))
-        elif kind == "decimal_comma":
-            table.decimal_comma = draw(st.booleans())
-        elif kind == "arguments":
-            table.kwargs["units"] = draw(st.sampled_from([None, "SI", "IP", "ip", "metric"]))
-            table.kwargs["expected_hours"] = draw(st.sampled_from([HOURS, HOURS - 1, None]))
-    return table
-
-
-ENCODINGS = ["utf-8", "utf-8-sig", "utf-16", "utf-16-le", "latin-1", "cp1252"]
-
-
-@st.composite
-def file_bytes(draw, table_strategy):
-    table = draw(table_strategy)
-    newline = draw(st.sampled_from(["\n", "\r\n", "\r"]))
-    text = table.text(newline, final_newline=draw(st.booleans()))
-    encoding = draw(st.sampled_from(ENCODINGS))
-    try:
-        data = text.encode(encoding)
-    except UnicodeEncodeError:
-        data = text.encode("utf-8")
-    damage = draw(st.sampled_from(["none", "none", "truncate", "junk", "replace", "bom"]))
-    if damage == "truncate":
-        data = data[: draw(st.integers(0, len(data)))]
-    elif damage == "junk":
-        at = draw(st.integers(0, len(data)))
-        data = data[:at] + draw(st.binary(min_size=1, max_size=64)) + data[at:]
-    elif damage == "replace":
-        data = draw(
-            st.one_of(
-                st.just(b""),
-                st.just(b"\n\n\r\n"),
-                st.just(b"\xef\xbb\xbf"),
-                st.just(b"\xff\xfe"),
-                st.just(b"# only a comment\n"),
-                st.binary(max_size=512),
-                st.text(max_size=200).map(lambda s: s.encode("utf-8")),
-            )
-        )
-    elif damage == "bom":
-        data = draw(st.sampled_from([b"\xef\xbb\xbf", b"\xff\xfe", b"\xfe\xff"])) + data
-    return data, table.kwargs
 
 
 def test_the_unmutated_bases_load():
@@ -385,28 +171,28 @@ def test_the_unmutated_bases_load():
     np.testing.assert_array_equal(ip.occupied, si.occupied)
 
 
-@settings(max_examples=_examples(200), deadline=None, suppress_health_check=[HealthCheck.too_slow])
-@given(file_bytes(mutated_tables()))
+@settings(max_examples=examples(200), deadline=None, suppress_health_check=[HealthCheck.too_slow])
+@given(file_bytes(zone_load_tables(), ENCODINGS))
 def test_mutated_files_load_or_fail_cleanly(case):
     data, kwargs = case
     read_and_judge(data, kwargs)
 
 
-@settings(max_examples=_examples(30), deadline=None, suppress_health_check=[HealthCheck.too_slow])
-@given(file_bytes(mutated_tables(base=EXAMPLE_TABLE)))
+@settings(max_examples=examples(30), deadline=None, suppress_health_check=[HealthCheck.too_slow])
+@given(file_bytes(zone_load_tables(base=EXAMPLE_TABLE), ENCODINGS))
 def test_mutated_example_year_loads_or_fails_cleanly(case):
     # The bundled example (a full year, 8,760 rows) mutated the same way.
     data, kwargs = case
     read_and_judge(data, kwargs)
 
 
-@settings(max_examples=_examples(120), deadline=None)
+@settings(max_examples=examples(120), deadline=None)
 @given(st.binary(max_size=2048), st.sampled_from([None, 1, 24, 8760]))
 def test_arbitrary_bytes_never_raise_anything_else(data, hours):
     read_and_judge(data, {"expected_hours": hours})
 
 
-@settings(max_examples=_examples(80), deadline=None)
+@settings(max_examples=examples(80), deadline=None)
 @given(
     st.text(alphabet=st.sampled_from(list('0123456789.,;-+eE \t\r\n"#kWsensibllatntBuh_[]'))),
     st.sampled_from([None, 1, 2, 3]),
@@ -415,7 +201,7 @@ def test_csv_like_text_never_raises_anything_else(text, hours):
     read_and_judge(text.encode("utf-8"), {"expected_hours": hours, "units": "SI"})
 
 
-@settings(max_examples=_examples(60), deadline=None)
+@settings(max_examples=examples(60), deadline=None)
 @given(
     st.sampled_from(range(len(BASES))),
     st.data(),
@@ -441,14 +227,14 @@ def test_meaning_preserving_changes_give_the_same_loads(index, data, newline, en
         np.testing.assert_array_equal(getattr(loads, name), getattr(reference, name))
 
 
-@settings(max_examples=_examples(80), deadline=None)
+@settings(max_examples=examples(80), deadline=None)
 @given(
     st.sampled_from(range(len(BASES))),
     st.data(),
     st.sampled_from(
         [
             j
-            for j in JUNK_CELLS
+            for j in JUNK
             if j.strip() and not set(j) & set(',;"\x00') and j not in ("١٢", "\ufeff12")
         ]
     ),
