@@ -50,6 +50,7 @@ from plantside.constants import CP_DRY_AIR, CP_LIQUID_WATER, CP_WATER_VAPOR, LAT
 from plantside.errors import InputRangeError, check_range
 
 __all__ = [
+    "CoilLeavingState",
     "CoilLoad",
     "apparatus_dew_point_from_bypass_factor",
     "bypass_factor_from_apparatus_dew_point",
@@ -67,6 +68,15 @@ class CoilLoad(NamedTuple):
     latent: np.ndarray  #: latent load [kW]
     condensate: np.ndarray  #: condensate rate [kg/s]
     condensate_heat: np.ndarray  #: enthalpy leaving with the condensate [kW]
+
+
+class CoilLeavingState(NamedTuple):
+    """Leaving humidity of a cooling coil and the coil process that gives it."""
+
+    humidity_ratio: np.ndarray  #: leaving humidity ratio [kg/kg dry air]
+    apparatus_dew_point: np.ndarray  #: apparatus (or leaving) dew point [°C]; NaN when dry
+    bypass_factor: np.ndarray  #: bypass factor [-]; NaN when dry or for a dew-point limit
+    wet: np.ndarray  #: True where moisture condenses
 
 
 def apparatus_dew_point_from_bypass_factor(entering_drybulb, leaving_drybulb, bypass_factor):
@@ -146,14 +156,11 @@ def cooling_coil_leaving_humidity_ratio(
 
     Returns
     -------
-    leaving_humidity_ratio : numpy.ndarray
-        [kg/kg dry air].
-    apparatus_dew_point : numpy.ndarray
-        [°C] (the leaving dew point for the dew-point model; NaN where the coil is dry).
-    bypass_factor : numpy.ndarray
-        [-] (NaN for the dew-point model and where the coil is dry).
-    wet : numpy.ndarray of bool
-        True where moisture condenses.
+    CoilLeavingState
+        Named tuple of ``humidity_ratio``, the leaving humidity ratio [kg/kg dry air];
+        ``apparatus_dew_point`` [°C] (the leaving dew point for the dew-point model;
+        NaN where the coil is dry); ``bypass_factor`` [-] (NaN for the dew-point model
+        and where the coil is dry); ``wet`` (bool, True where moisture condenses).
 
     References
     ----------
@@ -186,7 +193,7 @@ def cooling_coil_leaving_humidity_ratio(
         wet = cooling & (w1 > w_adp)
         w2 = np.where(wet, np.minimum(w_adp, ws2), w1)
         adp = np.where(wet, tdp, np.nan)
-        return w2, adp, np.full(np.shape(w2), np.nan), wet
+        return CoilLeavingState(w2, adp, np.full(np.shape(w2), np.nan), wet)
     if bypass_factor is not None:
         bf = check_range(
             "bypass_factor", bypass_factor, 0.0, 1.0, "(fraction)", high_inclusive=False
@@ -207,7 +214,7 @@ def cooling_coil_leaving_humidity_ratio(
     wet = cooling & (w1 > w_adp)
     w_line = bf * w1 + (1.0 - bf) * w_adp
     w2 = np.where(wet, np.minimum(w_line, ws2), w1)
-    return (
+    return CoilLeavingState(
         w2,
         np.where(wet, adp, np.nan),
         np.where(wet, bf, np.nan),

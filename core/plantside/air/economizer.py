@@ -51,6 +51,7 @@ References
 from __future__ import annotations
 
 from enum import StrEnum
+from typing import NamedTuple
 
 import numpy as np
 
@@ -71,6 +72,7 @@ __all__ = [
     "MODE_MINIMUM_OUTDOOR_AIR",
     "MODE_OFF",
     "EconomizerControl",
+    "EconomizerPosition",
     "economizer_enabled",
     "economizer_outdoor_air_fraction",
     "enthalpy_si_from_ip_table",
@@ -117,6 +119,13 @@ ECONOMIZER_MODES = (
     MODE_HEATING,
     MODE_ALL_OUTDOOR_AIR,
 ) = range(len(ECONOMIZER_MODES))
+
+
+class EconomizerPosition(NamedTuple):
+    """Damper position and economizer mode of each hour."""
+
+    fraction: np.ndarray  #: outdoor-air mass fraction [-]
+    mode: np.ndarray  #: mode code (int8), index into :data:`ECONOMIZER_MODES`
 
 
 def enthalpy_si_from_ip_table(enthalpy_btulb):
@@ -185,15 +194,24 @@ def economizer_enabled(
     shape = np.broadcast_shapes(t_o.shape, h_o.shape, t_r.shape, h_r.shape)
     if control is EconomizerControl.NONE:
         return np.zeros(shape, dtype=bool)
-    if control is EconomizerControl.FIXED_DRYBULB:
-        exceeded = t_o > drybulb_limit
-    elif control is EconomizerControl.DIFFERENTIAL_DRYBULB:
-        exceeded = t_o > t_r
-    elif control is EconomizerControl.FIXED_ENTHALPY:
-        exceeded = (h_o > enthalpy_limit) | (t_o > drybulb_limit)
-    else:  # differential enthalpy with fixed dry-bulb limit
-        exceeded = (h_o > h_r) | (t_o > drybulb_limit)
+    exceeded = _high_limit_exceeded(control, t_o, h_o, t_r, h_r, drybulb_limit, enthalpy_limit)
     return np.broadcast_to(~exceeded, shape)
+
+
+def _high_limit_exceeded(control, t_o, h_o, t_r, h_r, t_limit, h_limit):
+    """The high-limit shutoff decision of Table 6.5.1.1.3, written once.
+
+    True where the outdoor air exceeds the limit of ``control`` (not ``NONE``): used by
+    :func:`economizer_enabled` and by the damper control of the year model.
+    """
+    if control is EconomizerControl.FIXED_DRYBULB:
+        return t_o > t_limit
+    if control is EconomizerControl.DIFFERENTIAL_DRYBULB:
+        return t_o > t_r
+    if control is EconomizerControl.FIXED_ENTHALPY:
+        return (h_o > h_limit) | (t_o > t_limit)
+    # differential enthalpy with the fixed dry-bulb limit
+    return (h_o > h_r) | (t_o > t_limit)
 
 
 def economizer_outdoor_air_fraction(
@@ -235,10 +253,9 @@ def economizer_outdoor_air_fraction(
 
     Returns
     -------
-    fraction : numpy.ndarray
-        Outdoor-air mass fraction [-].
-    mode : numpy.ndarray of int8
-        Mode code, index into :data:`ECONOMIZER_MODES`.
+    EconomizerPosition
+        Named tuple of ``fraction``, the outdoor-air mass fraction [-], and ``mode``,
+        the int8 mode code (index into :data:`ECONOMIZER_MODES`).
 
     Notes
     -----
@@ -276,7 +293,7 @@ def economizer_outdoor_air_fraction(
         enthalpy_limit,
         heating,
     )
-    return (
+    return EconomizerPosition(
         np.broadcast_to(fraction, shape).astype(float),
         np.broadcast_to(mode, shape).astype(np.int8),
     )
@@ -313,14 +330,7 @@ def _damper_control(
             mode == MODE_FREE_COOLING, x_mod, np.where(mode == MODE_INTEGRATED, 1.0, x_min)
         )
         return fraction, mode
-    if control is EconomizerControl.FIXED_DRYBULB:
-        exceeded = t_o > t_limit
-    elif control is EconomizerControl.DIFFERENTIAL_DRYBULB:
-        exceeded = t_o > t_r
-    elif control is EconomizerControl.FIXED_ENTHALPY:
-        exceeded = (h_o > h_limit) | (t_o > t_limit)
-    else:
-        exceeded = (h_o > h_r) | (t_o > t_limit)
+    exceeded = _high_limit_exceeded(control, t_o, h_o, t_r, h_r, t_limit, h_limit)
     x_need = _fraction_for_setpoint(ts, w_o, h_o, w_r, h_r)
     cold = t_o <= ts
     # Cold outdoor air: modulate to the set point, never below the minimum.

@@ -31,18 +31,27 @@ References
 
 from __future__ import annotations
 
+from typing import NamedTuple
+
 import numpy as np
 
 from plantside.air.mixing import _enthalpy
+from plantside.constants import CP_DRY_AIR, CP_WATER_VAPOR
 from plantside.errors import check_range
 
 __all__ = [
+    "RecoveredAir",
     "recovery_fraction_for_mixed_drybulb",
     "recovery_leaving_state",
     "total_effectiveness",
 ]
 
-_CP_A, _CP_V = 1.006, 1.86  # Eq. 32 of ASHRAE Handbook Fundamentals 2017 Ch. 1
+
+class RecoveredAir(NamedTuple):
+    """Outdoor air leaving an energy recovery device."""
+
+    drybulb: np.ndarray  #: leaving dry bulb [°C]
+    humidity_ratio: np.ndarray  #: leaving humidity ratio [kg/kg dry air]
 
 
 def recovery_leaving_state(
@@ -76,8 +85,9 @@ def recovery_leaving_state(
 
     Returns
     -------
-    tuple of numpy.ndarray
-        Dry bulb [°C] and humidity ratio [kg/kg dry air] of the recovered outdoor air.
+    RecoveredAir
+        ``drybulb`` [°C] and ``humidity_ratio`` [kg/kg dry air] of the outdoor air
+        leaving the device (a named tuple).
 
     References
     ----------
@@ -95,7 +105,7 @@ def recovery_leaving_state(
     f = np.asarray(fraction, dtype=float)
     t2 = t1 - f * np.asarray(sensible_effectiveness, float) * (t1 - t3)
     w2 = w1 - f * np.asarray(latent_effectiveness, float) * (w1 - w3)
-    return t2, w2
+    return RecoveredAir(t2, w2)
 
 
 def total_effectiveness(
@@ -191,10 +201,10 @@ def recovery_fraction_for_mixed_drybulb(
     tr, wr = np.asarray(return_drybulb, float), np.asarray(return_humidity_ratio, float)
     a = np.asarray(sensible_effectiveness, float) * (t3 - t1)
     b = np.asarray(latent_effectiveness, float) * (w3 - w1)
-    c1 = _CP_A + _CP_V * w1
-    cr = _CP_A + _CP_V * wr
-    A = _CP_V * x * a * b
-    B = x * (a * c1 + _CP_V * b * (t1 - T))
+    c1 = CP_DRY_AIR + CP_WATER_VAPOR * w1
+    cr = CP_DRY_AIR + CP_WATER_VAPOR * wr
+    A = CP_WATER_VAPOR * x * a * b
+    B = x * (a * c1 + CP_WATER_VAPOR * b * (t1 - T))
     C = x * c1 * t1 + (1.0 - x) * cr * tr - T * (x * c1 + (1.0 - x) * cr)
     with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
         root = np.sqrt(B * B - 4.0 * A * C)

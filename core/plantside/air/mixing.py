@@ -19,16 +19,27 @@ References
 
 from __future__ import annotations
 
+from typing import NamedTuple
+
 import numpy as np
 
 from plantside.constants import CP_DRY_AIR, CP_WATER_VAPOR, LATENT_HEAT_0C
 from plantside.errors import check_range
 
 __all__ = [
+    "MixedState",
     "mixed_state",
     "mixed_state_from_flows",
     "outdoor_fraction_for_mixed_drybulb",
 ]
+
+
+class MixedState(NamedTuple):
+    """State of a mixture of two moist-air streams."""
+
+    drybulb: np.ndarray  #: mixed dry bulb [°C]
+    humidity_ratio: np.ndarray  #: mixed humidity ratio [kg/kg dry air]
+    enthalpy: np.ndarray  #: mixed enthalpy [kJ/kg dry air]
 
 
 def _enthalpy(t, w):
@@ -42,7 +53,7 @@ def _mix(x, t_o, w_o, t_r, w_r):
     w = w_r + x * (w_o - w_r)
     h = h_r + x * (h_o - h_r)
     t = (h - LATENT_HEAT_0C * w) / (CP_DRY_AIR + CP_WATER_VAPOR * w)
-    return t, w, h
+    return MixedState(t, w, h)
 
 
 def mixed_state(
@@ -69,8 +80,9 @@ def mixed_state(
 
     Returns
     -------
-    tuple of numpy.ndarray
-        Mixed dry bulb [°C], humidity ratio [kg/kg dry air], enthalpy [kJ/kg dry air].
+    MixedState
+        ``drybulb`` [°C], ``humidity_ratio`` [kg/kg dry air], ``enthalpy`` [kJ/kg dry air]
+        of the mixture (a named tuple: unpacks as before).
 
     Notes
     -----
@@ -109,8 +121,9 @@ def mixed_state_from_flows(
 
     Returns
     -------
-    tuple of numpy.ndarray
-        Mixed dry bulb [°C], humidity ratio [kg/kg dry air], enthalpy [kJ/kg dry air].
+    MixedState
+        ``drybulb`` [°C], ``humidity_ratio`` [kg/kg dry air], ``enthalpy`` [kJ/kg dry air]
+        of the mixture (a named tuple: unpacks as before).
 
     References
     ----------
