@@ -52,7 +52,7 @@ Validation
 ----------
 Every problem found is collected and reported together in one
 :class:`~plantside.errors.InputFileError`, each naming its row number(s) (line
-numbers of the file, the header being row 1 after any comment lines) and its
+numbers of the file, counting comment lines and lines skipped above the header) and its
 column. Nothing is silently dropped:
 
 - missing or unrecognised required columns, ambiguous columns, duplicated headers;
