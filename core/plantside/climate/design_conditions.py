@@ -92,6 +92,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, field
+from typing import NamedTuple
 
 import numpy as np
 import pandas as pd
@@ -103,6 +104,8 @@ from plantside.errors import InputRangeError, check_range
 __all__ = [
     "COOLING_PERCENTS",
     "HEATING_PERCENTS",
+    "CoincidentMean",
+    "DailyRange",
     "DesignCondition",
     "DesignConditions",
     "coincident_mean",
@@ -305,6 +308,21 @@ def value_exceeded_by_percent(values, percent) -> np.ndarray:
     return result[()] if np.ndim(result) == 0 else result
 
 
+class CoincidentMean(NamedTuple):
+    """Mean of a coincident quantity near a design value (:func:`coincident_mean`)."""
+
+    mean: float  #: mean of the coincident quantity (its own unit)
+    hours: int  #: hours averaged over
+    band: float  #: half-width of the band used (unit of the design quantity)
+
+
+class DailyRange(NamedTuple):
+    """Warmest month of a record and its mean daily dry-bulb range."""
+
+    month: int  #: warmest month, 1-12
+    mean_daily_range: float  #: mean daily dry-bulb range of that month [K]
+
+
 def coincident_mean(
     design_quantity, design_value, coincident_quantity, band, min_hours=5, max_doublings=6
 ):
@@ -327,8 +345,9 @@ def coincident_mean(
 
     Returns
     -------
-    tuple
-        ``(mean, hours, band_used)``.
+    CoincidentMean
+        Named tuple of ``mean`` (unit of the coincident quantity), ``hours`` averaged
+        over and ``band`` (the half-width used, unit of the design quantity).
     """
     distance = np.abs(np.asarray(design_quantity, float) - design_value)
     coincident = np.asarray(coincident_quantity, float)
@@ -342,11 +361,11 @@ def coincident_mean(
     if count == 0:
         # Cannot happen for a design value taken from the same record; kept as a guard.
         nearest = np.argmin(distance)
-        return float(coincident[nearest]), 1, float(distance[nearest])
-    return float(coincident[inside].mean()), count, width
+        return CoincidentMean(float(coincident[nearest]), 1, float(distance[nearest]))
+    return CoincidentMean(float(coincident[inside].mean()), count, width)
 
 
-def mean_daily_range(weather: Weather) -> tuple[int, float]:
+def mean_daily_range(weather: Weather) -> DailyRange:
     """Warmest month and the mean daily dry-bulb range over its days.
 
     Parameters
@@ -356,8 +375,8 @@ def mean_daily_range(weather: Weather) -> tuple[int, float]:
 
     Returns
     -------
-    tuple
-        ``(warmest_month, mean_daily_range)``: month 1-12 and range [K].
+    DailyRange
+        Named tuple of ``month`` (the warmest, 1-12) and ``mean_daily_range`` [K].
     """
     days = weather.hours // 24
     if days == 0:
@@ -374,7 +393,7 @@ def mean_daily_range(weather: Weather) -> tuple[int, float]:
     in_month = day_month == warmest
     if not np.any(in_month):
         raise InputRangeError("weather", f"no whole day in the warmest month {warmest}")
-    return warmest, float(ranges[in_month].mean())
+    return DailyRange(warmest, float(ranges[in_month].mean()))
 
 
 def _state(kind, percent, drybulb, humidity_ratio, pressure, hours, band):

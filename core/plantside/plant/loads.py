@@ -30,6 +30,7 @@ reported with their definitions.
 from __future__ import annotations
 
 from collections.abc import Mapping, Sequence
+from typing import NamedTuple
 
 import numpy as np
 import pandas as pd
@@ -38,6 +39,7 @@ from plantside.errors import InputRangeError, check_range
 
 __all__ = [
     "DISTRIBUTION_GAIN_RANGE_PERCENT",
+    "LoadMatrix",
     "coincident_load",
     "diversity_table",
     "hourly_loads",
@@ -91,9 +93,14 @@ def hourly_loads(loads, field: str = "loads") -> np.ndarray:
     return arr
 
 
-def load_matrix(
-    loads, names: Sequence[str] | None = None, field: str = "loads"
-) -> tuple[np.ndarray, list[str]]:
+class LoadMatrix(NamedTuple):
+    """Several units' hourly loads stacked as hours x units, with the units' names."""
+
+    matrix: np.ndarray  #: loads [kW], shape (hours, units)
+    names: list[str]  #: one name per unit
+
+
+def load_matrix(loads, names: Sequence[str] | None = None, field: str = "loads") -> LoadMatrix:
     """Validate several units' hourly loads and stack them as hours x units.
 
     Parameters
@@ -111,10 +118,9 @@ def load_matrix(
 
     Returns
     -------
-    matrix : numpy.ndarray
-        Float array of shape (hours, units) [kW].
-    names : list of str
-        One name per unit.
+    LoadMatrix
+        Named tuple of ``matrix``, a float array of shape (hours, units) [kW], and
+        ``names``, one name per unit.
 
     Raises
     ------
@@ -166,7 +172,7 @@ def load_matrix(
             f"names has {len(names)} entries but {field} has {len(arrays)} units",
             f"{len(arrays)} names",
         )
-    return matrix, names
+    return LoadMatrix(matrix, names)
 
 
 def _distribution_factor(distribution_gain_percent: float) -> float:

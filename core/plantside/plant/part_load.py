@@ -31,6 +31,8 @@ Load-duration curve
 
 from __future__ import annotations
 
+from typing import NamedTuple
+
 import numpy as np
 import pandas as pd
 
@@ -39,6 +41,7 @@ from plantside.plant.loads import hourly_loads
 
 __all__ = [
     "NO_LOAD_FRACTION_OF_PEAK",
+    "LoadBands",
     "band_edges",
     "band_index_from_ratio",
     "band_table_labels",
@@ -112,13 +115,21 @@ def band_index_from_ratio(ratio, bands: int) -> np.ndarray:
     return np.searchsorted(edges, np.asarray(ratio, dtype=float), side="left")
 
 
-def band_edges(bands: int) -> tuple[list[str], np.ndarray, np.ndarray]:
+class LoadBands(NamedTuple):
+    """Labels and edges of the part-load bands (:func:`band_edges`)."""
+
+    labels: list[str]  #: band labels, e.g. ``"20-30 %"``
+    lower: np.ndarray  #: lower edges [% of capacity]
+    upper: np.ndarray  #: upper edges [% of capacity]
+
+
+def band_edges(bands: int) -> LoadBands:
     """Labels and lower and upper edges [%] of bands 1..bands (without the band above 100 %)."""
     k = np.arange(1, bands + 1)
     lower = (k - 1) * 100.0 / bands
     upper = k * 100.0 / bands
     labels = [f"{lo:g}-{hi:g} %" for lo, hi in zip(lower, upper, strict=True)]
-    return labels, lower, upper
+    return LoadBands(labels, lower, upper)
 
 
 def band_table_labels(bands: int) -> pd.DataFrame:

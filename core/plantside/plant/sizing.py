@@ -97,7 +97,7 @@ def load_exceeded(loads, exceedance_percent):
         Load [kW], of shape ``shape(exceedance_percent) + loads.shape[1:]``.
     """
     if np.ndim(loads) == 2 and np.shape(loads)[0] > 0:
-        arr = load_matrix(np.asarray(loads, dtype=float))[0]
+        arr = load_matrix(np.asarray(loads, dtype=float)).matrix
     else:
         arr = hourly_loads(loads)
     percent = check_range(
