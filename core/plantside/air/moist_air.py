@@ -30,14 +30,25 @@ from functools import cached_property
 import numpy as np
 
 from plantside.constants import (
+    CLAUSIUS_CLAPEYRON_ICE_K,
+    CLAUSIUS_CLAPEYRON_WATER_K,
     CP_DRY_AIR,
+    CP_ICE,
     CP_LIQUID_WATER,
     CP_WATER_VAPOR,
+    DEW_POINT_ICE_COEFFICIENTS,
+    DEW_POINT_WATER_COEFFICIENTS,
+    DEW_POINT_WATER_EXPONENT,
     DRYBULB_MAX_C,
     DRYBULB_MIN_C,
     LATENT_HEAT_0C,
+    LATENT_HEAT_ICE_WET_BULB,
     MOLAR_MASS_RATIO,
     R_DRY_AIR,
+    SATURATION_ICE_COEFFICIENTS,
+    SATURATION_WATER_COEFFICIENTS,
+    STANDARD_ATMOSPHERE_EXPONENT,
+    STANDARD_ATMOSPHERE_LAPSE,
     STANDARD_PRESSURE,
     TRIPLE_POINT_C,
     VOLUME_WATER_FACTOR,
@@ -80,24 +91,14 @@ _SATURATION_SLACK = 1e-9
 HUMIDITY_RATIO_MAX = 1.0
 _PW_MAX_FRACTION = HUMIDITY_RATIO_MAX / (MOLAR_MASS_RATIO + HUMIDITY_RATIO_MAX)
 
-# Coefficients of Eqs. 5 (over ice) and 6 (over water) of [1], from [2].
-_C1, _C2, _C3, _C4, _C5, _C6, _C7 = (
-    -5.6745359e03,
-    6.3925247e00,
-    -9.6778430e-03,
-    6.2215701e-07,
-    2.0747825e-09,
-    -9.4840240e-13,
-    4.1635019e00,
-)
-_C8, _C9, _C10, _C11, _C12, _C13 = (
-    -5.8002206e03,
-    1.3914993e00,
-    -4.8640239e-02,
-    4.1764768e-05,
-    -1.4452093e-08,
-    6.5459673e00,
-)
+# Coefficients of Eqs. 5 (over ice) and 6 (over water) of [1], from [2]
+# (plantside.constants holds them with their units).
+_C1, _C2, _C3, _C4, _C5, _C6, _C7 = SATURATION_ICE_COEFFICIENTS
+_C8, _C9, _C10, _C11, _C12, _C13 = SATURATION_WATER_COEFFICIENTS
+# Wet-bulb equation coefficients a, b, c of Eq. 33 (over water) and Eq. 35 (over ice):
+# W = ((a - b t*) Ws* - 1.006 (t - t*)) / (a + 1.86 t - c t*), b = c - 1.86.
+_WET_BULB_WATER = (LATENT_HEAT_0C, CP_LIQUID_WATER - CP_WATER_VAPOR, CP_LIQUID_WATER)
+_WET_BULB_ICE = (LATENT_HEAT_ICE_WET_BULB, CP_ICE - CP_WATER_VAPOR, CP_ICE)
 
 
 # ---------------------------------------------------------------------------------------
@@ -177,32 +178,15 @@ def _piecewise(drybulb, ice_form, water_form):
     return np.where(on_ice, ice_form(kelvin), water_form(kelvin))
 
 
-def _dln_pws_dt_ice(kelvin):
-    return (
-        -_C1 / kelvin**2
-        + _C3
-        + kelvin * (2 * _C4 + kelvin * (3 * _C5 + 4 * _C6 * kelvin))
-        + _C7 / kelvin
-    )
-
-
-def _dln_pws_dt_water(kelvin):
-    return -_C8 / kelvin**2 + _C10 + kelvin * (2 * _C11 + 3 * _C12 * kelvin) + _C13 / kelvin
-
-
 def _ln_pws(drybulb):
     return _piecewise(drybulb, _ln_pws_ice, _ln_pws_water)
-
-
-def _dln_pws_dt(drybulb):
-    return _piecewise(drybulb, _dln_pws_dt_ice, _dln_pws_dt_water)
 
 
 def _ln_pws_with_slope(drybulb):
     """ln pws [ln Pa] and d(ln pws)/dt [1/K] in one pass (for Newton iterations).
 
-    Same Eqs. 5 and 6 of [1] as :func:`_ln_pws` and :func:`_dln_pws_dt`, sharing
-    ln T and 1/T between the value and the slope.
+    Same Eqs. 5 and 6 of [1] as :func:`_ln_pws` with their derivative, sharing ln T
+    and 1/T between the value and the slope.
     """
     kelvin = drybulb + ZERO_CELSIUS
     inverse = 1.0 / kelvin
@@ -375,7 +359,9 @@ def pressure_from_altitude(altitude, *, check=True):
     z = _as_float(altitude)
     if check:
         check_range("altitude", z, -500.0, 9000.0, "m")
-    return _out(STANDARD_PRESSURE * (1.0 - 2.25577e-5 * z) ** 5.2559)
+    return _out(
+        STANDARD_PRESSURE * (1.0 - STANDARD_ATMOSPHERE_LAPSE * z) ** STANDARD_ATMOSPHERE_EXPONENT
+    )
 
 
 def altitude_from_pressure(pressure, *, check=True):
@@ -394,7 +380,10 @@ def altitude_from_pressure(pressure, *, check=True):
     p = _as_float(pressure)
     if check:
         _check_pressure(p)
-    return _out((1.0 - (p / STANDARD_PRESSURE) ** (1.0 / 5.2559)) / 2.25577e-5)
+    return _out(
+        (1.0 - (p / STANDARD_PRESSURE) ** (1.0 / STANDARD_ATMOSPHERE_EXPONENT))
+        / STANDARD_ATMOSPHERE_LAPSE
+    )
 
 
 # ---------------------------------------------------------------------------------------
@@ -473,7 +462,8 @@ def saturation_humidity_ratio(drybulb, pressure, *, check=True):
 
     References
     ----------
-    ASHRAE Handbook Fundamentals 2017, Ch. 1, Eq. 23: Ws = 0.621945 pws / (p - pws).
+    ASHRAE Handbook Fundamentals 2017, Ch. 1, Eq. 20 at saturation (pw = pws):
+    Ws = 0.621945 pws / (p - pws).
     """
     t, p = _as_float(drybulb), _as_float(pressure)
     if check:
@@ -510,7 +500,7 @@ def humidity_ratio_from_relative_humidity(drybulb, relative_humidity, pressure, 
 
     References
     ----------
-    ASHRAE Handbook Fundamentals 2017, Ch. 1, Eq. 24 (pw = phi pws) and Eq. 20.
+    ASHRAE Handbook Fundamentals 2017, Ch. 1, Eq. 22 (phi = pw/pws) and Eq. 20.
     """
     t, rh, p = _as_float(drybulb), _as_float(relative_humidity), _as_float(pressure)
     if check:
@@ -551,7 +541,7 @@ def relative_humidity_from_humidity_ratio(drybulb, humidity_ratio, pressure, *, 
 
     References
     ----------
-    ASHRAE Handbook Fundamentals 2017, Ch. 1, Eqs. 20 and 24: phi = pw / pws.
+    ASHRAE Handbook Fundamentals 2017, Ch. 1, Eqs. 20 and 22: phi = pw / pws.
     """
     t, w, p = _as_float(drybulb), _as_float(humidity_ratio), _as_float(pressure)
     if check:
@@ -580,7 +570,7 @@ def humidity_ratio_from_dew_point(dew_point, pressure, *, check=True):
     References
     ----------
     ASHRAE Handbook Fundamentals 2017, Ch. 1, Eqs. 5/6 at the dew point and Eq. 20
-    (pw = pws(td), the definition of dew point, Eq. 37).
+    (pw = pws(td), the definition of dew point, Eq. 36).
     """
     td, p = _as_float(dew_point), _as_float(pressure)
     if check:
@@ -602,12 +592,14 @@ def _dew_point_first_guess(alpha):
     """Closed-form dew point [°C] from alpha = ln pw, pw in kPa, accurate to about 0.1 K
     from -20 to 93 °C (about 1 K at -60 °C); a first guess for Newton iterations.
 
-    ASHRAE Handbook Fundamentals 2017, Ch. 1, Eq. 39 (dew point 0 to 93 °C) and Eq. 40
+    ASHRAE Handbook Fundamentals 2017, Ch. 1, Eq. 37 (dew point 0 to 93 °C) and Eq. 38
     (below 0 °C).
     """
-    above_freezing = 6.54 + alpha * (14.526 + alpha * (0.7389 + alpha * 0.09486))
-    above_freezing = above_freezing + 0.4569 * np.exp(0.1984 * alpha)  # pw^0.1984
-    below_freezing = 6.09 + alpha * (12.608 + alpha * 0.4959)
+    c14, c15, c16, c17, c18 = DEW_POINT_WATER_COEFFICIENTS
+    above_freezing = c14 + alpha * (c15 + alpha * (c16 + alpha * c17))
+    above_freezing = above_freezing + c18 * np.exp(DEW_POINT_WATER_EXPONENT * alpha)  # pw^0.1984
+    c0, c1, c2 = DEW_POINT_ICE_COEFFICIENTS
+    below_freezing = c0 + alpha * (c1 + alpha * c2)
     guess = np.where(above_freezing >= 0.0, above_freezing, below_freezing)
     return np.minimum(np.maximum(guess, DRYBULB_MIN_C), DRYBULB_MAX_C)
 
@@ -616,7 +608,7 @@ def dew_point_from_vapor_pressure(vapor_pressure, *, check=True):
     """Dew point: the temperature at which the saturation pressure equals ``vapor_pressure``.
 
     Solved by Newton iteration on ln pws for the whole array at once, started from the
-    handbook's closed-form approximation (Eqs. 39 and 40 of [1]).
+    handbook's closed-form approximation (Eqs. 37 and 38 of [1]).
 
     Parameters
     ----------
@@ -630,8 +622,8 @@ def dew_point_from_vapor_pressure(vapor_pressure, *, check=True):
 
     References
     ----------
-    ASHRAE Handbook Fundamentals 2017, Ch. 1, Eq. 37 (pws(td) = pw) with Eqs. 5 and 6;
-    first guess from Eqs. 39 and 40.
+    ASHRAE Handbook Fundamentals 2017, Ch. 1, Eq. 36 (pws(td) = pw) with Eqs. 5 and 6;
+    first guess from Eqs. 37 and 38.
     """
     pw = _as_float(vapor_pressure)
     if check:
@@ -688,7 +680,7 @@ def dew_point_from_humidity_ratio(humidity_ratio, pressure, *, check=True):
 
     References
     ----------
-    ASHRAE Handbook Fundamentals 2017, Ch. 1, Eq. 20 (pw from W) and Eq. 37.
+    ASHRAE Handbook Fundamentals 2017, Ch. 1, Eq. 20 (pw from W) and Eq. 36.
     """
     w, p = _as_float(humidity_ratio), _as_float(pressure)
     if check:
@@ -714,13 +706,13 @@ def _humidity_ratio_from_wet_bulb(t, twb, p, *, with_slope=False):
     # The water form holds at and above 0 °C (Eq. 33), the ice form below (Eq. 35).
     water = twb >= 0.0
     if np.all(water):
-        a, b, c = LATENT_HEAT_0C, CP_LIQUID_WATER - CP_WATER_VAPOR, CP_LIQUID_WATER
+        a, b, c = _WET_BULB_WATER
     elif not np.any(water):
-        a, b, c = 2830.0, 0.24, 2.1
+        a, b, c = _WET_BULB_ICE
     else:
-        a = np.where(water, LATENT_HEAT_0C, 2830.0)
-        b = np.where(water, CP_LIQUID_WATER - CP_WATER_VAPOR, 0.24)
-        c = np.where(water, CP_LIQUID_WATER, 2.1)
+        a, b, c = (
+            np.where(water, x, y) for x, y in zip(_WET_BULB_WATER, _WET_BULB_ICE, strict=True)
+        )
     numerator = (a - b * twb) * ws_star - CP_DRY_AIR * (t - twb)
     denominator = a + CP_WATER_VAPOR * t - c * twb
     w = numerator / denominator
@@ -778,14 +770,17 @@ def humidity_ratio_from_wet_bulb(drybulb, wet_bulb, pressure, *, check=True):
 def _wet_bulb_first_guess(t, w, p):
     """Approximate wet bulb [°C]: Eq. 33 of [1] with Ws* linearised about the dew point.
 
-    The dew point comes from the closed form of Eqs. 39/40 and the slope of ln pws from
+    The dew point comes from the closed form of Eqs. 37/38 and the slope of ln pws from
     Clausius-Clapeyron (L/(Rv T^2), L over ice below 0 °C). Ws* is convex, so the
     tangent under-estimates it and the guess mostly lies at or above the root, where
     Newton descends monotonically; the guess only saves iterations, never the answer.
     """
     pw = p * w / (MOLAR_MASS_RATIO + w)
     td = _dew_point_first_guess(_ln_kpa(pw))
-    dln_pws = np.where(td < 0.0, 6132.0, 5417.0) / (td + ZERO_CELSIUS) ** 2
+    dln_pws = (
+        np.where(td < 0.0, CLAUSIUS_CLAPEYRON_ICE_K, CLAUSIUS_CLAPEYRON_WATER_K)
+        / (td + ZERO_CELSIUS) ** 2
+    )
     slope = w * p / (p - pw) * dln_pws  # dWs/dt at the dew point [1/K]
     b = CP_LIQUID_WATER - CP_WATER_VAPOR
     a = LATENT_HEAT_0C - b * td
@@ -820,8 +815,8 @@ def wet_bulb_from_humidity_ratio(drybulb, humidity_ratio, pressure, *, check=Tru
 
     References
     ----------
-    ASHRAE Handbook Fundamentals 2017, Ch. 1, Eqs. 33 and 35; first guess from Eqs. 39
-    and 40.
+    ASHRAE Handbook Fundamentals 2017, Ch. 1, Eqs. 33 and 35; first guess from Eqs. 37
+    and 38.
     """
     t, w, p = _as_float(drybulb), _as_float(humidity_ratio), _as_float(pressure)
     if check:
@@ -854,9 +849,8 @@ def wet_bulb_from_humidity_ratio(drybulb, humidity_ratio, pressure, *, check=Tru
     # a = 2501, b = 2.326, c = 4.186) or Eq. 35 (ice, a = 2830, b = 0.24, c = 2.1).
     # Multiplied through by its (positive) denominator, W(t*) = W reads
     #   F(t*) = (a - b t*) Ws*(t*) + (1.006 + c W) t* - 1.006 t - W (a + 1.86 t) = 0.
-    a = np.where(water, LATENT_HEAT_0C, 2830.0)
-    b = np.where(water, CP_LIQUID_WATER - CP_WATER_VAPOR, 0.24)
-    linear = CP_DRY_AIR + np.where(water, CP_LIQUID_WATER, 2.1) * w
+    a, b, c = (np.where(water, x, y) for x, y in zip(_WET_BULB_WATER, _WET_BULB_ICE, strict=True))
+    linear = CP_DRY_AIR + c * w
     constant = -CP_DRY_AIR * t - w * (a + CP_WATER_VAPOR * t)
     # The saturation form (Eq. 5 or 6) at the root is known too: ice if the root is at
     # or below the triple point, that is if F(0.01 °C) >= 0 (pws there is _PWS_TRIPLE).
@@ -924,7 +918,7 @@ def enthalpy_from_humidity_ratio(drybulb, humidity_ratio, *, check=True):
 
     References
     ----------
-    ASHRAE Handbook Fundamentals 2017, Ch. 1, Eq. 32: h = 1.006 t + W (2501 + 1.86 t).
+    ASHRAE Handbook Fundamentals 2017, Ch. 1, Eq. 30: h = 1.006 t + W (2501 + 1.86 t).
     """
     t, w = _as_float(drybulb), _as_float(humidity_ratio)
     if check:
@@ -934,7 +928,7 @@ def enthalpy_from_humidity_ratio(drybulb, humidity_ratio, *, check=True):
 
 
 def drybulb_from_enthalpy(enthalpy, humidity_ratio, *, check=True):
-    """Dry bulb from enthalpy and humidity ratio (Eq. 32 of [1] solved for t).
+    """Dry bulb from enthalpy and humidity ratio (Eq. 30 of [1] solved for t).
 
     Parameters
     ----------
@@ -950,7 +944,7 @@ def drybulb_from_enthalpy(enthalpy, humidity_ratio, *, check=True):
 
     References
     ----------
-    ASHRAE Handbook Fundamentals 2017, Ch. 1, Eq. 32: t = (h - 2501 W)/(1.006 + 1.86 W).
+    ASHRAE Handbook Fundamentals 2017, Ch. 1, Eq. 30: t = (h - 2501 W)/(1.006 + 1.86 W).
     """
     h, w = _as_float(enthalpy), _as_float(humidity_ratio)
     if check:
@@ -963,7 +957,7 @@ def drybulb_from_enthalpy(enthalpy, humidity_ratio, *, check=True):
 
 
 def humidity_ratio_from_enthalpy(drybulb, enthalpy, *, check=True):
-    """Humidity ratio from dry bulb and enthalpy (Eq. 32 of [1] solved for W).
+    """Humidity ratio from dry bulb and enthalpy (Eq. 30 of [1] solved for W).
 
     Parameters
     ----------
@@ -979,7 +973,7 @@ def humidity_ratio_from_enthalpy(drybulb, enthalpy, *, check=True):
 
     References
     ----------
-    ASHRAE Handbook Fundamentals 2017, Ch. 1, Eq. 32: W = (h - 1.006 t)/(2501 + 1.86 t).
+    ASHRAE Handbook Fundamentals 2017, Ch. 1, Eq. 30: W = (h - 1.006 t)/(2501 + 1.86 t).
     """
     t, h = _as_float(drybulb), _as_float(enthalpy)
     if check:
