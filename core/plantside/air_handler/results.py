@@ -46,7 +46,7 @@ from plantside.constants import (
 )
 from plantside.constants import STANDARD_AIR_DENSITY as _RHO_STD
 
-__all__ = ["HOURLY_COLUMNS", "hourly_results"]
+__all__ = ["HOURLY_COLUMNS", "hourly_results", "zone_load"]
 
 #: Dry-bulb tolerance under which a coil is idle [K].
 COIL_IDLE_K = 1e-6
@@ -126,6 +126,26 @@ _FLOW_AND_LOAD_COLUMNS = (
     "outdoor_air_fraction",
     "recovery_fraction",
 )
+
+
+def zone_load(loads):
+    """Zone load met: sensible + latent [kW].
+
+    Parameters
+    ----------
+    loads : pandas.DataFrame, mapping or DesignPoint.loads
+        Hourly results or a design point's loads, with ``zone_sensible_kW`` and
+        ``zone_latent_kW`` [kW].
+
+    Returns
+    -------
+    numpy.ndarray or float
+        One value per hour [kW] (a float for a single design point).
+    """
+    total = np.asarray(loads["zone_sensible_kW"], dtype=float) + np.asarray(
+        loads["zone_latent_kW"], dtype=float
+    )
+    return float(total) if total.ndim == 0 else total
 
 
 def _h(t, w):

@@ -31,6 +31,7 @@ import numpy as np
 import pandas as pd
 
 from plantside.air import moist_air
+from plantside.air_handler.results import zone_load
 from plantside.errors import InputRangeError, check_range
 from plantside.plant.efficiency import iplv_band_weights
 from plantside.plant.part_load import load_duration_curve, part_load_bins
@@ -235,7 +236,9 @@ def design_breakdown_frame(loads: Mapping[str, float], system="SI") -> pd.DataFr
 # chart 2: the year, hour by hour, binned
 # ---------------------------------------------------------------------------------------
 def _hourly_zone_load(hourly: pd.DataFrame) -> np.ndarray:
-    return _column(hourly, "zone_sensible_kW") + _column(hourly, "zone_latent_kW")
+    for name in ("zone_sensible_kW", "zone_latent_kW"):
+        _column(hourly, name)  # a missing column is named in the error
+    return zone_load(hourly)
 
 
 def _operating(hourly: pd.DataFrame) -> np.ndarray:

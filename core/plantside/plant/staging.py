@@ -57,12 +57,18 @@ from plantside.plant.part_load import (
 )
 
 __all__ = [
+    "DEFAULT_MINIMUM_TURNDOWN",
     "PlantOption",
     "StagingResult",
     "compare_plant_options",
     "compare_stage_hours",
     "stage_machines",
 ]
+
+#: Minimum turndown of a machine when a plant option does not give one [-]: a machine
+#: that unloads to 15 % of its capacity (common practice (no source) for screw and
+#: centrifugal chillers and modulating boilers at the preliminary stage).
+DEFAULT_MINIMUM_TURNDOWN = 0.15
 
 
 def _machine_arrays(capacities, minimum_turndown) -> tuple[np.ndarray, np.ndarray]:

@@ -20,6 +20,7 @@ import numpy as np
 import pandas as pd
 
 from plantside import __version__
+from plantside.air_handler.results import zone_load
 from plantside.air_handler.year import (
     AirHandlerSettings,
     CoolingDesignSummary,
@@ -41,13 +42,23 @@ from plantside.plant.staging import (
     compare_stage_hours,
     stage_machines,
 )
+from plantside.study.figures import (
+    coincident_cooling_design,
+    headline_figures,
+    load_energy,
+    load_peak,
+    plant_option_specs,
+)
 from plantside.study.scenario import PlantOptionSpec, Scenario
 
 __all__ = [
     "AirHandlerResult",
     "PlantResult",
     "StudyResult",
+    "assemble_plants",
+    "design_zone",
     "heating_load_columns",
+    "run_air_handler",
     "run_study",
     "study_summary",
 ]
@@ -82,8 +93,7 @@ class AirHandlerResult:
     @property
     def zone_hourly(self) -> np.ndarray:
         """Hourly zone cooling load met (sensible + latent, >= 0) [kW]."""
-        total = self.hourly["zone_sensible_kW"] + self.hourly["zone_latent_kW"]
-        return np.maximum(total.to_numpy(), 0.0)
+        return np.maximum(zone_load(self.hourly), 0.0)
 
 
 @dataclass(frozen=True)
@@ -112,12 +122,12 @@ class PlantResult:
     @property
     def annual_energy(self) -> float:
         """Year's load energy [kWh] (hourly steps)."""
-        return float(self.hourly_load.sum())
+        return load_energy(self.hourly_load)
 
     @property
     def annual_peak(self) -> float:
         """Year's peak hourly load [kW]."""
-        return float(self.hourly_load.max()) if self.hourly_load.size else 0.0
+        return load_peak(self.hourly_load)
 
 
 @dataclass(frozen=True)
@@ -134,8 +144,7 @@ class StudyResult:
 
 
 def _options(specs: tuple[PlantOptionSpec, ...], capacity: float, kind: str):
-    if not specs:
-        specs = (PlantOptionSpec(f"1 x 100 % {kind}", (1.0,)),)
+    specs = plant_option_specs(specs, kind)
     options = [
         PlantOption.from_fractions(
             s.name, max(capacity, 1e-6), s.capacity_fractions, s.minimum_turndown
@@ -197,7 +206,7 @@ def _plant(
     )
 
 
-def _design_zone(zone, kind: str):
+def design_zone(zone, kind: str):
     """Zone loads for a design point.
 
     A load model is evaluated by the air-handler model at the design dry bulb. Hourly
@@ -218,63 +227,66 @@ def _design_zone(zone, kind: str):
     )
 
 
-def run_study(scenario: Scenario, weather: Weather | None = None) -> StudyResult:
-    """Run every air handler of ``scenario`` and size its cooling and heating plants.
+def run_air_handler(
+    settings: AirHandlerSettings,
+    zone,
+    weather: Weather,
+    conditions: DesignConditions,
+    cooling_percent: float,
+    heating_percent: float,
+    hourly: pd.DataFrame | None = None,
+) -> AirHandlerResult:
+    """One air handler's result: its hourly year, cooling design points and heating point.
 
     Parameters
     ----------
-    scenario : Scenario
-        The validated study.
-    weather : Weather, optional
-        Use this weather instead of the scenario's (e.g. an uploaded year).
+    settings : AirHandlerSettings
+        The air handler.
+    zone : ZoneLoadModel or HourlyZoneLoads
+        Its zone loads (:meth:`Scenario.zone_loads`).
+    weather : Weather
+        The year of weather.
+    conditions : DesignConditions
+        The site's design conditions (from ``weather``).
+    cooling_percent, heating_percent : float
+        Annual percentages of the cooling and heating design conditions [%].
+    hourly : pandas.DataFrame, optional
+        This air handler's hourly year with these settings, when already computed
+        (the dashboard reuses it when only the design percentage moved).
 
     Returns
     -------
-    StudyResult
+    AirHandlerResult
     """
-    weather = scenario.load_weather() if weather is None else weather
-    conditions = design_conditions_from_weather(weather)
-    percent = scenario.cooling_design_percent
-    heating_condition = conditions.heating(scenario.heating_design_percent)
-    units = []
-    for index, spec in enumerate(scenario.air_handlers):
-        zone = scenario.zone_loads(index, weather)
-        units.append(
-            AirHandlerResult(
-                name=spec.settings.name,
-                settings=spec.settings,
-                hourly=hourly_year(spec.settings, weather, zone),
-                cooling_design=cooling_design_points(
-                    spec.settings, _design_zone(zone, "cooling"), conditions.conditions, percent
-                ),
-                heating_design=heating_design_point(
-                    spec.settings, _design_zone(zone, "heating"), heating_condition
-                ),
-            )
-        )
+    return AirHandlerResult(
+        name=settings.name,
+        settings=settings,
+        hourly=hourly_year(settings, weather, zone) if hourly is None else hourly,
+        cooling_design=cooling_design_points(
+            settings, design_zone(zone, "cooling"), conditions.conditions, cooling_percent
+        ),
+        heating_design=heating_design_point(
+            settings, design_zone(zone, "heating"), conditions.heating(heating_percent)
+        ),
+    )
+
+
+def assemble_plants(
+    scenario: Scenario,
+    weather: Weather,
+    conditions: DesignConditions,
+    units: tuple[AirHandlerResult, ...],
+) -> StudyResult:
+    """The cooling and heating plants of ``units`` and the study's cautions.
+
+    The cooling design load is coincident (:func:`plantside.study.figures.
+    coincident_cooling_design`: every unit at the same design outdoor state, the
+    largest sum governs); heating is sized at the heating design condition.
+    """
+    units = tuple(units)
     gain = scenario.distribution_gain_percent
     factor = 1.0 + gain / 100.0
-
-    # Coincident design: every unit at the same outdoor state; the largest sum governs.
-    kinds = list(units[0].cooling_design.points)
-    rows = []
-    for kind in kinds:
-        point = units[0].cooling_design.points[kind]
-        row = {"kind": kind, "condition": point.label}
-        for unit in units:
-            row[f"{unit.name}_coil_total_kW"] = unit.cooling_design.points[kind].loads[
-                "coil_total_kW"
-            ]
-            row[f"{unit.name}_zone_kW"] = (
-                unit.cooling_design.points[kind].loads["zone_sensible_kW"]
-                + unit.cooling_design.points[kind].loads["zone_latent_kW"]
-            )
-        row["coil_total_kW"] = sum(row[f"{u.name}_coil_total_kW"] for u in units)
-        row["zone_total_kW"] = sum(row[f"{u.name}_zone_kW"] for u in units)
-        row["plant_kW"] = row["coil_total_kW"] * factor
-        rows.append(row)
-    cooling_table = pd.DataFrame(rows).set_index("kind")
-    governing_kind = str(cooling_table["plant_kW"].idxmax())
+    cooling_table, governing_kind = coincident_cooling_design(units, gain)
     cooling = _plant(
         "cooling",
         {u.name: u.hourly["coil_total_kW"].to_numpy() for u in units},
@@ -318,7 +330,7 @@ def run_study(scenario: Scenario, weather: Weather | None = None) -> StudyResult
         scenario=scenario,
         weather=weather,
         conditions=conditions,
-        air_handlers=tuple(units),
+        air_handlers=units,
         cooling=cooling,
         heating=heating,
         cautions=GENERAL_CAUTIONS
@@ -326,6 +338,36 @@ def run_study(scenario: Scenario, weather: Weather | None = None) -> StudyResult
         + heating.cautions
         + tuple(dict.fromkeys(unit_cautions)),
     )
+
+
+def run_study(scenario: Scenario, weather: Weather | None = None) -> StudyResult:
+    """Run every air handler of ``scenario`` and size its cooling and heating plants.
+
+    Parameters
+    ----------
+    scenario : Scenario
+        The validated study.
+    weather : Weather, optional
+        Use this weather instead of the scenario's (e.g. an uploaded year).
+
+    Returns
+    -------
+    StudyResult
+    """
+    weather = scenario.load_weather() if weather is None else weather
+    conditions = design_conditions_from_weather(weather)
+    units = tuple(
+        run_air_handler(
+            spec.settings,
+            scenario.zone_loads(index, weather),
+            weather,
+            conditions,
+            scenario.cooling_design_percent,
+            scenario.heating_design_percent,
+        )
+        for index, spec in enumerate(scenario.air_handlers)
+    )
+    return assemble_plants(scenario, weather, conditions, units)
 
 
 #: SI unit suffixes for the columns of the design-condition tables in the JSON summary.
@@ -360,26 +402,32 @@ def study_summary(result: StudyResult) -> dict:
     """A JSON-ready summary in SI with unit-suffixed keys (the command line's ``--json``)."""
     scenario = result.scenario
     units = []
-    for unit in result.air_handlers:
+    for index, unit in enumerate(result.air_handlers):
         design = unit.cooling_design
         governing = design.points[design.governing]
         hourly = unit.hourly
+        figures = headline_figures(
+            scenario, result.air_handlers, result.conditions, air_handler=index
+        )
         units.append(
             {
                 "name": unit.name,
-                "governing_condition": governing.label,
-                "design_coil_total_kW": governing.loads["coil_total_kW"],
+                "governing_condition": figures.governing_condition,
+                "design_coil_total_kW": figures.design_coil_load,
                 "design_coil_sensible_kW": governing.loads["coil_sensible_kW"],
                 "design_coil_latent_kW": governing.loads["coil_latent_kW"],
                 "design_zone_sensible_kW": governing.loads["zone_sensible_kW"],
                 "design_zone_latent_kW": governing.loads["zone_latent_kW"],
+                "design_zone_kW": figures.design_zone_load,
+                "design_capacity_kW": figures.recommended_capacity,
+                "hours_above_75_percent_of_capacity": figures.hours_above_threshold,
                 "design_conditions": _records(design.table),
                 "heating_design_kW": sum(
                     unit.heating_design.loads[c] for c in heating_load_columns
                 ),
-                "annual_peak_coil_total_kW": float(hourly["coil_total_kW"].max()),
-                "annual_coil_total_kWh": float(hourly["coil_total_kW"].sum()),
-                "annual_heating_kWh": float(unit.heating_hourly.sum()),
+                "annual_peak_coil_total_kW": figures.peak_coil_load,
+                "annual_coil_total_kWh": figures.cooling_energy,
+                "annual_heating_kWh": load_energy(unit.heating_hourly),
                 "economizer_hours": {
                     str(k): int(v) for k, v in hourly["economizer_mode"].value_counts().items()
                 },
@@ -388,6 +436,7 @@ def study_summary(result: StudyResult) -> dict:
                 "airflow_basis": unit.settings.airflow_basis,
             }
         )
+    plant_figures = headline_figures(scenario, result.air_handlers, result.conditions)
 
     def plant(p: PlantResult) -> dict:
         return {
@@ -414,7 +463,14 @@ def study_summary(result: StudyResult) -> dict:
         "hours": result.weather.hours,
         "design_conditions": _records(result.conditions.to_frame()),
         "air_handlers": units,
-        "cooling_plant": plant(result.cooling),
+        "cooling_plant": {
+            **plant(result.cooling),
+            "design_zone_kW": plant_figures.design_zone_load,
+            "hours_above_75_percent_of_capacity": plant_figures.hours_above_threshold,
+            "design_loads_kW": plant_figures.design_loads,
+            "first_option": plant_figures.option_name,
+            "first_option_machines_kW": list(plant_figures.machine_capacities),
+        },
         "heating_plant": plant(result.heating),
         "cautions": list(result.cautions),
     }

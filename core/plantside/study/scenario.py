@@ -62,6 +62,7 @@ from plantside.climate.design_conditions import COOLING_PERCENTS, HEATING_PERCEN
 from plantside.climate.weather import Weather
 from plantside.climate.weather_csv import read_weather_csv
 from plantside.errors import InputFileError, InputRangeError, ScenarioError
+from plantside.plant.staging import DEFAULT_MINIMUM_TURNDOWN
 from plantside.units import UnitSystem, from_display, to_display, unit_label
 
 __all__ = [
@@ -151,7 +152,7 @@ class PlantOptionSpec:
 
     name: str
     capacity_fractions: tuple[float, ...]
-    minimum_turndown: float = 0.15
+    minimum_turndown: float = DEFAULT_MINIMUM_TURNDOWN
     efficiency_metric: str = "cop"
     efficiency: tuple[float, ...] | None = None
 
@@ -379,7 +380,9 @@ def _option(source, where, table, design_kind) -> PlantOptionSpec:
                 "(fraction of design capacity)",
             )
     name = _text(source, f"{where}.name", table.get("name", f"{design_kind} option"))
-    turndown = _number(source, f"{where}.minimum_turndown", table.get("minimum_turndown", 0.15))
+    turndown = _number(
+        source, f"{where}.minimum_turndown", table.get("minimum_turndown", DEFAULT_MINIMUM_TURNDOWN)
+    )
     if not 0.0 <= turndown < 1.0:
         raise ScenarioError(
             source,
