@@ -27,6 +27,7 @@ from plantside.errors import InputRangeError
 __all__ = [
     "FORMATS",
     "chart_bytes",
+    "safe_filename",
     "save_chart",
     "stamp_lines",
     "stamped_spec",
@@ -38,6 +39,20 @@ FORMATS = ("png", "svg")
 _NAME = re.compile(r"^[A-Za-z0-9][A-Za-z0-9._-]{0,120}$")
 #: Longest stamp line [characters] before it is wrapped.
 _STAMP_WIDTH = 130
+#: Characters :func:`safe_filename` replaces.
+_UNSAFE = re.compile(r"[^A-Za-z0-9._ -]+")
+
+
+def safe_filename(name: str, default: str = "plantside-export") -> str:
+    """Return ``name`` reduced to letters, digits, dot, dash, underscore and space.
+
+    Used for the suggested name of a browser download and for the file names the
+    command line writes; never a path (no folder separators survive).
+    """
+    cleaned = _UNSAFE.sub("_", str(name)).strip(" .")
+    return cleaned[:120] or default
+
+
 #: Top-level-only properties moved from the chart to the stamped wrapper.
 _TOP_LEVEL = ("$schema", "config", "datasets", "background", "padding", "autosize", "usermeta")
 

@@ -11,7 +11,8 @@ Commands (``plantside COMMAND --help`` for each)::
                                                     batch of cases -> one table
 
 Exit status: 0 on success, 2 for a user mistake (bad scenario, unreadable file) with the
-message on stderr, never a traceback for a user mistake.
+message on stderr, never a traceback for a user mistake; ``sweep`` also 3 (some cases
+failed, their rows say why) and 130 (interrupted).
 """
 
 from __future__ import annotations
@@ -24,13 +25,15 @@ from pathlib import Path
 import numpy as np
 
 from plantside.cli.sweep import add_sweep_parser
-from plantside.errors import PlantsideError
+from plantside.errors import NAME_EXCERPT_CHARS, PlantsideError, excerpt
 from plantside.units import to_display
 
 __all__ = ["main"]
 
 EXIT_OK = 0
 EXIT_BAD_INPUT = 2
+#: Longest message printed [characters]: a message never echoes a huge input whole.
+MAX_MESSAGE_CHARS = 4000
 
 
 def _fmt(quantity, value_si, system, digits=1):
@@ -158,33 +161,39 @@ def _cmd_year(args) -> int:
 
 
 def _cmd_charts(args) -> int:
-    # The same charts the dashboard shows, built by the dashboard itself (headless), so a
-    # report and a meeting never disagree: the plant view, then each air handler's view.
-    from plantside.charts.export import save_chart
-    from plantside.dashboard.app import CHARTS, Dashboard
-    from plantside.dashboard.download import safe_filename
-    from plantside.study.scenario import load_scenario
+    # The dashboard's five charts, built from the study by the same charts-layer module
+    # the dashboard uses (charts/study_frames.py), with the same stamp: the plant view
+    # (showing the first air handler with return air, as the dashboard opens), then each
+    # air handler's view.
+    from datetime import datetime
 
-    scenario = load_scenario(args.scenario)
+    from plantside.charts.export import safe_filename, save_chart
+    from plantside.charts.study_frames import (
+        CHARTS,
+        chart_frames,
+        study_chart,
+        study_chart_views,
+        view_stamp,
+    )
+    from plantside.study.figures import climate_label, first_recirculating_unit
+
+    result = _load(args.scenario)
+    scenario = result.scenario
+    system = scenario.unit_system.value
     out = Path(args.out)
     out.mkdir(parents=True, exist_ok=True)
-    views = [("plant", Dashboard(scenario, view="plant"))]
-    views += [
-        (
-            safe_filename(spec.settings.name.replace(" ", "-").lower()),
-            Dashboard(scenario, view="air_handler", air_handler=index),
-        )
-        for index, spec in enumerate(scenario.air_handlers)
-    ]
+    when = datetime.now().strftime("%Y-%m-%d %H:%M")
     written = []
-    for prefix, dashboard in views:
-        for name, stem in CHARTS.items():
+    cache: dict = {}
+    views = study_chart_views(result, climate_label(scenario), first_recirculating_unit(scenario))
+    for index, view in views:
+        name = view.unit.name.replace(" ", "-").lower()
+        prefix = "plant" if index is None else safe_filename(name)
+        stamp = view_stamp(scenario, view, when)
+        for chart, stem in CHARTS.items():
+            drawn = study_chart(chart, chart_frames(chart, view, system, cache), system, view)
             written += save_chart(
-                dashboard.chart_specs[name],
-                out,
-                f"{prefix}_{stem}",
-                formats=("png", "svg"),
-                stamp=dashboard.stamp(),
+                drawn, out, f"{prefix}_{stem}", formats=("png", "svg"), stamp=stamp
             )
     return _report_written(written, args.json)
 
@@ -255,10 +264,11 @@ def main(argv=None) -> int:
     try:
         return args.func(args)
     except PlantsideError as error:
-        print(f"plantside: error: {error}", file=sys.stderr)
+        print(f"plantside: error: {excerpt(error, MAX_MESSAGE_CHARS)}", file=sys.stderr)
         return EXIT_BAD_INPUT
-    except OSError as error:
-        print(f"plantside: error: {error}", file=sys.stderr)
+    except OSError as error:  # the file name shortened, never the whole of a huge one
+        name = f": {excerpt(error.filename, NAME_EXCERPT_CHARS)}" if error.filename else ""
+        print(f"plantside: error: {error.strerror or error}{name}", file=sys.stderr)
         return EXIT_BAD_INPUT
 
 

@@ -29,20 +29,15 @@ from pathlib import Path
 
 import altair as alt
 import ipywidgets as widgets
-import numpy as np
 import pandas as pd
 
 from plantside import __version__
-from plantside.charts import frames as chart_frames
 from plantside.charts.compare import combine_scenarios
-from plantside.charts.design_breakdown import design_breakdown_chart
-from plantside.charts.export import chart_bytes
-from plantside.charts.load_duration import load_distribution_chart
-from plantside.charts.oa_sweep import oa_sweep_chart
-from plantside.charts.psychrometric import psychrometric_chart
-from plantside.charts.year_scatter import year_scatter_chart
+from plantside.charts.export import chart_bytes, safe_filename
+from plantside.charts.labels import export_stamp
+from plantside.charts.study_frames import CHARTS, ChartView, chart_frames, study_chart
 from plantside.dashboard.controls import Controls
-from plantside.dashboard.download import BrowserDownload, safe_filename
+from plantside.dashboard.download import BrowserDownload
 from plantside.dashboard.serve import SCENARIO_ENVIRONMENT_VARIABLE
 from plantside.dashboard.spec import SpecWriter
 from plantside.dashboard.state import (
@@ -53,20 +48,12 @@ from plantside.dashboard.state import (
     display_text,
 )
 from plantside.errors import PlantsideError, ScenarioError
-from plantside.plant.staging import stage_machines
+from plantside.study.figures import ViewLoads, first_recirculating_unit
 from plantside.study.scenario import Scenario, dumps_scenario, load_scenario, loads_scenario
 from plantside.units import to_display
 
 __all__ = ["CAUTION_TEXT", "CHARTS", "Dashboard", "example_scenario", "first_recirculating_unit"]
 
-#: The five charts: key -> file-name stem of their exports.
-CHARTS = {
-    "design": "design-coil-load",
-    "year": "year-coil-vs-zone",
-    "distribution": "load-distribution",
-    "psychrometric": "psychrometric-process",
-    "sweep": "coil-load-vs-outdoor-air",
-}
 
 #: The cautions strip, always on show.
 CAUTION_TEXT = (
@@ -94,14 +81,6 @@ def example_scenario() -> Scenario:
         return loads_scenario(packaged.read_text("utf-8"), "example_scenario.toml")
     repository = Path(__file__).resolve().parents[3] / "example_data" / "scenarios"
     return load_scenario(repository / "quillon_clinic.toml")
-
-
-def first_recirculating_unit(scenario: Scenario) -> int:
-    """Index of the first air handler with return air (the outdoor-air slider matters there)."""
-    for index, spec in enumerate(scenario.air_handlers):
-        if not spec.settings.all_outdoor_air:
-            return index
-    return 0
 
 
 def _css() -> str:
@@ -354,75 +333,23 @@ class Dashboard:
             result.inputs.air_handler,
         )
 
+    def _view(self, result: DashboardResult) -> ChartView:
+        """What the charts draw of one result (the study layer's figures and loads)."""
+        shown = result.unit
+        return ChartView(
+            plant=self.view == "plant",
+            figures=result.figures,
+            loads=ViewLoads(result.coil_load, result.zone_load),
+            unit=shown.study,
+            sweep=shown.design.sweep,
+            outdoor_air_fraction=shown.inputs.outdoor_air_fraction,
+            weather=result.climate.weather,
+            climate=result.climate.source,
+        )
+
     def _frames(self, name: str, result: DashboardResult, system: str) -> dict:
         """The chart frames of one result (SI model output -> display units)."""
-        shown = result.unit
-        if name == "design":
-            return {"frame": chart_frames.design_breakdown_frame(result.design_loads, system)}
-        if name == "year":
-            return {"frame": chart_frames.year_scatter_frame(self._year_table(result), system)}
-        if name == "distribution":
-            capacities = result.machine_capacities
-            staged = stage_machines(
-                np.maximum(result.coil_load, 0.0), capacities, result.minimum_turndown
-            )
-            return {
-                "curves": chart_frames.load_duration_frame(
-                    {"Coil load": result.coil_load, "Zone load": result.zone_load}, system
-                ),
-                "lines": chart_frames.capacity_lines_frame(capacities, system),
-                "bins": chart_frames.part_load_frame(
-                    result.coil_load, result.figures.recommended_capacity, system
-                ),
-                "weights": chart_frames.iplv_weights_frame(staged.machine_load, capacities, system),
-            }
-        if name == "psychrometric":
-            weather = result.climate.weather
-            states = shown.design.governing.states
-            extent = chart_frames.psychrometric_extent(
-                np.concatenate([weather.drybulb, states["drybulb_C"].to_numpy()]),
-                np.concatenate([weather.humidity_ratio, states["humidity_ratio_kgkg"].to_numpy()]),
-                system,
-            )
-            pressure = float(np.mean(weather.pressure))
-            background = (result.climate.source, system, extent)
-            if background not in self._backgrounds:  # the site's lines and hours: reused
-                self._backgrounds.clear()
-                self._backgrounds[background] = (
-                    chart_frames.psychrometric_grid_frame(pressure, system, extent),
-                    chart_frames.outdoor_density_frame(
-                        weather.drybulb, weather.humidity_ratio, system, extent
-                    ),
-                )
-            grid, density = self._backgrounds[background]
-            return {
-                "grid": grid,
-                "process": chart_frames.process_frame(states, system, pressure),
-                "density": density,
-            }
-        sweep = chart_frames.oa_sweep_frame(
-            np.linspace(0.0, 1.0, next(iter(shown.design.sweep.values())).size),
-            shown.design.sweep,
-            system,
-        )
-        marker = chart_frames.oa_marker_frame(sweep, shown.inputs.outdoor_air_fraction)
-        return {"sweep": sweep, "marker": marker}
-
-    def _year_table(self, result: DashboardResult) -> pd.DataFrame:
-        """The hourly table chart 2 bins: one air handler, or the plant."""
-        if self.view == "air_handler":
-            return result.unit.hourly
-        shown = result.unit.hourly
-        zone = result.zone_load
-        return pd.DataFrame(
-            {
-                "coil_total_kW": result.coil_load,
-                "zone_sensible_kW": zone,
-                "zone_latent_kW": np.zeros_like(zone),
-                "economizer_mode": shown["economizer_mode"].to_numpy(),
-                "operating": result.coil_load > 0,
-            }
-        )
+        return chart_frames(name, self._view(result), system, self._backgrounds)
 
     def _combined(self, name: str, system: str) -> dict:
         current = self._frames(name, self.state.result, system)
@@ -445,41 +372,8 @@ class Dashboard:
 
     def _build_chart(self, name: str):
         system = self.state.inputs.unit_system
-        f = self._combined(name, system)
-        result = self.state.result
-        who = result.unit.name if self.view == "air_handler" else "the plant"
-        if name == "design":
-            return design_breakdown_chart(
-                f["frame"], system, title=f"Design coil load of {who}, from zone to coil"
-            )
-        if name == "year":
-            return year_scatter_chart(
-                f["frame"],
-                system,
-                title=f"The year hour by hour: coil load against zone load, {who}",
-            )
-        if name == "distribution":
-            return load_distribution_chart(
-                f["curves"],
-                f["lines"],
-                f["bins"],
-                f["weights"],
-                system=system,
-                title=f"How the year's load spreads over the capacity, {who}",
-            )
-        if name == "psychrometric":
-            return psychrometric_chart(
-                f["grid"],
-                f["process"],
-                f["density"],
-                system=system,
-                title=f"Design process of {result.unit.name} on the psychrometric chart",
-            )
-        return oa_sweep_chart(
-            f["sweep"],
-            f["marker"],
-            system=system,
-            title=f"Design coil load of {result.unit.name} against outdoor-air fraction",
+        return study_chart(
+            name, self._combined(name, system), system, self._view(self.state.result)
         )
 
     # ------------------------------------------------------------------ text
@@ -610,15 +504,14 @@ class Dashboard:
     def stamp(self) -> str:
         """Text stamped on every export: study, inputs, version, time."""
         state = self.state
-        when = datetime.now().strftime("%Y-%m-%d %H:%M")
-        view = "plant" if self.view == "plant" else "air handler"
         system = state.inputs.unit_system
-        governing = condition_text(state.result.figures.governing, system)
-        return (
-            f"plantside {__version__} · {state.scenario.title} · {view} view · "
-            f"{state.result.inputs.stamp(state.names, system)} · governing {governing} · "
-            f"{when} · preliminary, "
-            "for review by a licensed engineer"
+        return export_stamp(
+            state.scenario.title,
+            self.view == "plant",
+            state.result.inputs.stamp(state.names, system),
+            state.result.figures.governing,
+            system,
+            datetime.now().strftime("%Y-%m-%d %H:%M"),
         )
 
     def _file_stem(self) -> str:

@@ -10,28 +10,17 @@ wraps them in a blob and clicks a hidden link, so the browser saves the file.
 
 from __future__ import annotations
 
-import re
 from pathlib import Path
 
 import anywidget
 import traitlets
 
+from plantside.charts.export import safe_filename  # re-exported: the dashboard's name
+
 __all__ = ["MAX_DOWNLOAD_BYTES", "BrowserDownload", "safe_filename"]
 
 #: Largest file sent to a browser in one message [bytes]; an hourly year as CSV is ~1 MB.
 MAX_DOWNLOAD_BYTES = 50 * 1024 * 1024
-
-_UNSAFE = re.compile(r"[^A-Za-z0-9._ -]+")
-
-
-def safe_filename(name: str, default: str = "plantside-export") -> str:
-    """Return ``name`` reduced to letters, digits, dot, dash, underscore and space.
-
-    The name is only ever used as the suggested name of a browser download,
-    never as a path on the server.
-    """
-    cleaned = _UNSAFE.sub("_", str(name)).strip(" .")
-    return cleaned[:120] or default
 
 
 class BrowserDownload(anywidget.AnyWidget):

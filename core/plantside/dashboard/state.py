@@ -43,22 +43,29 @@ import io
 import math
 import re
 import time
-from collections.abc import Callable, Mapping
+from collections.abc import Callable
 from dataclasses import dataclass, field, replace
 from types import SimpleNamespace
 
 import numpy as np
 import pandas as pd
 
-from plantside.air_handler import year as ahu
-from plantside.air_handler.zone_loads import HourlyZoneLoads, ZoneLoadModel, design_zone_loads
+from plantside.charts.labels import ECONOMIZER_CHOICES, FAN_CHOICES, condition_text, inputs_stamp
 from plantside.climate.bundled import BUNDLED_CLIMATES, load_bundled_climate
 from plantside.climate.design_conditions import COOLING_PERCENTS, design_conditions_from_weather
 from plantside.climate.weather import Weather
 from plantside.climate.weather_csv import read_weather_csv
 from plantside.errors import InputFileError, InputRangeError, PlantsideError
-from plantside.plant.loads import plant_load_from_coil_loads
-from plantside.plant.sizing import design_capacity_from_design_load
+from plantside.study.design_sweep import DESIGN_KINDS, design_outdoor_air_sweep
+from plantside.study.figures import (
+    PART_LOAD_THRESHOLD,
+    HeadlineFigures,
+    climate_label,
+    control_values,
+    headline_figures,
+    view_loads,
+)
+from plantside.study.run import AirHandlerResult, run_air_handler
 from plantside.study.scenario import Scenario
 from plantside.units import UnitSystem, to_display
 
@@ -82,29 +89,10 @@ __all__ = [
     "display_text",
 ]
 
-#: Economizer control types (model value -> label in the trade's words).
-ECONOMIZER_CHOICES = {
-    "none": "No economizer",
-    "fixed_drybulb": "Fixed dry-bulb high limit",
-    "differential_drybulb": "Differential dry bulb",
-    "fixed_enthalpy": "Fixed enthalpy high limit",
-    "differential_enthalpy": "Differential enthalpy",
-}
-#: Supply fan control (model value -> label).
-FAN_CHOICES = {
-    "constant_volume": "Constant volume (CV)",
-    "variable_volume": "Variable air volume (VAV)",
-}
-#: Cooling design-condition kinds evaluated at the chosen annual percentage.
-DESIGN_KINDS = ("cooling", "dehumidification", "enthalpy")
-#: Share of the recommended capacity behind the "hours above" headline figure [-].
-PART_LOAD_THRESHOLD = 0.75
 #: Largest weather CSV accepted from the page [bytes] (an 8,784-hour year is ~300 kB).
 MAX_UPLOAD_BYTES = 5 * 1024 * 1024
 #: Prefix of the climate value of an uploaded weather file.
 UPLOAD_PREFIX = "upload: "
-#: Outdoor-air fractions of the design sweep [-].
-SWEEP_FRACTIONS = np.linspace(0.0, 1.0, 101)
 
 #: Controls that belong to one air handler.
 UNIT_CONTROLS = (
@@ -180,20 +168,7 @@ class UnitInputs:
         A fixed minimum outdoor airflow shows as its fraction of the design supply
         airflow; a 100 % outdoor-air unit shows 100 %.
         """
-        if settings.all_outdoor_air:
-            fraction = 1.0
-        elif settings.minimum_outdoor_airflow is not None:
-            fraction = float(settings.minimum_outdoor_airflow) / float(settings.supply_airflow)
-        else:
-            fraction = float(settings.minimum_outdoor_air_fraction)
-        return cls(
-            outdoor_air_fraction=min(max(fraction, 0.0), 1.0),
-            supply_air_temperature=float(settings.supply_drybulb),
-            economizer=str(settings.economizer),
-            economizer_integrated=bool(settings.economizer_integrated),
-            fan_control=str(settings.fan_control),
-            bypass_factor=float(settings.bypass_factor),
-        )
+        return cls(**control_values(settings))
 
     def apply(self, settings):
         """The scenario's air-handler settings with the controls the user moved.
@@ -309,19 +284,13 @@ class DashboardInputs:
 
         Temperatures are in ``system`` (default: the unit system set).
         """
-        unit = self.unit
-        supply, supply_unit = to_display(
-            "temperature", unit.supply_air_temperature, system or self.unit_system
-        )
         name = names[self.air_handler] if names else f"air handler {self.air_handler + 1}"
-        integrated = ", integrated" if unit.economizer_integrated else ""
-        return (
-            f"{self.climate}; cooling design {self.design_percent:g} %; {name}: "
-            f"outdoor air {100 * unit.outdoor_air_fraction:.0f} %, "
-            f"supply {float(supply):.1f} {supply_unit}, "
-            f"{ECONOMIZER_CHOICES.get(unit.economizer, unit.economizer).lower()}{integrated}, "
-            f"{FAN_CHOICES.get(unit.fan_control, unit.fan_control)}, "
-            f"bypass factor {unit.bypass_factor:.2f}"
+        return inputs_stamp(
+            self.climate,
+            self.design_percent,
+            name,
+            **{key: getattr(self.unit, key) for key in UNIT_CONTROLS},
+            system=system or self.unit_system,
         )
 
 
@@ -350,51 +319,18 @@ class DesignPart:
 
 @dataclass(frozen=True, eq=False)
 class UnitResult:
-    """One air handler's results: design part and hourly year."""
+    """One air handler's results: design part and hourly year.
+
+    ``study`` is the study layer's result of this air handler
+    (:func:`plantside.study.run.run_air_handler`), from which the headline figures
+    are computed; ``hourly`` is its hourly year.
+    """
 
     name: str
     inputs: UnitInputs
     design: DesignPart
     hourly: pd.DataFrame
-
-
-@dataclass(frozen=True)
-class HeadlineFigures:
-    """The figures at the top of the dashboard, in SI.
-
-    Attributes
-    ----------
-    design_zone_load : float
-        Zone sensible + latent load at the governing design condition [kW].
-    design_coil_load : float
-        Cooling-coil total load at the governing design condition [kW]
-        (for the plant: the sum over air handlers plus the distribution gain).
-    coil_to_zone_ratio : float
-        design_coil_load / design_zone_load [-].
-    governing_condition : str
-        Label of the governing design condition (the model's, in SI; the page
-        shows :func:`condition_text` of ``governing`` in the units on show).
-    peak_coil_load : float
-        Highest hourly (coincident, for the plant) coil load of the year [kW].
-    cooling_energy : float
-        Cooling energy over the year [kWh].
-    hours_above_threshold : int
-        Hours with load above 75 % of the recommended capacity [h].
-    recommended_capacity : float
-        Design coil load plus the scenario's cooling margin [kW].
-    governing : plantside.climate.design_conditions.DesignCondition
-        The governing design condition itself (SI state).
-    """
-
-    design_zone_load: float
-    design_coil_load: float
-    coil_to_zone_ratio: float
-    governing_condition: str
-    peak_coil_load: float
-    cooling_energy: float
-    hours_above_threshold: int
-    recommended_capacity: float
-    governing: object = None
+    study: AirHandlerResult
 
 
 @dataclass(frozen=True, eq=False)
@@ -410,7 +346,7 @@ class DashboardResult:
     view : str
         "air_handler" or "plant": what ``figures``, ``coil_load`` and
         ``zone_load`` describe.
-    figures : HeadlineFigures
+    figures : plantside.study.figures.HeadlineFigures
     coil_load, zone_load : numpy.ndarray
         Hourly coil and zone load of the view [kW].
     design_loads : dict
@@ -462,15 +398,6 @@ def _choice(name: str, value, allowed) -> str:
     return value
 
 
-def _kind_label(kind: str, percent: float) -> str:
-    names = {
-        "cooling": "Dry-bulb condition",
-        "dehumidification": "Dew-point condition",
-        "enthalpy": "Enthalpy condition",
-    }
-    return f"{names.get(kind, kind)}, {percent:g} %"
-
-
 class DashboardState:
     """Inputs, last valid result, pinned result and messages of one dashboard.
 
@@ -518,9 +445,8 @@ class DashboardState:
         self.scenario = scenario
         count = len(scenario.air_handlers)
         index = int(air_handler) if 0 <= int(air_handler) < count else 0
-        climate = scenario.climate
-        if climate is None:  # a weather file named by a scenario read from disk
-            climate = "file: " + str(scenario.weather_file)
+        climate = climate_label(scenario)
+        if scenario.climate is None:  # a weather file named by a scenario read from disk
             self.uploaded.setdefault(climate, scenario.load_weather())
         self.inputs = DashboardInputs(
             units=tuple(UnitInputs.from_settings(spec.settings) for spec in scenario.air_handlers),
@@ -820,93 +746,37 @@ class DashboardState:
                 continue
             settings = unit_inputs.apply(spec.settings)
             zone_loads = self._unit_zone_loads(index, climate)
-            design = self._design_part(settings, spec, zone_loads, climate, inputs.design_percent)
-            hourly = (
-                old.hourly if reuse_year else ahu.hourly_year(settings, climate.weather, zone_loads)
+            study = run_air_handler(
+                settings,
+                zone_loads,
+                climate.weather,
+                climate.conditions,
+                inputs.design_percent,
+                self.scenario.heating_design_percent,
+                hourly=old.hourly if reuse_year else None,
             )
-            units.append(UnitResult(spec.settings.name, unit_inputs, design, hourly))
+            summary = study.cooling_design
+            design = DesignPart(
+                summary,
+                summary.points[summary.governing],
+                tuple(
+                    climate.conditions.cooling(kind, inputs.design_percent) for kind in DESIGN_KINDS
+                ),
+                design_outdoor_air_sweep(
+                    settings, zone_loads, climate.conditions, inputs.design_percent
+                ),
+            )
+            units.append(UnitResult(spec.settings.name, unit_inputs, design, study.hourly, study))
         return self._assemble(inputs, climate, tuple(units))
 
-    def _design_part(self, settings, spec, zone_loads, climate, percent) -> DesignPart:
-        conditions = tuple(climate.conditions.cooling(kind, percent) for kind in DESIGN_KINDS)
-        if isinstance(spec.zone, ZoneLoadModel):
-            model = spec.zone
-        else:
-            # hourly zone loads from a file: the design zone load is the file's peak hour
-            # (sensible, with the latent of that hour) -- common practice (no source)
-            peak = int(np.argmax(np.asarray(zone_loads.sensible)))
-            model = (float(zone_loads.sensible[peak]), float(zone_loads.latent[peak]))
-        summary = ahu.cooling_design_points(settings, model, conditions, percent=percent)
-        governing = summary.points[summary.governing]
-        fractions = SWEEP_FRACTIONS[:, None]
-        sweep = {}
-        for condition in conditions:
-            if isinstance(model, ZoneLoadModel):
-                zone = design_zone_loads(model, condition.drybulb, occupied=True)
-            else:
-                zone = HourlyZoneLoads(sensible=[model[0]], latent=[model[1]])
-            hours = ahu.air_handler_hours(
-                settings,
-                [condition.drybulb],
-                [condition.humidity_ratio],
-                [condition.pressure],
-                zone,
-                minimum_outdoor_air_fraction=fractions,
-                force_operating=True,
-            )
-            sweep[_kind_label(condition.kind, percent)] = np.asarray(
-                hours["coil_total_kW"], dtype=float
-            ).reshape(-1)
-        return DesignPart(summary, governing, conditions, sweep)
-
     def _assemble(self, inputs, climate, units) -> DashboardResult:
+        """The view's figures and loads, by the study layer's functions (as the CLI's)."""
         scenario = self.scenario
-        margin = float(scenario.cooling_margin_percent)
-        if self.view == "air_handler":
-            unit = units[inputs.air_handler]
-            loads = unit.design.governing.loads
-            design_loads = _loads_kw(loads)
-            design_zone = float(loads["zone_sensible_kW"]) + float(loads["zone_latent_kW"])
-            design_coil = float(loads["coil_total_kW"])
-            governing = str(unit.design.governing.label)
-            condition = _condition(unit, unit.design.governing.kind)
-            coil = unit.hourly["coil_total_kW"].to_numpy(dtype=float)
-            zone = _zone_hourly(unit.hourly)
-        else:
-            gain = float(scenario.distribution_gain_percent)
-            kinds = units[0].design.summary.table.index
-            totals = {kind: sum(_coil(u, kind) for u in units) for kind in kinds}
-            kind = max(totals, key=totals.get)
-            points = [u.design.summary.points[kind] for u in units]
-            design_loads = {}
-            for point in points:
-                for key, value in _loads_kw(point.loads).items():
-                    design_loads[key] = design_loads.get(key, 0.0) + value
-            factor = 1.0 + gain / 100.0
-            design_loads["distribution_gain_kW"] = (factor - 1.0) * design_loads["coil_total_kW"]
-            design_loads["coil_total_kW"] *= factor
-            design_zone = design_loads["zone_sensible_kW"] + design_loads["zone_latent_kW"]
-            design_coil = design_loads["coil_total_kW"]
-            governing = str(points[0].label)
-            condition = _condition(units[0], kind)
-            coil = plant_load_from_coil_loads(
-                np.column_stack([u.hourly["coil_total_kW"].to_numpy(dtype=float) for u in units]),
-                gain,
-            )
-            zone = np.sum([_zone_hourly(u.hourly) for u in units], axis=0)
-        capacity = float(design_capacity_from_design_load(design_coil, margin))
-        option = scenario.cooling_options[0] if scenario.cooling_options else None
-        fractions = np.asarray(option.capacity_fractions if option else (1.0,), dtype=float)
-        figures = HeadlineFigures(
-            design_zone_load=design_zone,
-            design_coil_load=design_coil,
-            coil_to_zone_ratio=design_coil / design_zone if design_zone > 0 else float("nan"),
-            governing_condition=governing,
-            peak_coil_load=float(np.max(coil)),
-            cooling_energy=float(np.sum(np.maximum(coil, 0.0))),
-            hours_above_threshold=int(np.count_nonzero(coil > PART_LOAD_THRESHOLD * capacity)),
-            recommended_capacity=capacity,
-            governing=condition,
+        studies = [unit.study for unit in units]
+        index = inputs.air_handler if self.view == "air_handler" else None
+        loads = view_loads(studies, scenario.distribution_gain_percent, index)
+        figures = headline_figures(
+            scenario, studies, climate.conditions, inputs.design_percent, index, loads
         )
         numbers = (
             figures.design_zone_load,
@@ -915,8 +785,8 @@ class DashboardState:
             figures.cooling_energy,
             figures.recommended_capacity,
         )
-        if not (np.all(np.isfinite(coil)) and np.all(np.isfinite(zone))) or not all(
-            math.isfinite(x) for x in (*numbers, *design_loads.values())
+        if not (np.all(np.isfinite(loads.coil)) and np.all(np.isfinite(loads.zone))) or not all(
+            math.isfinite(x) for x in (*numbers, *figures.design_loads.values())
         ):
             # never draw or show a NaN: refuse the result, keep the last valid one
             raise InputRangeError(
@@ -936,11 +806,11 @@ class DashboardState:
             units=units,
             view=self.view,
             figures=figures,
-            coil_load=coil,
-            zone_load=zone,
-            design_loads=design_loads,
-            machine_capacities=capacity * fractions,
-            minimum_turndown=float(option.minimum_turndown) if option else 0.15,
+            coil_load=loads.coil,
+            zone_load=loads.zone,
+            design_loads=figures.design_loads,
+            machine_capacities=np.asarray(figures.machine_capacities, dtype=float),
+            minimum_turndown=figures.minimum_turndown,
             cautions=tuple(cautions),
         )
 
@@ -954,39 +824,6 @@ class DashboardState:
         """Forget the pinned result."""
         self.pinned = None
         self._record("pin", (), time.perf_counter(), ok=not self._failing())
-
-
-def _condition(unit: UnitResult, kind: str):
-    """The design condition of ``kind`` an air handler's design part was computed at."""
-    return next(c for c in unit.design.conditions if c.kind == kind)
-
-
-def condition_text(condition, system: str) -> str:
-    """A design condition in words and the units on show.
-
-    ``"cooling 0.4 %: 95.1 °F DB / 77.0 °F MCWB"`` (IP) or ``"... 35.1 °C DB ..."``
-    (SI): the design value first, then its mean coincident companion, as the
-    ASHRAE Handbook Fundamentals climatic design tables (Ch. 14) list them.
-    Enthalpy in IP is on the I-P scale (dry air at 0 °F), via
-    :func:`plantside.units.to_display`.
-    """
-
-    def shown(quantity, value, digits=1):
-        number, unit = to_display(quantity, value, system)
-        return f"{float(number):.{digits}f} {unit}"
-
-    pct = f"{condition.percent:g} %"
-    drybulb = shown("temperature", condition.drybulb)
-    if condition.kind == "cooling":
-        return f"cooling {pct}: {drybulb} DB / {shown('temperature', condition.wet_bulb)} MCWB"
-    if condition.kind == "dehumidification":
-        return (
-            f"dehumidification {pct}: {shown('temperature', condition.dew_point)} DP / "
-            f"{shown('humidity_ratio', condition.humidity_ratio)} / {drybulb} MCDB"
-        )
-    if condition.kind == "enthalpy":
-        return f"enthalpy {pct}: {shown('enthalpy', condition.enthalpy)} / {drybulb} MCDB"
-    return f"{condition.kind} {pct}: {drybulb} DB"
 
 
 _FIGURE = r"-?\d[\d,]*(?:\.\d+)?"
@@ -1020,17 +857,3 @@ def display_text(text: str, system: str) -> str:
         return f"{first}{match['joint']}{one(match['b'])[0]} {unit}"
 
     return _SI_FIGURES.sub(convert, text)
-
-
-def _coil(unit: UnitResult, kind: str) -> float:
-    return float(unit.design.summary.points[kind].loads["coil_total_kW"])
-
-
-def _zone_hourly(hourly: pd.DataFrame) -> np.ndarray:
-    """Zone load met each hour, sensible + latent [kW]."""
-    return (hourly["zone_sensible_kW"] + hourly["zone_latent_kW"]).to_numpy(dtype=float)
-
-
-def _loads_kw(loads: Mapping[str, float]) -> dict:
-    """The power terms [kW] of a design point's loads (what the design chart breaks down)."""
-    return {key: float(value) for key, value in loads.items() if key.endswith("_kW")}

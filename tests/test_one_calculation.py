@@ -1,0 +1,101 @@
+"""The dashboard and the command line give the same plant figures for every example scenario.
+
+The command line's figures are those of ``plantside design FILE --json`` (the study
+layer's ``run_study`` and ``study_summary``); the dashboard's are those of its state
+object with the scenario's inputs untouched (per-unit caching, its own orchestration).
+Both must come from one calculation, so the figures must be equal to the last bit
+(JSON keeps a float exactly). Besides, the plant figures are checked against the
+rule they follow, from the per-unit numbers the command line prints.
+"""
+
+from __future__ import annotations
+
+import contextlib
+import io
+import json
+from pathlib import Path
+
+import pytest
+from plantside.cli.main import main
+from plantside.dashboard.state import DashboardState
+from plantside.study.scenario import load_scenario
+
+SCENARIOS = sorted(
+    (Path(__file__).resolve().parents[1] / "example_data" / "scenarios").glob("*.toml")
+)
+
+
+@pytest.fixture(scope="module", params=SCENARIOS, ids=lambda path: path.stem)
+def both(request):
+    """(command line JSON summary, scenario) of one example scenario."""
+    out = io.StringIO()
+    with contextlib.redirect_stdout(out):
+        status = main(["design", str(request.param), "--json"])
+    assert status == 0
+    return json.loads(out.getvalue()), load_scenario(request.param)
+
+
+def test_there_is_an_example_of_each_kind():
+    # a bundled climate, a weather CSV beside the scenario and a zone-load CSV
+    names = {path.stem for path in SCENARIOS}
+    assert {"mesa_lab_weather_file", "korva_school_zone_file", "quillon_clinic"} <= names
+
+
+def test_plant_view_equals_the_command_line(both):
+    summary, scenario = both
+    figures = DashboardState(scenario, view="plant").result.figures
+    plant = summary["cooling_plant"]
+    assert figures.design_coil_load == plant["design_load_kW"]
+    assert figures.governing_condition == plant["governing_condition"]
+    assert figures.recommended_capacity == plant["design_capacity_kW"]
+    assert figures.peak_coil_load == plant["annual_peak_kW"]
+    assert figures.cooling_energy == plant["annual_energy_kWh"]
+    assert figures.design_zone_load == plant["design_zone_kW"]
+    assert figures.hours_above_threshold == plant["hours_above_75_percent_of_capacity"]
+    assert figures.design_loads == plant["design_loads_kW"]
+    assert figures.option_name == plant["first_option"]
+    assert list(figures.machine_capacities) == plant["first_option_machines_kW"]
+
+
+def test_plant_figures_follow_the_coincident_rule(both):
+    # coincident design: every unit at the same outdoor state, the largest sum plus the
+    # distribution gain governs; capacity = design load x (1 + margin) (common practice)
+    summary, scenario = both
+    plant = summary["cooling_plant"]
+    gain = 1.0 + scenario.distribution_gain_percent / 100.0
+    sums = {
+        row["kind"]: sum(row[f"{u['name']}_coil_total_kW"] for u in summary["air_handlers"])
+        for row in plant["design_conditions"]
+    }
+    governing = max(sums, key=sums.get)
+    assert plant["design_load_kW"] == pytest.approx(sums[governing] * gain, rel=1e-12)
+    assert plant["design_capacity_kW"] == pytest.approx(
+        plant["design_load_kW"] * (1.0 + plant["margin_percent"] / 100.0), rel=1e-12
+    )
+    assert plant["design_loads_kW"]["distribution_gain_kW"] == pytest.approx(
+        sums[governing] * (gain - 1.0), rel=1e-9, abs=1e-9
+    )
+    # the year's peak cannot be below the largest unit's own peak (loads are >= 0)
+    assert plant["annual_peak_kW"] >= max(
+        u["annual_peak_coil_total_kW"] for u in summary["air_handlers"]
+    )
+
+
+def test_each_air_handler_view_equals_the_command_line(both):
+    summary, scenario = both
+    state = DashboardState(scenario, view="air_handler", air_handler=0)
+    for index, unit in enumerate(summary["air_handlers"]):
+        assert state.set("air_handler", index)
+        figures = state.result.figures
+        assert state.result.unit.name == unit["name"]
+        assert figures.design_coil_load == unit["design_coil_total_kW"]
+        assert figures.governing_condition == unit["governing_condition"]
+        assert figures.recommended_capacity == unit["design_capacity_kW"]
+        assert figures.peak_coil_load == unit["annual_peak_coil_total_kW"]
+        assert figures.cooling_energy == unit["annual_coil_total_kWh"]
+        assert figures.design_zone_load == unit["design_zone_kW"]
+        assert figures.hours_above_threshold == unit["hours_above_75_percent_of_capacity"]
+        # zone load = sensible + latent (ASHRAE Handbook Fundamentals Ch. 18: total load)
+        assert figures.design_zone_load == pytest.approx(
+            unit["design_zone_sensible_kW"] + unit["design_zone_latent_kW"], rel=1e-12
+        )

@@ -1,0 +1,104 @@
+"""The study charts' inputs (``plantside.charts.study_frames``): study results in, frames out.
+
+The dashboard and ``plantside charts`` both frame their charts here; these tests check
+that the dashboard's frames and stamp are exactly those the module gives for the
+scenario's own inputs, and that the frames carry the study's figures.
+"""
+
+from __future__ import annotations
+
+import re
+from pathlib import Path
+
+import numpy as np
+import pandas as pd
+import pytest
+from plantside.charts.export import safe_filename
+from plantside.charts.study_frames import (
+    CHARTS,
+    chart_frames,
+    study_chart,
+    study_chart_views,
+    view_stamp,
+    year_table,
+)
+from plantside.dashboard.app import Dashboard
+from plantside.study.figures import climate_label, first_recirculating_unit
+from plantside.study.run import run_study
+from plantside.study.scenario import load_scenario
+
+EXAMPLES = Path(__file__).resolve().parents[1] / "example_data" / "scenarios"
+#: 1 ton of refrigeration = 3.516853 kW (AHRI 550/590, NIST SP 811).
+KW_PER_TON = 3.516853
+
+
+@pytest.fixture(scope="module")
+def study():
+    scenario = load_scenario(EXAMPLES / "quillon_clinic.toml")  # written in IP
+    result = run_study(scenario)
+    views = study_chart_views(result, climate_label(scenario), first_recirculating_unit(scenario))
+    return scenario, result, views
+
+
+def test_views_are_the_plant_then_each_air_handler(study):
+    scenario, result, views = study
+    assert [index for index, _ in views] == [None, *range(len(scenario.air_handlers))]
+    assert views[0][1].plant and not any(view.plant for _, view in views[1:])
+    for index, view in views[1:]:
+        assert view.unit is result.air_handlers[index]
+
+
+def test_plant_frames_carry_the_study_figures(study):
+    _, result, views = study
+    view = views[0][1]
+    figures = view.figures
+    # the plant's figures are the cooling plant's (one calculation)
+    assert figures.design_coil_load == result.cooling.design_load
+    assert figures.recommended_capacity == result.cooling.design_capacity
+    design = chart_frames("design", view, "IP")["frame"]
+    coil = design.loc[design["component"] == "Coil load", "load"].iloc[-1]
+    # tolerance: the 7 significant figures of the ton quoted above
+    assert coil == pytest.approx(figures.design_coil_load / KW_PER_TON, rel=1e-6)
+    lines = chart_frames("distribution", view, "SI")["lines"]
+    capacity = lines.loc[lines["kind"] == "capacity", "load"].iloc[0]
+    assert capacity == pytest.approx(sum(figures.machine_capacities), rel=1e-12)
+    # the machines share the recommended capacity as the first option's fractions say
+    fractions = result.scenario.cooling_options[0].capacity_fractions
+    assert sum(figures.machine_capacities) == pytest.approx(
+        figures.recommended_capacity * sum(fractions), rel=1e-12
+    )
+    table = year_table(view)
+    np.testing.assert_array_equal(table["coil_total_kW"].to_numpy(), result.cooling.hourly_load)
+    assert (table["operating"] == (result.cooling.hourly_load > 0)).all()
+
+
+def test_unknown_chart_is_refused(study):
+    with pytest.raises(KeyError, match="unknown chart"):
+        chart_frames("pie", study[2][0][1], "SI")
+
+
+@pytest.mark.parametrize("view_name", ["plant", "air_handler"])
+def test_dashboard_frames_and_stamp_are_the_modules(study, view_name):
+    scenario, _, views = study
+    index = first_recirculating_unit(scenario)
+    dashboard = Dashboard(scenario, view=view_name, air_handler=index)
+    view = views[0][1] if view_name == "plant" else views[index + 1][1]
+    system = dashboard.state.inputs.unit_system
+    for name in CHARTS:
+        ours = chart_frames(name, view, system)
+        shown = dashboard._frames(name, dashboard.state.result, system)
+        assert ours.keys() == shown.keys()
+        for key in ours:
+            pd.testing.assert_frame_equal(ours[key], shown[key])
+        chart = study_chart(name, ours, system, view)
+        assert chart.to_dict()["title"] == dashboard.chart_specs[name].to_dict()["title"]
+    stamp = dashboard.stamp()
+    when = re.search(r"\d{4}-\d\d-\d\d \d\d:\d\d", stamp)[0]
+    assert view_stamp(scenario, view, when) == stamp
+
+
+def test_safe_filename_keeps_no_folder():
+    # the rule of the module: letters, digits, dot, dash, underscore and space only
+    assert safe_filename("../../etc/passwd") == "_.._etc_passwd"
+    assert safe_filename("AHU 1/east") == "AHU 1_east"
+    assert safe_filename("") == "plantside-export"
