@@ -21,7 +21,7 @@ control type                 economizer disabled when
 Conversion of the enthalpy limit: IP enthalpy is referenced to dry air at 0 °F,
 SI to dry air at 0 °C, and 0.240 Btu/(lb °F) x 32 °F = 7.68 Btu/lb, so
 h[kJ/kg] = 2.326 (h[Btu/lb] - 7.68); 28 Btu/lb -> 47.3 kJ/kg (ASHRAE Handbook
-Fundamentals 2017 Ch. 1, Eq. 32 in both unit systems).
+Fundamentals 2017 Ch. 1, Eq. 30 in both unit systems).
 
 Damper control when enabled: the dampers modulate to hold the mixed-air set point
 (the coil-leaving target minus any blow-through fan rise) and never close below
@@ -129,11 +129,22 @@ class EconomizerPosition(NamedTuple):
 
 
 def enthalpy_si_from_ip_table(enthalpy_btulb):
-    """SI enthalpy [kJ/kg, dry air at 0 °C] from an IP table value [Btu/lb, dry air at 0 °F].
+    r"""SI enthalpy [kJ/kg, dry air at 0 °C] from an IP table value [Btu/lb, dry air at 0 °F].
 
     h_SI = 2.326 (h_IP - 0.240 x 32); both scales use liquid water at 0 °C (32 °F) for
     the vapour term, so only the dry-air reference differs (ASHRAE Handbook
-    Fundamentals 2017 Ch. 1, Eq. 32 in SI and IP).
+    Fundamentals 2017 Ch. 1, Eq. 30 in SI and IP).
+
+    Notes
+    -----
+    .. math::
+
+        h_{SI} = 2.326 \, (h_{IP} - 0.240 \times 32)
+
+    Examples
+    --------
+    >>> round(float(enthalpy_si_from_ip_table(28.0)), 1)  # 28 Btu/lb -> kJ/kg
+    47.3
     """
     return KJKG_PER_BTULB * (np.asarray(enthalpy_btulb, dtype=float) - 0.240 * 32.0)
 
@@ -161,7 +172,7 @@ def economizer_enabled(
     drybulb_limit=DEFAULT_DRYBULB_LIMIT,
     enthalpy_limit=DEFAULT_ENTHALPY_LIMIT,
 ):
-    """Whether the economizer may open beyond the minimum (high limit not exceeded).
+    r"""Whether the economizer may open beyond the minimum (high limit not exceeded).
 
     Parameters
     ----------
@@ -182,9 +193,26 @@ def economizer_enabled(
         True where the economizer is enabled. At exactly the limit the economizer stays
         enabled (shutoff is when the outdoor value *exceeds* the limit).
 
+    Notes
+    -----
+    .. math::
+
+        \text{disabled where}\quad
+        \begin{cases}
+        t_{o} > t_{limit} & \text{fixed dry bulb} \\
+        t_{o} > t_{r} & \text{differential dry bulb} \\
+        h_{o} > h_{limit} \ \lor\ t_{o} > t_{limit} & \text{fixed enthalpy} \\
+        h_{o} > h_{r} \ \lor\ t_{o} > t_{limit} & \text{differential enthalpy}
+        \end{cases}
+
     References
     ----------
     ASHRAE Standard 90.1-2019, section 6.5.1.1.3 and Table 6.5.1.1.3.
+
+    Examples
+    --------
+    >>> economizer_enabled("fixed_drybulb", [20.0, 26.0], 40.0, 24.0, 47.0).tolist()
+    [True, False]
     """
     control = EconomizerControl.parse(control)
     t_o = np.asarray(outdoor_drybulb, dtype=float)

@@ -65,7 +65,7 @@ def recovery_leaving_state(
     *,
     check=True,
 ):
-    """Outdoor air state leaving the recovery device (balanced flows).
+    r"""Outdoor air state leaving the recovery device (balanced flows).
 
     Parameters
     ----------
@@ -89,10 +89,22 @@ def recovery_leaving_state(
         ``drybulb`` [°C] and ``humidity_ratio`` [kg/kg dry air] of the outdoor air
         leaving the device (a named tuple).
 
+    Notes
+    -----
+    .. math::
+
+        t_2 = t_1 - f\, \varepsilon_s (t_1 - t_3), \qquad W_2 = W_1 - f\, \varepsilon_L (W_1 - W_3)
+
     References
     ----------
     ASHRAE Handbook HVAC Systems and Equipment 2020, Ch. 26, Eq. 1 (effectiveness
     definition) at balanced flow.
+
+    Examples
+    --------
+    >>> air = recovery_leaving_state(-5.0, 0.002, 22.0, 0.007, 0.7, 0.6)
+    >>> round(float(air.drybulb), 2), round(float(air.humidity_ratio), 4)
+    (13.9, 0.005)
     """
     if check:
         check_range("sensible_effectiveness", sensible_effectiveness, 0.0, 1.0, "(fraction)")
@@ -116,7 +128,7 @@ def total_effectiveness(
     sensible_effectiveness,
     latent_effectiveness=0.0,
 ):
-    """Total (enthalpy) effectiveness implied by sensible and latent effectiveness.
+    r"""Total (enthalpy) effectiveness implied by sensible and latent effectiveness.
 
     Parameters
     ----------
@@ -132,9 +144,20 @@ def total_effectiveness(
     numpy.ndarray
         eps_t = (h1 - h2) / (h1 - h3) [-] (NaN where h1 = h3).
 
+    Notes
+    -----
+    .. math::
+
+        \varepsilon_t = \frac{h_1 - h_2}{h_1 - h_3}
+
     References
     ----------
     ASHRAE Handbook HVAC Systems and Equipment 2020, Ch. 26, Eq. 1 with x = enthalpy.
+
+    Examples
+    --------
+    >>> round(float(total_effectiveness(-5.0, 0.002, 22.0, 0.007, 0.7, 0.6)), 3)
+    0.667
     """
     t2, w2 = recovery_leaving_state(
         outdoor_drybulb,
@@ -172,7 +195,7 @@ def recovery_fraction_for_mixed_drybulb(
         B = x [a c1 + 1.86 b (t1 - T)]
         C = x c1 t1 + (1 - x) c_r t_r - T (x c1 + (1 - x) c_r)
 
-    (mass and energy balances of adiabatic mixing and Eq. 32 of ASHRAE Handbook
+    (mass and energy balances of adiabatic mixing and Eq. 30 of ASHRAE Handbook
     Fundamentals 2017 Ch. 1; the 2501 W terms cancel). The root nearest the linear
     estimate -C/B is returned, unclipped.
 

@@ -2,7 +2,7 @@
 
 Mixing conserves dry air, water and energy, so the mixed humidity ratio and
 enthalpy are the dry-air-mass-weighted means of the two streams [1]. The mixed
-dry bulb follows from the mixed enthalpy and humidity ratio (Eq. 32 of [1]); it
+dry bulb follows from the mixed enthalpy and humidity ratio (Eq. 30 of [1]); it
 is close to, but not exactly, the mass-weighted mean of the dry bulbs, and never
 the volume-weighted mean (the trade's quick method, off by the density ratio of
 the streams).
@@ -43,7 +43,7 @@ class MixedState(NamedTuple):
 
 
 def _enthalpy(t, w):
-    # Eq. 32 of ASHRAE Handbook Fundamentals 2017 Ch. 1 (kept inline for speed).
+    # Eq. 30 of ASHRAE Handbook Fundamentals 2017 Ch. 1 (kept inline for speed).
     return CP_DRY_AIR * t + w * (LATENT_HEAT_0C + CP_WATER_VAPOR * t)
 
 
@@ -65,7 +65,7 @@ def mixed_state(
     *,
     check=True,
 ):
-    """State of a mixture of outdoor and return air.
+    r"""State of a mixture of outdoor and return air.
 
     Parameters
     ----------
@@ -86,12 +86,24 @@ def mixed_state(
 
     Notes
     -----
-    W3 = W2 + x (W1 - W2); h3 = h2 + x (h1 - h2); t3 = (h3 - 2501 W3)/(1.006 + 1.86 W3).
+    .. math::
+
+        W_3 = W_2 + x (W_1 - W_2), \qquad h_3 = h_2 + x (h_1 - h_2),
+
+        t_3 = \frac{h_3 - 2501\, W_3}{1.006 + 1.86\, W_3}
+
+    with x the outdoor-air fraction, 1 the outdoor and 2 the return stream.
 
     References
     ----------
     ASHRAE Handbook Fundamentals 2017, Ch. 1, adiabatic mixing (mass and energy
-    balances) and Eq. 32 for the dry bulb.
+    balances) and Eq. 30 for the dry bulb.
+
+    Examples
+    --------
+    >>> mix = mixed_state(0.3, 32.0, 0.018, 24.0, 0.0093)
+    >>> round(float(mix.drybulb), 2), round(float(mix.humidity_ratio), 5)
+    (26.43, 0.01191)
     """
     x = np.asarray(outdoor_fraction, dtype=float)
     arrays = [np.asarray(v, dtype=float) for v in (outdoor_drybulb, outdoor_humidity_ratio)]
@@ -108,7 +120,7 @@ def mixed_state(
 def mixed_state_from_flows(
     mass_flow_1, drybulb_1, humidity_ratio_1, mass_flow_2, drybulb_2, humidity_ratio_2
 ):
-    """State of the mixture of two streams given their dry-air mass flows.
+    r"""State of the mixture of two streams given their dry-air mass flows.
 
     Parameters
     ----------
@@ -125,9 +137,22 @@ def mixed_state_from_flows(
         ``drybulb`` [°C], ``humidity_ratio`` [kg/kg dry air], ``enthalpy`` [kJ/kg dry air]
         of the mixture (a named tuple: unpacks as before).
 
+    Notes
+    -----
+    .. math::
+
+        x = \frac{\dot m_1}{\dot m_1 + \dot m_2}, \quad W_3 = W_2 + x (W_1 - W_2),
+        \quad h_3 = h_2 + x (h_1 - h_2)
+
     References
     ----------
     ASHRAE Handbook Fundamentals 2017, Ch. 1, adiabatic mixing of two moist airstreams.
+
+    Examples
+    --------
+    >>> mix = mixed_state_from_flows(2.0, 32.0, 0.018, 6.0, 24.0, 0.0093)
+    >>> round(float(mix.enthalpy), 2)  # kJ/kg: (2 x 78.27 + 6 x 47.82) / 8
+    55.43
     """
     m1 = check_range("mass_flow_1", mass_flow_1, 0.0, None, "kg/s")
     m2 = check_range("mass_flow_2", mass_flow_2, 0.0, None, "kg/s")
@@ -139,7 +164,7 @@ def mixed_state_from_flows(
 def outdoor_fraction_for_mixed_drybulb(
     target_drybulb, outdoor_drybulb, outdoor_humidity_ratio, return_drybulb, return_humidity_ratio
 ):
-    """Outdoor-air mass fraction that gives a mixed dry bulb exactly equal to a target.
+    r"""Outdoor-air mass fraction that gives a mixed dry bulb exactly equal to a target.
 
     Humidity ratio and enthalpy of the mixture are linear in the fraction x, so the
     condition t3 (1.006 + 1.86 W3) = h3 - 2501 W3 is linear in x and solved in closed form.
@@ -161,8 +186,17 @@ def outdoor_fraction_for_mixed_drybulb(
 
     Notes
     -----
-    x = (h2 - 2501 W2 - t* (1.006 + 1.86 W2)) / ((2501 + 1.86 t*)(W1 - W2) - (h1 - h2)),
-    from the mixing balances and Eq. 32 of ASHRAE Handbook Fundamentals 2017 Ch. 1.
+    .. math::
+
+        x = \frac{h_2 - 2501\, W_2 - t^* (1.006 + 1.86\, W_2)}
+                 {(2501 + 1.86\, t^*)(W_1 - W_2) - (h_1 - h_2)}
+
+    From the mixing balances and Eq. 30 of ASHRAE Handbook Fundamentals 2017 Ch. 1.
+
+    Examples
+    --------
+    >>> round(float(outdoor_fraction_for_mixed_drybulb(13.0, 5.0, 0.004, 24.0, 0.0093)), 4)
+    0.5813
     """
     ts = np.asarray(target_drybulb, dtype=float)
     t_o, w_o = np.asarray(outdoor_drybulb, float), np.asarray(outdoor_humidity_ratio, float)

@@ -15,6 +15,17 @@ Every function validates its inputs unless called with ``check=False`` (for
 inner code that has validated already) and raises
 :class:`plantside.errors.InputRangeError` naming the quantity and its range.
 
+Why one module of about 1,500 lines: it is one topic, the moist-air state, and its
+parts are not independent. The saturation pressure kernels (Eqs. 5 and 6, with their
+slope), the per-element form coefficients and the range validators are private and
+shared by every section; the two Newton solvers (dew point, wet bulb) reuse the
+kernels' value-and-slope form and the saturation constants at 0 °C and the triple
+point. Split by topic, each new module would import the others' private helpers,
+which hides the hub rather than showing it. About half of the length is the
+docstrings (equation, units, references and a worked example for every public
+function). The sections, in order: saturation and pressure; the humidity-ratio hub;
+dew point and wet bulb solvers; enthalpy, volume and density; the ``AirState``.
+
 References
 ----------
 [1] ASHRAE, 2017. ASHRAE Handbook - Fundamentals (SI), Chapter 1, Psychrometrics.
@@ -269,7 +280,7 @@ _PWS_HIGHEST = float(np.exp(_ln_pws_water(ZERO_CELSIUS + DRYBULB_MAX_C))) * (1 +
 
 
 def saturation_vapor_pressure_over_ice(drybulb, *, check=True):
-    """Saturation vapour pressure over ice.
+    r"""Saturation vapour pressure over ice.
 
     Parameters
     ----------
@@ -281,9 +292,20 @@ def saturation_vapor_pressure_over_ice(drybulb, *, check=True):
     numpy.ndarray
         Saturation vapour pressure [Pa].
 
+    Notes
+    -----
+    .. math::
+
+        \ln p_{ws} = \frac{C_1}{T} + C_2 + C_3 T + C_4 T^2 + C_5 T^3 + C_6 T^4 + C_7 \ln T
+
     References
     ----------
     ASHRAE Handbook Fundamentals 2017, Ch. 1, Eq. 5 (Hyland and Wexler 1983).
+
+    Examples
+    --------
+    >>> round(float(saturation_vapor_pressure_over_ice(-10.0)), 2)
+    259.9
     """
     t = _as_float(drybulb)
     if check:
@@ -292,7 +314,7 @@ def saturation_vapor_pressure_over_ice(drybulb, *, check=True):
 
 
 def saturation_vapor_pressure_over_water(drybulb, *, check=True):
-    """Saturation vapour pressure over liquid water.
+    r"""Saturation vapour pressure over liquid water.
 
     Parameters
     ----------
@@ -304,9 +326,20 @@ def saturation_vapor_pressure_over_water(drybulb, *, check=True):
     numpy.ndarray
         Saturation vapour pressure [Pa].
 
+    Notes
+    -----
+    .. math::
+
+        \ln p_{ws} = \frac{C_8}{T} + C_9 + C_{10} T + C_{11} T^2 + C_{12} T^3 + C_{13} \ln T
+
     References
     ----------
     ASHRAE Handbook Fundamentals 2017, Ch. 1, Eq. 6 (Hyland and Wexler 1983).
+
+    Examples
+    --------
+    >>> round(float(saturation_vapor_pressure_over_water(20.0)), 1)
+    2338.8
     """
     t = _as_float(drybulb)
     if check:
@@ -315,7 +348,7 @@ def saturation_vapor_pressure_over_water(drybulb, *, check=True):
 
 
 def saturation_vapor_pressure(drybulb, *, check=True):
-    """Saturation vapour pressure: over ice at or below 0.01 °C, over water above.
+    r"""Saturation vapour pressure: over ice at or below 0.01 °C, over water above.
 
     Parameters
     ----------
@@ -327,10 +360,28 @@ def saturation_vapor_pressure(drybulb, *, check=True):
     numpy.ndarray
         Saturation vapour pressure [Pa].
 
+    Notes
+    -----
+    .. math::
+
+        \ln p_{ws} = \begin{cases}
+          C_1/T + C_2 + C_3 T + C_4 T^2 + C_5 T^3 + C_6 T^4 + C_7 \ln T & t \le 0.01\ \mathrm{°C} \\
+          C_8/T + C_9 + C_{10} T + C_{11} T^2 + C_{12} T^3 + C_{13} \ln T & t > 0.01\ \mathrm{°C}
+        \end{cases}
+
+    with T = t + 273.15 [K] and the coefficients of
+    :data:`plantside.constants.SATURATION_ICE_COEFFICIENTS` and
+    :data:`plantside.constants.SATURATION_WATER_COEFFICIENTS`.
+
     References
     ----------
     ASHRAE Handbook Fundamentals 2017, Ch. 1, Eqs. 5 and 6; the switch at the triple
     point follows the handbook's Table 3 (ice below 0.01 °C).
+
+    Examples
+    --------
+    >>> round(float(saturation_vapor_pressure(20.0)), 1)  # psychrolib: 2338.8 Pa
+    2338.8
     """
     t = _as_float(drybulb)
     if check:
@@ -339,7 +390,7 @@ def saturation_vapor_pressure(drybulb, *, check=True):
 
 
 def pressure_from_altitude(altitude, *, check=True):
-    """Standard atmospheric pressure at an altitude.
+    r"""Standard atmospheric pressure at an altitude.
 
     Parameters
     ----------
@@ -351,10 +402,21 @@ def pressure_from_altitude(altitude, *, check=True):
     numpy.ndarray
         Pressure [Pa].
 
+    Notes
+    -----
+    .. math::
+
+        p = 101\,325 \, (1 - 2.25577 \times 10^{-5} Z)^{5.2559}
+
     References
     ----------
     ASHRAE Handbook Fundamentals 2017, Ch. 1, Eq. 3:
     p = 101.325 (1 - 2.25577e-5 Z)^5.2559 kPa.
+
+    Examples
+    --------
+    >>> round(float(pressure_from_altitude(1500.0)))  # psychrolib: 84556 Pa
+    84556
     """
     z = _as_float(altitude)
     if check:
@@ -365,7 +427,7 @@ def pressure_from_altitude(altitude, *, check=True):
 
 
 def altitude_from_pressure(pressure, *, check=True):
-    """Altitude of the standard atmosphere at a pressure (inverse of Eq. 3 of [1]).
+    r"""Altitude of the standard atmosphere at a pressure (inverse of Eq. 3 of [1]).
 
     Parameters
     ----------
@@ -376,6 +438,17 @@ def altitude_from_pressure(pressure, *, check=True):
     -------
     numpy.ndarray
         Altitude [m].
+
+    Notes
+    -----
+    .. math::
+
+        Z = \frac{1 - (p / 101\,325)^{1/5.2559}}{2.25577 \times 10^{-5}}
+
+    Examples
+    --------
+    >>> round(float(altitude_from_pressure(84556.0)))
+    1500
     """
     p = _as_float(pressure)
     if check:
@@ -390,7 +463,7 @@ def altitude_from_pressure(pressure, *, check=True):
 # humidity ratio hub
 # ---------------------------------------------------------------------------------------
 def humidity_ratio_from_vapor_pressure(vapor_pressure, pressure, *, check=True):
-    """Humidity ratio from the partial pressure of water vapour.
+    r"""Humidity ratio from the partial pressure of water vapour.
 
     Parameters
     ----------
@@ -404,9 +477,20 @@ def humidity_ratio_from_vapor_pressure(vapor_pressure, pressure, *, check=True):
     numpy.ndarray
         Humidity ratio [kg/kg dry air].
 
+    Notes
+    -----
+    .. math::
+
+        W = 0.621945 \, \frac{p_w}{p - p_w}
+
     References
     ----------
     ASHRAE Handbook Fundamentals 2017, Ch. 1, Eq. 20: W = 0.621945 pw / (p - pw).
+
+    Examples
+    --------
+    >>> round(float(humidity_ratio_from_vapor_pressure(1500.0, 101325.0)), 6)
+    0.009346
     """
     pw, p = _as_float(vapor_pressure), _as_float(pressure)
     if check:
@@ -419,7 +503,7 @@ def humidity_ratio_from_vapor_pressure(vapor_pressure, pressure, *, check=True):
 
 
 def vapor_pressure_from_humidity_ratio(humidity_ratio, pressure, *, check=True):
-    """Partial pressure of water vapour from humidity ratio.
+    r"""Partial pressure of water vapour from humidity ratio.
 
     Parameters
     ----------
@@ -433,10 +517,21 @@ def vapor_pressure_from_humidity_ratio(humidity_ratio, pressure, *, check=True):
     numpy.ndarray
         Vapour pressure [Pa].
 
+    Notes
+    -----
+    .. math::
+
+        p_w = \frac{p \, W}{0.621945 + W}
+
     References
     ----------
     ASHRAE Handbook Fundamentals 2017, Ch. 1, Eq. 20 solved for pw:
     pw = p W / (0.621945 + W).
+
+    Examples
+    --------
+    >>> round(float(vapor_pressure_from_humidity_ratio(0.01, 101325.0)), 1)
+    1603.4
     """
     w, p = _as_float(humidity_ratio), _as_float(pressure)
     if check:
@@ -446,7 +541,7 @@ def vapor_pressure_from_humidity_ratio(humidity_ratio, pressure, *, check=True):
 
 
 def saturation_humidity_ratio(drybulb, pressure, *, check=True):
-    """Humidity ratio of saturated air.
+    r"""Humidity ratio of saturated air.
 
     Parameters
     ----------
@@ -460,10 +555,21 @@ def saturation_humidity_ratio(drybulb, pressure, *, check=True):
     numpy.ndarray
         Saturation humidity ratio Ws [kg/kg dry air].
 
+    Notes
+    -----
+    .. math::
+
+        W_s = 0.621945 \, \frac{p_{ws}(t)}{p - p_{ws}(t)}
+
     References
     ----------
     ASHRAE Handbook Fundamentals 2017, Ch. 1, Eq. 20 at saturation (pw = pws):
     Ws = 0.621945 pws / (p - pws).
+
+    Examples
+    --------
+    >>> round(float(saturation_humidity_ratio(20.0, 101325.0)), 6)  # psychrolib: 0.014695
+    0.014695
     """
     t, p = _as_float(drybulb), _as_float(pressure)
     if check:
@@ -482,7 +588,7 @@ def _check_humidity_ratio(drybulb, humidity_ratio, pressure):
 
 
 def humidity_ratio_from_relative_humidity(drybulb, relative_humidity, pressure, *, check=True):
-    """Humidity ratio from dry bulb and relative humidity.
+    r"""Humidity ratio from dry bulb and relative humidity.
 
     Parameters
     ----------
@@ -498,9 +604,20 @@ def humidity_ratio_from_relative_humidity(drybulb, relative_humidity, pressure, 
     numpy.ndarray
         Humidity ratio [kg/kg dry air].
 
+    Notes
+    -----
+    .. math::
+
+        p_w = \phi \, p_{ws}(t), \qquad W = 0.621945 \, \frac{p_w}{p - p_w}
+
     References
     ----------
     ASHRAE Handbook Fundamentals 2017, Ch. 1, Eq. 22 (phi = pw/pws) and Eq. 20.
+
+    Examples
+    --------
+    >>> round(float(humidity_ratio_from_relative_humidity(24.0, 0.5, 101325.0)), 6)
+    0.009299
     """
     t, rh, p = _as_float(drybulb), _as_float(relative_humidity), _as_float(pressure)
     if check:
@@ -523,7 +640,7 @@ def humidity_ratio_from_relative_humidity(drybulb, relative_humidity, pressure, 
 
 
 def relative_humidity_from_humidity_ratio(drybulb, humidity_ratio, pressure, *, check=True):
-    """Relative humidity from dry bulb and humidity ratio.
+    r"""Relative humidity from dry bulb and humidity ratio.
 
     Parameters
     ----------
@@ -539,9 +656,20 @@ def relative_humidity_from_humidity_ratio(drybulb, humidity_ratio, pressure, *, 
     numpy.ndarray
         Relative humidity [0..1].
 
+    Notes
+    -----
+    .. math::
+
+        \phi = \frac{p_w}{p_{ws}(t)}, \qquad p_w = \frac{p \, W}{0.621945 + W}
+
     References
     ----------
     ASHRAE Handbook Fundamentals 2017, Ch. 1, Eqs. 20 and 22: phi = pw / pws.
+
+    Examples
+    --------
+    >>> round(float(relative_humidity_from_humidity_ratio(24.0, 0.0093, 101325.0)), 3)
+    0.5
     """
     t, w, p = _as_float(drybulb), _as_float(humidity_ratio), _as_float(pressure)
     if check:
@@ -553,7 +681,7 @@ def relative_humidity_from_humidity_ratio(drybulb, humidity_ratio, pressure, *, 
 
 
 def humidity_ratio_from_dew_point(dew_point, pressure, *, check=True):
-    """Humidity ratio from dew point: the saturation humidity ratio at the dew point.
+    r"""Humidity ratio from dew point: the saturation humidity ratio at the dew point.
 
     Parameters
     ----------
@@ -567,10 +695,21 @@ def humidity_ratio_from_dew_point(dew_point, pressure, *, check=True):
     numpy.ndarray
         Humidity ratio [kg/kg dry air].
 
+    Notes
+    -----
+    .. math::
+
+        W = 0.621945 \, \frac{p_{ws}(t_d)}{p - p_{ws}(t_d)}
+
     References
     ----------
     ASHRAE Handbook Fundamentals 2017, Ch. 1, Eqs. 5/6 at the dew point and Eq. 20
     (pw = pws(td), the definition of dew point, Eq. 36).
+
+    Examples
+    --------
+    >>> round(float(humidity_ratio_from_dew_point(12.0, 101325.0)), 6)  # psychrolib: 0.008730
+    0.00873
     """
     td, p = _as_float(dew_point), _as_float(pressure)
     if check:
@@ -620,10 +759,21 @@ def dew_point_from_vapor_pressure(vapor_pressure, *, check=True):
     numpy.ndarray
         Dew-point temperature [°C], -100 to 200 °C.
 
+    Notes
+    -----
+    .. math::
+
+        p_{ws}(t_d) = p_w
+
     References
     ----------
     ASHRAE Handbook Fundamentals 2017, Ch. 1, Eq. 36 (pws(td) = pw) with Eqs. 5 and 6;
     first guess from Eqs. 37 and 38.
+
+    Examples
+    --------
+    >>> round(float(dew_point_from_vapor_pressure(1500.0)), 2)  # psychrolib: 13.02 °C
+    13.02
     """
     pw = _as_float(vapor_pressure)
     if check:
@@ -664,7 +814,7 @@ def dew_point_from_vapor_pressure(vapor_pressure, *, check=True):
 
 
 def dew_point_from_humidity_ratio(humidity_ratio, pressure, *, check=True):
-    """Dew point from humidity ratio.
+    r"""Dew point from humidity ratio.
 
     Parameters
     ----------
@@ -678,9 +828,20 @@ def dew_point_from_humidity_ratio(humidity_ratio, pressure, *, check=True):
     numpy.ndarray
         Dew-point temperature [°C].
 
+    Notes
+    -----
+    .. math::
+
+        p_{ws}(t_d) = \frac{p \, W}{0.621945 + W}
+
     References
     ----------
     ASHRAE Handbook Fundamentals 2017, Ch. 1, Eq. 20 (pw from W) and Eq. 36.
+
+    Examples
+    --------
+    >>> round(float(dew_point_from_humidity_ratio(0.0093, 101325.0)), 2)  # psychrolib: 12.95 °C
+    12.95
     """
     w, p = _as_float(humidity_ratio), _as_float(pressure)
     if check:
@@ -725,7 +886,7 @@ def _humidity_ratio_from_wet_bulb(t, twb, p, *, with_slope=False):
 
 
 def humidity_ratio_from_wet_bulb(drybulb, wet_bulb, pressure, *, check=True):
-    """Humidity ratio from dry bulb and thermodynamic wet bulb.
+    r"""Humidity ratio from dry bulb and thermodynamic wet bulb.
 
     Parameters
     ----------
@@ -741,10 +902,27 @@ def humidity_ratio_from_wet_bulb(drybulb, wet_bulb, pressure, *, check=True):
     numpy.ndarray
         Humidity ratio [kg/kg dry air].
 
+    Notes
+    -----
+    .. math::
+
+        W = \frac{(2501 - 2.326\, t^*) W_s^* - 1.006 (t - t^*)}{2501 + 1.86\, t - 4.186\, t^*}
+        \quad (t^* \ge 0\ \mathrm{°C}),
+
+        W = \frac{(2830 - 0.24\, t^*) W_s^* - 1.006 (t - t^*)}{2830 + 1.86\, t - 2.1\, t^*}
+        \quad (t^* < 0\ \mathrm{°C}),
+
+    with :math:`W_s^*` the saturation humidity ratio at the wet bulb :math:`t^*`.
+
     References
     ----------
     ASHRAE Handbook Fundamentals 2017, Ch. 1, Eq. 33 (wet bulb above freezing) and
     Eq. 35 (below freezing).
+
+    Examples
+    --------
+    >>> round(float(humidity_ratio_from_wet_bulb(30.0, 20.0, 101325.0)), 6)  # psychrolib
+    0.010517
     """
     t, twb, p = _as_float(drybulb), _as_float(wet_bulb), _as_float(pressure)
     if check:
@@ -789,7 +967,7 @@ def _wet_bulb_first_guess(t, w, p):
 
 
 def wet_bulb_from_humidity_ratio(drybulb, humidity_ratio, pressure, *, check=True):
-    """Thermodynamic wet bulb from dry bulb and humidity ratio.
+    r"""Thermodynamic wet bulb from dry bulb and humidity ratio.
 
     Solves Eq. 33/35 of [1] for the wet bulb by Newton iteration on whole arrays,
     clipped to a bracket between -100 °C and the dry bulb (and below the temperature at
@@ -813,10 +991,24 @@ def wet_bulb_from_humidity_ratio(drybulb, humidity_ratio, pressure, *, check=Tru
     numpy.ndarray
         Thermodynamic wet-bulb temperature [°C], converged to about 1e-7 K or better.
 
+    Notes
+    -----
+    .. math::
+
+        W = \frac{(a - b\, t^*) W_s^*(t^*) - 1.006 (t - t^*)}{a + 1.86\, t - c\, t^*}
+        \ \text{solved for } t^*,
+
+    with (a, b, c) = (2501, 2.326, 4.186) over water and (2830, 0.24, 2.1) over ice.
+
     References
     ----------
     ASHRAE Handbook Fundamentals 2017, Ch. 1, Eqs. 33 and 35; first guess from Eqs. 37
     and 38.
+
+    Examples
+    --------
+    >>> round(float(wet_bulb_from_humidity_ratio(30.0, 0.0106, 101325.0)), 2)  # psychrolib: 20.06
+    20.06
     """
     t, w, p = _as_float(drybulb), _as_float(humidity_ratio), _as_float(pressure)
     if check:
@@ -902,7 +1094,7 @@ def wet_bulb_from_humidity_ratio(drybulb, humidity_ratio, pressure, *, check=Tru
 # enthalpy, volume, density
 # ---------------------------------------------------------------------------------------
 def enthalpy_from_humidity_ratio(drybulb, humidity_ratio, *, check=True):
-    """Specific enthalpy of moist air.
+    r"""Specific enthalpy of moist air.
 
     Parameters
     ----------
@@ -916,9 +1108,20 @@ def enthalpy_from_humidity_ratio(drybulb, humidity_ratio, *, check=True):
     numpy.ndarray
         Enthalpy [kJ/kg dry air], referenced to dry air and liquid water at 0 °C.
 
+    Notes
+    -----
+    .. math::
+
+        h = 1.006\, t + W (2501 + 1.86\, t)
+
     References
     ----------
     ASHRAE Handbook Fundamentals 2017, Ch. 1, Eq. 30: h = 1.006 t + W (2501 + 1.86 t).
+
+    Examples
+    --------
+    >>> round(float(enthalpy_from_humidity_ratio(24.0, 0.0093)), 2)  # psychrolib: 47.82 kJ/kg
+    47.82
     """
     t, w = _as_float(drybulb), _as_float(humidity_ratio)
     if check:
@@ -928,7 +1131,7 @@ def enthalpy_from_humidity_ratio(drybulb, humidity_ratio, *, check=True):
 
 
 def drybulb_from_enthalpy(enthalpy, humidity_ratio, *, check=True):
-    """Dry bulb from enthalpy and humidity ratio (Eq. 30 of [1] solved for t).
+    r"""Dry bulb from enthalpy and humidity ratio (Eq. 30 of [1] solved for t).
 
     Parameters
     ----------
@@ -942,9 +1145,20 @@ def drybulb_from_enthalpy(enthalpy, humidity_ratio, *, check=True):
     numpy.ndarray
         Dry-bulb temperature [°C].
 
+    Notes
+    -----
+    .. math::
+
+        t = \frac{h - 2501\, W}{1.006 + 1.86\, W}
+
     References
     ----------
     ASHRAE Handbook Fundamentals 2017, Ch. 1, Eq. 30: t = (h - 2501 W)/(1.006 + 1.86 W).
+
+    Examples
+    --------
+    >>> round(float(drybulb_from_enthalpy(47.8, 0.0093)), 2)
+    23.98
     """
     h, w = _as_float(enthalpy), _as_float(humidity_ratio)
     if check:
@@ -957,7 +1171,7 @@ def drybulb_from_enthalpy(enthalpy, humidity_ratio, *, check=True):
 
 
 def humidity_ratio_from_enthalpy(drybulb, enthalpy, *, check=True):
-    """Humidity ratio from dry bulb and enthalpy (Eq. 30 of [1] solved for W).
+    r"""Humidity ratio from dry bulb and enthalpy (Eq. 30 of [1] solved for W).
 
     Parameters
     ----------
@@ -971,9 +1185,20 @@ def humidity_ratio_from_enthalpy(drybulb, enthalpy, *, check=True):
     numpy.ndarray
         Humidity ratio [kg/kg dry air].
 
+    Notes
+    -----
+    .. math::
+
+        W = \frac{h - 1.006\, t}{2501 + 1.86\, t}
+
     References
     ----------
     ASHRAE Handbook Fundamentals 2017, Ch. 1, Eq. 30: W = (h - 1.006 t)/(2501 + 1.86 t).
+
+    Examples
+    --------
+    >>> round(float(humidity_ratio_from_enthalpy(24.0, 47.8)), 6)
+    0.009293
     """
     t, h = _as_float(drybulb), _as_float(enthalpy)
     if check:
@@ -985,7 +1210,7 @@ def humidity_ratio_from_enthalpy(drybulb, enthalpy, *, check=True):
 
 
 def specific_volume_from_humidity_ratio(drybulb, humidity_ratio, pressure, *, check=True):
-    """Specific volume of moist air per unit mass of dry air.
+    r"""Specific volume of moist air per unit mass of dry air.
 
     Parameters
     ----------
@@ -1001,10 +1226,22 @@ def specific_volume_from_humidity_ratio(drybulb, humidity_ratio, pressure, *, ch
     numpy.ndarray
         Specific volume [m³/kg dry air].
 
+    Notes
+    -----
+    .. math::
+
+        v = \frac{R_{da} (t + 273.15)(1 + 1.607858\, W)}{p},
+        \qquad R_{da} = 287.042\ \mathrm{J/(kg\,K)}
+
     References
     ----------
     ASHRAE Handbook Fundamentals 2017, Ch. 1, Eq. 26:
     v = 0.287042 (t + 273.15)(1 + 1.607858 W)/p, p in kPa.
+
+    Examples
+    --------
+    >>> round(float(specific_volume_from_humidity_ratio(24.0, 0.0093, 101325.0)), 4)
+    0.8544
     """
     t, w, p = _as_float(drybulb), _as_float(humidity_ratio), _as_float(pressure)
     if check:
@@ -1015,7 +1252,7 @@ def specific_volume_from_humidity_ratio(drybulb, humidity_ratio, pressure, *, ch
 
 
 def density_from_humidity_ratio(drybulb, humidity_ratio, pressure, *, check=True):
-    """Density of moist air (mass of dry air plus vapour per unit volume).
+    r"""Density of moist air (mass of dry air plus vapour per unit volume).
 
     Parameters
     ----------
@@ -1031,16 +1268,27 @@ def density_from_humidity_ratio(drybulb, humidity_ratio, pressure, *, check=True
     numpy.ndarray
         Density [kg moist air/m³].
 
+    Notes
+    -----
+    .. math::
+
+        \rho = \frac{1 + W}{v}
+
     References
     ----------
     ASHRAE Handbook Fundamentals 2017, Ch. 1, Eq. 11: rho = (1 + W)/v.
+
+    Examples
+    --------
+    >>> round(float(density_from_humidity_ratio(24.0, 0.0093, 101325.0)), 4)  # psychrolib
+    1.1813
     """
     v = specific_volume_from_humidity_ratio(drybulb, humidity_ratio, pressure, check=check)
     return _out((1.0 + _as_float(humidity_ratio)) / v)
 
 
 def degree_of_saturation(drybulb, humidity_ratio, pressure, *, check=True):
-    """Degree of saturation mu = W / Ws.
+    r"""Degree of saturation mu = W / Ws.
 
     Parameters
     ----------
@@ -1056,9 +1304,20 @@ def degree_of_saturation(drybulb, humidity_ratio, pressure, *, check=True):
     numpy.ndarray
         Degree of saturation [-].
 
+    Notes
+    -----
+    .. math::
+
+        \mu = \frac{W}{W_s(t, p)}
+
     References
     ----------
     ASHRAE Handbook Fundamentals 2017, Ch. 1, Eq. 12.
+
+    Examples
+    --------
+    >>> round(float(degree_of_saturation(24.0, 0.0093, 101325.0)), 4)  # psychrolib: 0.4926
+    0.4926
     """
     t, w, p = _as_float(drybulb), _as_float(humidity_ratio), _as_float(pressure)
     if check:
@@ -1199,8 +1458,8 @@ def air_state(
     Examples
     --------
     >>> state = air_state(drybulb=24.0, relative_humidity=0.5)
-    >>> round(float(state.dew_point), 2)
-    12.94
+    >>> round(float(state.dew_point), 2)  # psychrolib: 12.95 °C
+    12.95
     """
     given = {
         "humidity_ratio": humidity_ratio,
