@@ -30,12 +30,12 @@ Coil loads (kW, dry-air mass flow m in kg/s):
     condensate = m (W1 - W2)  [kg/s],  h_w2 = 4.186 t2 [kJ/kg] (liquid water at the
     leaving dry bulb, as in the handbook's cooling-and-dehumidifying example).
 
-The sensible/latent split is exact (it sums to the total), from Eq. 32 of [1].
+The sensible/latent split is exact (it sums to the total), from Eq. 30 of [1].
 
 References
 ----------
 [1] ASHRAE, 2017. ASHRAE Handbook - Fundamentals (SI), Chapter 1, Psychrometrics:
-    Eq. 32 (enthalpy), "Moist Air Sensible Heating or Cooling" and "Moist Air
+    Eq. 30 (enthalpy), "Moist Air Sensible Heating or Cooling" and "Moist Air
     Cooling and Dehumidification" (q = m_da [(h1 - h2) - (W1 - W2) h_w2]).
 """
 
@@ -80,7 +80,7 @@ class CoilLeavingState(NamedTuple):
 
 
 def apparatus_dew_point_from_bypass_factor(entering_drybulb, leaving_drybulb, bypass_factor):
-    """Apparatus dew point from the dry bulbs and the bypass factor.
+    r"""Apparatus dew point from the dry bulbs and the bypass factor.
 
     Parameters
     ----------
@@ -93,6 +93,17 @@ def apparatus_dew_point_from_bypass_factor(entering_drybulb, leaving_drybulb, by
     -------
     numpy.ndarray
         t_adp = (t2 - BF t1) / (1 - BF) [°C].
+
+    Notes
+    -----
+    .. math::
+
+        t_{adp} = \frac{t_2 - BF\, t_1}{1 - BF}
+
+    Examples
+    --------
+    >>> round(float(apparatus_dew_point_from_bypass_factor(26.7, 13.0, 0.1)), 2)
+    11.48
     """
     bf = check_range("bypass_factor", bypass_factor, 0.0, 1.0, "(fraction)", high_inclusive=False)
     t1 = np.asarray(entering_drybulb, dtype=float)
@@ -101,7 +112,7 @@ def apparatus_dew_point_from_bypass_factor(entering_drybulb, leaving_drybulb, by
 
 
 def bypass_factor_from_apparatus_dew_point(entering_drybulb, leaving_drybulb, apparatus_dew_point):
-    """Bypass factor from the dry bulbs and the apparatus dew point.
+    r"""Bypass factor from the dry bulbs and the apparatus dew point.
 
     Parameters
     ----------
@@ -114,6 +125,17 @@ def bypass_factor_from_apparatus_dew_point(entering_drybulb, leaving_drybulb, ap
     -------
     numpy.ndarray
         BF = (t2 - t_adp) / (t1 - t_adp) [-] (NaN where t1 = t_adp).
+
+    Notes
+    -----
+    .. math::
+
+        BF = \frac{t_2 - t_{adp}}{t_1 - t_{adp}}
+
+    Examples
+    --------
+    >>> round(float(bypass_factor_from_apparatus_dew_point(26.7, 13.0, 11.5)), 4)
+    0.0987
     """
     t1 = np.asarray(entering_drybulb, dtype=float)
     t2 = np.asarray(leaving_drybulb, dtype=float)
@@ -132,7 +154,7 @@ def cooling_coil_leaving_humidity_ratio(
     apparatus_dew_point=None,
     leaving_dew_point=None,
 ):
-    """Leaving humidity ratio of a cooling coil (wet or dry).
+    r"""Leaving humidity ratio of a cooling coil (wet or dry).
 
     Give exactly one of ``bypass_factor``, ``apparatus_dew_point`` and
     ``leaving_dew_point``.
@@ -162,10 +184,23 @@ def cooling_coil_leaving_humidity_ratio(
         NaN where the coil is dry); ``bypass_factor`` [-] (NaN for the dew-point model
         and where the coil is dry); ``wet`` (bool, True where moisture condenses).
 
+    Notes
+    -----
+    .. math::
+
+        W_2 = \min\left(BF\, W_1 + (1 - BF)\, W_s(t_{adp}),\ W_s(t_2)\right)
+        \ \text{where } W_1 > W_s(t_{adp}), \text{ else } W_2 = W_1
+
     References
     ----------
     Bypass-factor line of condition: common practice. Saturation humidity ratio:
-    ASHRAE Handbook Fundamentals 2017 Ch. 1, Eq. 23.
+    ASHRAE Handbook Fundamentals 2017 Ch. 1, Eq. 20 at saturation.
+
+    Examples
+    --------
+    >>> coil = cooling_coil_leaving_humidity_ratio(26.7, 0.0112, 13.0, 101325.0, bypass_factor=0.1)
+    >>> round(float(coil.humidity_ratio), 5), round(float(coil.apparatus_dew_point), 2)
+    (0.00871, 11.48)
     """
     given = [v is not None for v in (bypass_factor, apparatus_dew_point, leaving_dew_point)]
     if sum(given) != 1:
@@ -230,7 +265,7 @@ def cooling_coil_load(
     leaving_humidity_ratio,
     condensate_temperature=None,
 ):
-    """Total, sensible and latent load of a cooling coil and its condensate.
+    r"""Total, sensible and latent load of a cooling coil and its condensate.
 
     Parameters
     ----------
@@ -249,10 +284,23 @@ def cooling_coil_load(
     CoilLoad
         total, sensible, latent [kW], condensate [kg/s], condensate_heat [kW].
 
+    Notes
+    -----
+    .. math::
+
+        q_t = \dot m \left[(h_1 - h_2) - (W_1 - W_2)\, h_{w2}\right], \quad
+        q_s = \dot m\, (1.006 + 1.86\, W_2)(t_1 - t_2), \quad q_L = q_t - q_s
+
     References
     ----------
     ASHRAE Handbook Fundamentals 2017, Ch. 1, "Moist Air Cooling and Dehumidification":
-    q = m_da [(h1 - h2) - (W1 - W2) h_w2], with h from Eq. 32.
+    q = m_da [(h1 - h2) - (W1 - W2) h_w2], with h from Eq. 30.
+
+    Examples
+    --------
+    >>> load = cooling_coil_load(10.0, 26.7, 0.0112, 13.0, 0.0086)
+    >>> round(float(load.total), 1), round(float(load.sensible), 1)  # kW
+    (204.9, 140.0)
     """
     m = check_range("mass_flow", mass_flow, 0.0, None, "kg/s")
     t1, w1 = np.asarray(entering_drybulb, float), np.asarray(entering_humidity_ratio, float)
@@ -271,7 +319,7 @@ def _cooling_coil_load(m, t1, w1, t2, w2, tw):
 
 
 def heating_coil_load(mass_flow, entering_drybulb, leaving_drybulb, humidity_ratio):
-    """Load of a heating coil (sensible heating at constant humidity ratio).
+    r"""Load of a heating coil (sensible heating at constant humidity ratio).
 
     Parameters
     ----------
@@ -287,10 +335,21 @@ def heating_coil_load(mass_flow, entering_drybulb, leaving_drybulb, humidity_rat
     numpy.ndarray
         q = m (1.006 + 1.86 W)(t2 - t1) = m (h2 - h1) [kW].
 
+    Notes
+    -----
+    .. math::
+
+        q = \dot m\, (1.006 + 1.86\, W)(t_2 - t_1)
+
     References
     ----------
     ASHRAE Handbook Fundamentals 2017, Ch. 1, "Moist Air Sensible Heating or Cooling"
-    with Eq. 32.
+    with Eq. 30.
+
+    Examples
+    --------
+    >>> round(float(heating_coil_load(10.0, 5.0, 30.0, 0.004)), 2)  # kW
+    253.36
     """
     m = check_range("mass_flow", mass_flow, 0.0, None, "kg/s")
     w = np.asarray(humidity_ratio, dtype=float)
