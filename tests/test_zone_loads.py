@@ -16,8 +16,10 @@ from hypothesis import strategies as st
 from plantside.air_handler.zone_loads import (
     HourlyZoneLoads,
     ZoneLoadModel,
+    ZoneSolarGain,
     design_zone_loads,
     occupied_from_hour_of_year,
+    solar_gain_from_irradiance,
     zone_loads_for_weather,
     zone_loads_from_model,
 )
@@ -121,3 +123,77 @@ def test_hourly_loads_validation():
         HourlyZoneLoads(sensible=[np.nan], latent=[0.0])
     with pytest.raises(InputRangeError, match="internal sensible"):
         HourlyZoneLoads(sensible=[1.0], latent=[0.0], internal_sensible=[-1.0])
+
+
+# --- shape in time: schedules and solar gain through glazing --------------------------
+
+
+def test_weekend_hours_and_internal_gain_profile():
+    # By the definitions in ZoneLoadModel: Saturday 8-12 occupied; internal gains in an
+    # occupied hour are the profile's share of internal_fraction x Q_c (here 40 kW).
+    profile = [0.0] * 7 + [0.5] + [1.0] * 9 + [0.25] + [0.0] * 6
+    model = ZoneLoadModel(
+        cooling_design_sensible=100.0,
+        internal_fraction=0.4,
+        unoccupied_internal_fraction=0.0,
+        weekend_occupied_start_hour=8,
+        weekend_occupied_end_hour=12,
+        internal_gain_profile=profile,
+    )
+    saturday = 24 * 5
+    hours = np.array([7, 12, 17, saturday + 7, saturday + 8, saturday + 11, saturday + 12])
+    loads = zone_loads_from_model(model, np.full(hours.size, 35.0), hours)
+    assert loads.occupied.tolist() == [True, True, True, False, True, True, False]
+    np.testing.assert_allclose(loads.internal_sensible, [20.0, 40.0, 10.0, 0.0, 40.0, 40.0, 0.0])
+    # design hour: the profile's largest share
+    np.testing.assert_allclose(design_zone_loads(model, 35.0).internal_sensible, [40.0])
+
+
+def test_glazing_needs_the_sites_solar_gain():
+    model = ZoneLoadModel(cooling_design_sensible=10.0, glazing_area_east=20.0)
+    assert model.has_glazing
+    with pytest.raises(InputRangeError) as info:
+        zone_loads_from_model(model, [30.0, 31.0])
+    assert info.value.field == "solar_gain"
+    gain = ZoneSolarGain(hourly=[0.0, 2.5], design=3.0)
+    with_sun = model.with_solar_gain(gain)
+    loads = zone_loads_from_model(with_sun, [30.0, 30.0], occupied=[True, True])
+    # the solar gain adds to the straight line: the two hours differ by exactly 2.5 kW
+    assert loads.sensible[1] - loads.sensible[0] == pytest.approx(2.5)
+    design = design_zone_loads(with_sun, 30.0)
+    assert float(design.sensible[0]) == pytest.approx(float(loads.sensible[0]) + 3.0)
+    with pytest.raises(InputRangeError, match="hours"):
+        zone_loads_from_model(with_sun, [30.0, 30.0, 30.0])
+
+
+def test_solar_gain_from_irradiance():
+    # Q = SHGC x IAC x sum(A_i E_i) (ASHRAE Fundamentals 2017 Ch. 15, fenestration solar
+    # heat gain with one SHGC for beam and diffuse): 0.4 x 0.5 x (10 x 500 + 20 x 100) W.
+    model = ZoneLoadModel(
+        cooling_design_sensible=10.0,
+        glazing_area_east=10.0,
+        glazing_area_west=20.0,
+        solar_heat_gain_coefficient=0.4,
+        interior_attenuation_coefficient=0.5,
+    )
+    irradiance = np.array([[50.0], [500.0], [300.0], [100.0]])  # N, E, S, W [W/m²]
+    gain = solar_gain_from_irradiance(model, irradiance)
+    np.testing.assert_allclose(gain, [0.4 * 0.5 * (10 * 500 + 20 * 100) / 1000.0])
+    with pytest.raises(InputRangeError, match="shape"):
+        solar_gain_from_irradiance(model, np.ones((3, 2)))
+
+
+@pytest.mark.parametrize(
+    ("field", "changes"),
+    [
+        ("internal_gain_profile", {"internal_gain_profile": [1.0] * 23}),
+        ("internal_gain_profile", {"internal_gain_profile": [1.5] * 24}),
+        ("glazing_area_south", {"glazing_area_south": -1.0}),
+        ("solar_heat_gain_coefficient", {"solar_heat_gain_coefficient": 1.2}),
+        ("weekend_occupied_end_hour", {"weekend_occupied_start_hour": 9}),
+    ],
+)
+def test_bad_shape_inputs_name_field(field, changes):
+    with pytest.raises(InputRangeError) as info:
+        ZoneLoadModel(cooling_design_sensible=10.0, **changes)
+    assert info.value.field == field

@@ -9,6 +9,8 @@ design_conditions  annual percentage design conditions with coincident means
 design_day         a design day's hourly profile from the daily range
 fictional_sites    the seeded generator of the bundled fictional climates
 bundled            the five bundled fictional climates, read from package data
+solar              the sun's position and clear-sky irradiance on vertical surfaces
+climate_zone       degree days and the ASHRAE climate zone they suggest
 
 At the edge (input/output, not physics):
 

@@ -51,6 +51,11 @@ def _load(slug: str) -> Weather:
         altitude=site.altitude,
         hour_of_year=weather.hour_of_year,
         month=weather.month,
+        latitude=site.latitude,
+        longitude=site.longitude,
+        time_zone=site.time_zone,
+        beam_optical_depth=site.beam_optical_depth,
+        diffuse_optical_depth=site.diffuse_optical_depth,
         notes=(
             f"bundled synthetic year of the fictional site {site.name} "
             f"({site.character}); seed {site.seed}",

@@ -168,6 +168,15 @@ class SiteParameters:
         Stated range ``(low, high)`` of design values, keys ``cooling_drybulb_0.4``
         [°C], ``cooling_mcwb_0.4`` [°C], ``dew_point_1`` [°C], ``heating_drybulb_99.6``
         [°C] and ``mean_daily_range`` [K].
+    latitude, longitude : float
+        Invented location [°] (north and east positive), for the sun's position only;
+        the generated year does not depend on it.
+    time_zone : float
+        Time zone [h from UTC] of the year's hours (standard time).
+    beam_optical_depth, diffuse_optical_depth : float
+        Invented clear-sky pseudo-optical depths tau_b, tau_d [-] for the whole year
+        (ASHRAE Fundamentals 2017 Ch. 14 model; plausible for the climate's kind: a hazy
+        humid sky has a larger tau_b, a clear high desert a smaller one).
     """
 
     name: str
@@ -195,6 +204,11 @@ class SiteParameters:
     min_dew_point_depression: float
     pressure_std: float
     design_ranges: Mapping[str, tuple[float, float]] = field(default_factory=dict)
+    latitude: float = 40.0
+    longitude: float = -90.0
+    time_zone: float = -6.0
+    beam_optical_depth: float = 0.45
+    diffuse_optical_depth: float = 2.2
 
     def __post_init__(self):
         object.__setattr__(self, "design_ranges", MappingProxyType(dict(self.design_ranges)))
@@ -213,6 +227,9 @@ class SiteParameters:
         check_range("dew_point_persistence", self.dew_point_persistence, 0.0, 0.95, "")
         check_range("min_dew_point_depression", self.min_dew_point_depression, 0.0, 10.0, "K")
         check_range("pressure_std", self.pressure_std, 0.0, 3000.0, "Pa")
+        check_range("latitude", self.latitude, -90.0, 90.0, "°")
+        check_range("longitude", self.longitude, -180.0, 180.0, "°")
+        check_range("time_zone", self.time_zone, -12.0, 14.0, "h from UTC")
 
 
 def _ranges(cooling, mcwb, dew_point, heating, daily_range):
@@ -252,6 +269,11 @@ _SITE_LIST = (
         min_dew_point_depression=0.3,
         pressure_std=900.0,
         design_ranges=_ranges((25, 30), (17, 21), (14, 18), (-5, 1), (5, 9)),
+        latitude=47.4,
+        longitude=-124.1,
+        time_zone=-8.0,
+        beam_optical_depth=0.38,
+        diffuse_optical_depth=2.35,
     ),
     SiteParameters(
         name="Salvia Flats",
@@ -279,6 +301,11 @@ _SITE_LIST = (
         min_dew_point_depression=0.4,
         pressure_std=600.0,
         design_ranges=_ranges((33, 36), (25, 28), (25, 27), (-2, 6), (7, 11)),
+        latitude=29.1,
+        longitude=-94.7,
+        time_zone=-6.0,
+        beam_optical_depth=0.5,
+        diffuse_optical_depth=2.05,
     ),
     SiteParameters(
         name="Mesa Ardiente",
@@ -306,6 +333,11 @@ _SITE_LIST = (
         min_dew_point_depression=2.0,
         pressure_std=500.0,
         design_ranges=_ranges((38, 42), (15, 20), (9, 15), (-14, -6), (14, 18)),
+        latitude=34.2,
+        longitude=-107.9,
+        time_zone=-7.0,
+        beam_optical_depth=0.3,
+        diffuse_optical_depth=2.6,
     ),
     SiteParameters(
         name="Korva Plains",
@@ -333,6 +365,11 @@ _SITE_LIST = (
         min_dew_point_depression=0.0,
         pressure_std=1000.0,
         design_ranges=_ranges((30, 34), (20, 24), (18, 22), (-31, -24), (10, 14)),
+        latitude=50.3,
+        longitude=-98.2,
+        time_zone=-6.0,
+        beam_optical_depth=0.36,
+        diffuse_optical_depth=2.4,
     ),
     SiteParameters(
         name="Linden Vale",
@@ -360,6 +397,11 @@ _SITE_LIST = (
         min_dew_point_depression=0.5,
         pressure_std=900.0,
         design_ranges=_ranges((30, 34), (20, 23), (17, 21), (-15, -7), (9, 13)),
+        latitude=41.2,
+        longitude=-80.6,
+        time_zone=-5.0,
+        beam_optical_depth=0.42,
+        diffuse_optical_depth=2.25,
     ),
 )
 

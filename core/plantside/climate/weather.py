@@ -11,6 +11,8 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
+from plantside.errors import check_range
+
 __all__ = ["Weather"]
 
 
@@ -37,6 +39,15 @@ class Weather:
         Calendar month 1..12 of each hour. Defaults to a 365-day calendar.
     notes : tuple of str
         Notes made while the record was built (filled gaps, leap day, ...).
+    latitude, longitude : float, optional
+        Site latitude (north positive) and longitude (east positive) [°]; needed for the
+        sun's position (:mod:`plantside.climate.solar`).
+    time_zone : float, optional
+        Time zone of the record's hours [h from UTC], east positive (standard time).
+    beam_optical_depth, diffuse_optical_depth : float, optional
+        The site's clear-sky pseudo-optical depths tau_b and tau_d [-] (ASHRAE
+        Fundamentals 2017 Ch. 14); ``None`` uses the defaults of
+        :mod:`plantside.climate.solar`.
     """
 
     site: str
@@ -47,6 +58,11 @@ class Weather:
     hour_of_year: np.ndarray | None = None
     month: np.ndarray | None = None
     notes: tuple[str, ...] = field(default=())
+    latitude: float | None = None
+    longitude: float | None = None
+    time_zone: float | None = None
+    beam_optical_depth: float | None = None
+    diffuse_optical_depth: float | None = None
 
     def __post_init__(self):
         drybulb = np.asarray(self.drybulb, dtype=float)
@@ -69,8 +85,23 @@ class Weather:
         ):
             value.setflags(write=False)
             object.__setattr__(self, name, value)
+        for name, low, high, unit in (
+            ("latitude", -90.0, 90.0, "°"),
+            ("longitude", -180.0, 180.0, "°"),
+            ("time_zone", -12.0, 14.0, "h from UTC"),
+            ("beam_optical_depth", 0.1, 1.5, ""),
+            ("diffuse_optical_depth", 1.0, 4.0, ""),
+        ):
+            value = getattr(self, name)
+            if value is not None:
+                object.__setattr__(self, name, float(check_range(name, value, low, high, unit)))
 
     @property
     def hours(self) -> int:
         """Number of hourly records."""
         return int(self.drybulb.size)
+
+    @property
+    def located(self) -> bool:
+        """Whether latitude, longitude and time zone are known (the sun can be placed)."""
+        return None not in (self.latitude, self.longitude, self.time_zone)
