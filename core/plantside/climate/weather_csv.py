@@ -39,6 +39,10 @@ Hours are labelled by their start (hour 0 = 00:00-01:00 on 1 January). A time
 column that writes ``24:00`` (``01:00 .. 24:00`` each day, as typical-year files
 do) is read as hour ending: ``24:00`` is the last hour of its day (23:00-24:00)
 and every row is stored one hour earlier (see :mod:`plantside.hourly_csv.time_axis`).
+A typical year whose months come from different years (January 1988, February 1996,
+...) is read as one calendar year with the year ignored, and a note says so; it must
+hold every hour from 1 January to 31 December once, in calendar order (see
+:mod:`plantside.hourly_csv.typical_year`).
 
 Units come, for each column, from (in this order) the ``units`` mapping, the
 header, or the unit system given as ``units="SI"`` (°C, %, kg/kg, Pa) or
@@ -65,7 +69,8 @@ column. Nothing is silently dropped:
   above saturation by more than 0.5 % (smaller excesses, from rounding, are
   set to saturation and counted in a note);
 - time: unreadable timestamps, duplicated hours, hours out of order, steps that
-  are not whole hours, missing hours;
+  are not whole hours, missing hours (in a typical year: a month repeated, a day out
+  of order, not one whole year);
 - length: a whole number of days is required; 8760 or 8784 hours is a year,
   any other whole number of days is accepted with a note;
 - size: more than ``max_bytes`` bytes or ``max_rows`` data rows.

@@ -17,6 +17,9 @@ values      cells to numbers (decimal comma, missing-value markers, text where a
             number belongs) and to on/off flags
 time_axis   date/time cells or an hour index to hours on a whole-hour axis: clock
             forms, hour-ending ``24:00``, duplicates, order, missing hours
+typical_year
+            a typical year of months from different years placed in one
+            calendar year by month, day and hour (the year ignored)
 gaps        values placed on the hourly grid; gaps reported or filled by linear
             interpolation
 messages    how row numbers are written in messages (``rows 5, 9-12 (5 rows)``)

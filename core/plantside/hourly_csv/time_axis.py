@@ -15,6 +15,14 @@ Hour-ending files are recognised two ways and moved to that convention:
 
 Every row must then sit on whole hours from the first row, once, in order; missing
 hours are gaps (:mod:`plantside.hourly_csv.gaps`).
+
+Typical years (:mod:`plantside.hourly_csv.typical_year`): when the months come from
+different years (the year changes where one month meets the next, so the dates go
+backwards or leap forwards there), the year is ignored and the rows are checked as
+one calendar year by month, day and hour. The file must then run from 1 January
+00:00 to 31 December 23:00 (29 February present or absent), each hour once and in
+order; a month repeated, a day out of order or a missing hour is refused (or, for
+missing hours, filled with ``fill_gaps``) naming its rows, as in any other file.
 """
 
 from __future__ import annotations
@@ -26,6 +34,7 @@ import numpy as np
 import pandas as pd
 
 from plantside.hourly_csv.layout import HourlyTable
+from plantside.hourly_csv.typical_year import calendar_hours, joined_months, months_joined
 from plantside.hourly_csv.values import ParsedColumn
 
 __all__ = [
@@ -123,7 +132,47 @@ def axis_from_times(
         )
     hours = (stamps - stamps.iloc[0]).dt.total_seconds().to_numpy() / 3600.0
     axis = TimeAxis(hours=hours, header=header, stamps=pd.DatetimeIndex(stamps))
+    calendar = calendar_hours(axis.stamps)
+    if months_joined(axis.stamps, calendar):
+        return _typical_year_axis(table, axis, calendar, max_rows)
     return _check_steps(table, axis, max_rows)
+
+
+def _typical_year_axis(table: HourlyTable, axis: TimeAxis, calendar, max_rows: int):
+    """The axis of months joined from different years: one calendar year, year ignored.
+
+    Order, repeats and missing hours are checked on the calendar hours (month, day,
+    hour); messages show the rows' own dates. The accepted axis carries the
+    reference-year stamps, so the hour of year and month follow the calendar.
+    """
+    joined = joined_months(axis.stamps)
+    typical_year = f"typical year: months from {joined.years} were joined; the year is ignored"
+    before = len(table.problems)
+    typical = TimeAxis(
+        hours=calendar.hours - calendar.hours[0], header=axis.header, stamps=axis.stamps
+    )
+    checked = _check_steps(table, typical, max_rows)
+    context = f"; {typical_year}, so rows must run in calendar order ({joined.months})"
+    if checked is None:
+        table.problems[before:] = [problem + context for problem in table.problems[before:]]
+        return None
+    last = len(calendar.hours) - 1
+    if calendar.hours[0] != 0 or calendar.hours[last] != calendar.year_hours - 1:
+        first_stamp, last_stamp = (
+            f"row {table.row_numbers([i])[0]} ({axis.stamps[i]:%m/%d %H:%M})" for i in (0, last)
+        )
+        table.problems.append(
+            f"column {axis.header!r}: {typical_year}, so the file must hold one whole year "
+            f"from 01/01 00:00 to 12/31 23:00 (hour starts); it runs from {first_stamp} to "
+            f"{last_stamp} ({joined.months})"
+        )
+        return None
+    checked.stamps = calendar.stamps
+    table.notes.append(
+        f"column {axis.header!r}: {typical_year} ({joined.months}; read as one "
+        f"{calendar.year_hours}-hour calendar year from 1 January)"
+    )
+    return checked
 
 
 def axis_from_hour_index(
