@@ -11,31 +11,20 @@ loaded result the reader's test checks, or a clean refusal whose every problem s
 where it is.
 
 Both readers go through one intake (``plantside.hourly_csv``); the harness is one too,
-so a mutation added here fuzzes both.
+so a mutation added here fuzzes both. The example count and the printed case count
+come from ``tests/fuzz_counts.py``, shared with the scenario fuzz.
 """
 
 from __future__ import annotations
 
-import os
 import re
 import traceback
 from collections import Counter
 from collections.abc import Callable, Mapping
 from dataclasses import dataclass, field, replace
 
-import pytest
 from hypothesis import strategies as st
 from plantside.errors import InputFileError, InputRangeError
-
-#: Multiplies every max_examples (default 1; e.g. PLANTSIDE_FUZZ_SCALE=20 for a long hunt
-#: by hand; CI keeps the default so the fuzz files stay under a minute).
-FUZZ_SCALE = float(os.environ.get("PLANTSIDE_FUZZ_SCALE", "1"))
-
-
-def examples(count: int) -> int:
-    """``count`` hypothesis examples scaled by :data:`FUZZ_SCALE`."""
-    return max(1, round(count * FUZZ_SCALE))
-
 
 #: Text a person or a spreadsheet might leave in a number cell, including formula-
 #: injection and path-like strings (they must be read as text, never acted on).
@@ -314,21 +303,3 @@ def judge(
     check_loaded(result, kwargs)
     outcomes["loaded"] += 1
     return result
-
-
-def case_count_fixture(outcomes: Counter, label: str):
-    """A module fixture printing how many cases ran, by outcome, at the end of the module."""
-
-    @pytest.fixture(scope="module", autouse=True)
-    def _print_case_count(request):
-        outcomes.clear()
-        yield
-        total = sum(outcomes.values())
-        line = f"{label}: {total} cases ran ({dict(sorted(outcomes.items()))})"
-        print(line)
-        capture = request.config.pluginmanager.getplugin("capturemanager")
-        if capture is not None:
-            with capture.global_and_fixture_disabled():
-                print("\n" + line)
-
-    return _print_case_count

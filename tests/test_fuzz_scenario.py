@@ -18,7 +18,6 @@ never any other exception. The number of cases run is printed at the end of the 
 from __future__ import annotations
 
 import math
-import os
 import re
 import tomllib
 import traceback
@@ -28,6 +27,7 @@ from pathlib import Path
 
 import pytest
 import tomli_w
+from fuzz_counts import case_count_fixture, examples
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 from plantside.errors import ScenarioError
@@ -37,16 +37,9 @@ SCENARIOS = Path(__file__).parents[1] / "example_data" / "scenarios"
 EXAMPLES = sorted(SCENARIOS.glob("*.toml"))
 BASES = {path.name: tomllib.loads(path.read_text(encoding="utf-8")) for path in EXAMPLES}
 
+#: Cases run per outcome; printed at the end of the module.
 OUTCOMES: Counter = Counter()
-
-#: Multiplies every max_examples here (default 1; e.g. PLANTSIDE_FUZZ_SCALE=20 for a long
-#: hunt by hand; CI keeps the default so the three fuzz files stay under a minute).
-FUZZ_SCALE = float(os.environ.get("PLANTSIDE_FUZZ_SCALE", "1"))
-
-
-def _examples(count: int) -> int:
-    return max(1, round(count * FUZZ_SCALE))
-
+_print_case_count = case_count_fixture(OUTCOMES, "scenario TOML fuzz")
 
 #: Defects found here: (exception type, plantside function in the traceback, text of its
 #: line) -> id. Counted, not failed, while unfixed; each has a strict xfail test below, and
@@ -243,25 +236,12 @@ def judge(call, source: str):
     return scenario
 
 
-@pytest.fixture(scope="module", autouse=True)
-def _print_case_count(request):
-    OUTCOMES.clear()
-    yield
-    total = sum(OUTCOMES.values())
-    line = f"scenario TOML fuzz: {total} cases ran ({dict(sorted(OUTCOMES.items()))})"
-    print(line)
-    capture = request.config.pluginmanager.getplugin("capturemanager")
-    if capture is not None:
-        with capture.global_and_fixture_disabled():
-            print("\n" + line)
-
-
 def test_the_examples_load():
     for path in EXAMPLES:
         assert isinstance(judge(lambda p=path: load_scenario(p), str(path)), Scenario)
 
 
-@settings(max_examples=_examples(200), deadline=None, suppress_health_check=[HealthCheck.too_slow])
+@settings(max_examples=examples(200), deadline=None, suppress_health_check=[HealthCheck.too_slow])
 @given(mutated_documents())
 def test_mutated_scenarios_load_or_fail_with_a_field(case):
     name, document = case
@@ -272,7 +252,7 @@ def test_mutated_scenarios_load_or_fail_with_a_field(case):
     judge(lambda: loads_scenario(text, name, SCENARIOS), name)
 
 
-@settings(max_examples=_examples(120), deadline=None, suppress_health_check=[HealthCheck.too_slow])
+@settings(max_examples=examples(120), deadline=None, suppress_health_check=[HealthCheck.too_slow])
 @given(
     path=st.sampled_from(EXAMPLES),
     damage=st.sampled_from(["none", "truncate", "junk", "crlf", "bom", "replace"]),
@@ -311,7 +291,7 @@ def test_damaged_scenario_files_load_or_fail_with_a_field(
     judge(lambda: load_scenario(target), str(target))
 
 
-@settings(max_examples=_examples(100), deadline=None)
+@settings(max_examples=examples(100), deadline=None)
 @given(st.text(max_size=400))
 def test_arbitrary_text_never_raises_anything_else(text):
     judge(lambda: loads_scenario(text, "upload.toml", SCENARIOS), "upload.toml")

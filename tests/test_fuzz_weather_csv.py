@@ -35,12 +35,11 @@ from csv_fuzz import (
     EXTREME_NUMBERS,
     JUNK_CELLS,
     Table,
-    case_count_fixture,
-    examples,
     file_bytes,
     judge,
     mutated_tables,
 )
+from fuzz_counts import case_count_fixture, examples
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 from plantside.climate.weather_csv import read_weather_csv
@@ -332,7 +331,9 @@ def test_text_in_a_number_cell_is_reported_at_its_row_and_column(index, data, ju
 
 
 # ---------------------------------------------------------------------------------------
-# defects found by the fuzz (W1-W3 in /work/notes/robustness.md), fixed: kept as regressions
+# defects the fuzz found, fixed, kept as regressions: W1 an ambiguous humidity column
+# not reported, W2 a timestamp beyond the years a date can hold, W3 a header line too
+# long to split. Each test below states the file and what its refusal must name.
 # ---------------------------------------------------------------------------------------
 def _assert_clean_refusal(data: bytes, kwargs: dict, *words: str):
     with pytest.raises(InputFileError) as caught:
