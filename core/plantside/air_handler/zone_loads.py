@@ -455,7 +455,7 @@ def _solar_gain(model: ZoneLoadModel, hours: int, design: bool):
 
 
 def zone_loads_from_model(model: ZoneLoadModel, drybulb, hour_of_year=None, occupied=None):
-    """Hourly zone loads by the modified bin method.
+    r"""Hourly zone loads by the modified bin method.
 
     Parameters
     ----------
@@ -474,10 +474,26 @@ def zone_loads_from_model(model: ZoneLoadModel, drybulb, hour_of_year=None, occu
         With glazing, the sensible load includes the attached hourly solar gain
         (:meth:`ZoneLoadModel.with_solar_gain`).
 
+    Notes
+    -----
+    .. math::
+
+        Q_{env}(t_o) = (1 - f_{int}) Q_c + k (t_o - t_c), \quad
+        k = \frac{(1 - f_{int}) Q_c + Q_h}{t_c - t_h},
+
+        Q_{sens} = Q_{env} + f_{int} Q_c \ \text{(occupied)}, \quad
+        Q_{env} + f_u f_{int} Q_c \ \text{(unoccupied)}
+
     References
     ----------
     Knebel (1983), Simplified Energy Analysis Using the Modified Bin Method, ASHRAE:
     loads linear in outdoor temperature, occupied and unoccupied lines.
+
+    Examples
+    --------
+    >>> model = ZoneLoadModel(cooling_design_sensible=50.0, heating_design_load=40.0)
+    >>> zone_loads_from_model(model, [35.0, 20.0, -10.0], occupied=[True, True, False]).sensible
+    array([ 50.        ,  28.33333333, -37.5       ])
     """
     t = np.atleast_1d(np.asarray(drybulb, dtype=float))
     check_range("outdoor drybulb", t, -100.0, 70.0, "°C")

@@ -272,7 +272,7 @@ class DesignConditions:
 
 
 def value_exceeded_by_percent(values, percent) -> np.ndarray:
-    """Highest recorded value exceeded (strictly) by at least ``percent`` % of the hours.
+    r"""Highest recorded value exceeded (strictly) by at least ``percent`` % of the hours.
 
     Parameters
     ----------
@@ -288,8 +288,17 @@ def value_exceeded_by_percent(values, percent) -> np.ndarray:
 
     Notes
     -----
+    .. math::
+
+        v_p = \max \{\, v_{(k)} : \#\{h : v_h > v_{(k)}\} \ge \lceil p N / 100 \rceil \,\}
+
     :math:`X_p = \\max\\{x_i : \\#\\{j : x_j > x_i\\} \\ge pN/100\\}`, see the module
     notes. With ``N = 8760`` and ``percent = 1`` at least 88 hours lie above the result.
+
+    Examples
+    --------
+    >>> float(value_exceeded_by_percent(np.arange(1.0, 101.0), 2.0))  # 99 and 100 lie above
+    98.0
     """
     x = np.sort(np.asarray(values, dtype=float).ravel())
     p = check_range("percent", percent, 0.0, 100.0, "%", low_inclusive=False, high_inclusive=False)

@@ -105,7 +105,7 @@ def design_day_from_condition(
     wet_bulb_range: float | None = None,
     altitude: float | None = None,
 ) -> Weather:
-    """A 24-hour weather record for one design day.
+    r"""A 24-hour weather record for one design day.
 
     Parameters
     ----------
@@ -130,10 +130,24 @@ def design_day_from_condition(
     Weather
         24 hours: dry bulb [°C], humidity ratio [kg/kg], pressure [Pa].
 
+    Notes
+    -----
+    .. math::
+
+        t_{db}(h) = t_{db,design} - f(h)\, \Delta t_{db}, \qquad
+        W(h) = \min\left(W_{design},\ W_s(t_{db}(h), p)\right)
+
     References
     ----------
     ASHRAE Handbook Fundamentals 2017, Ch. 14, Table 6 (from memory, see
     :data:`DAILY_RANGE_FRACTION`).
+
+    Examples
+    --------
+    >>> c = DesignCondition("cooling", 0.4, 32.0, 0.012, 101325.0, 16.8, 21.7, 62.9, "example")
+    >>> day = design_day_from_condition(c, 10.0)
+    >>> round(float(day.drybulb[5]), 1), round(float(day.drybulb[15]), 1)  # 05:00 low, 15:00 high
+    (22.0, 32.0)
     """
     daily_range = float(check_range("daily_range", daily_range, 0.0, 30.0, "K"))
     month = int(check_range("month", month, 1, 12, ""))

@@ -174,7 +174,7 @@ def efficiency_from_cop(cop, metric: str):
 
 
 def integrated_part_load_value(efficiencies, metric: str = "cop", weights=IPLV_WEIGHTS):
-    """IPLV of a machine from its efficiencies at 100, 75, 50 and 25 % load.
+    r"""IPLV of a machine from its efficiencies at 100, 75, 50 and 25 % load.
 
     Parameters
     ----------
@@ -195,9 +195,20 @@ def integrated_part_load_value(efficiencies, metric: str = "cop", weights=IPLV_W
 
     Notes
     -----
+    .. math::
+
+        IPLV = 0.01 A + 0.42 B + 0.45 C + 0.12 D \quad \text{(COP, EER)},
+
+        IPLV = \frac{1}{0.01/A + 0.42/B + 0.45/C + 0.12/D} \quad \text{(kW/ton)}
+
     AHRI 550/590 (I-P)-2020 section 5.4 [1] (and 551/591 (SI) [2]):
     :math:`IPLV = 0.01A + 0.42B + 0.45C + 0.12D` (COP, EER);
     :math:`IPLV = 1/(0.01/A + 0.42/B + 0.45/C + 0.12/D)` (kW/ton).
+
+    Examples
+    --------
+    >>> round(float(integrated_part_load_value([5.5, 6.5, 7.2, 6.0])), 3)  # COP
+    6.745
     """
     _check_metric(metric)
     values = _four_efficiencies(efficiencies, metric)
@@ -403,7 +414,7 @@ def project_weighted_efficiency(
     below_lowest: str = "cycling",
     weights_basis: str = "energy",
 ) -> ProjectEfficiency:
-    """Year's energy and average efficiency for this building, beside the IPLV weighting.
+    r"""Year's energy and average efficiency for this building, beside the IPLV weighting.
 
     Parameters
     ----------
@@ -424,6 +435,19 @@ def project_weighted_efficiency(
     Returns
     -------
     ProjectEfficiency
+
+    Notes
+    -----
+    .. math::
+
+        P_j(x) = x / COP(x) \ \text{(linear in } x \text{ between the rated points)},
+        \qquad \overline{COP} = \frac{\sum_h \sum_j Q_{hj}}{\sum_h \sum_j P_j(x_{hj})\, C_j}
+
+    Examples
+    --------
+    >>> result = project_weighted_efficiency([300.0, 150.0, 75.0], 400.0, [5.5, 6.5, 7.2, 6.0])
+    >>> round(result.average_cop, 2), round(result.rated_iplv, 3)
+    (6.46, 6.745)
     """
     _check_metric(metric)
     if weights_basis not in ("energy", "hours"):
