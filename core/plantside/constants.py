@@ -77,11 +77,12 @@ SATURATION_WATER_COEFFICIENTS = (
 #: Eq. 37 (dew point 0 to 93 °C): td = C14 + C15 a + C16 a² + C17 a³ + C18 pw^0.1984,
 #: a = ln pw, pw [kPa], td [°C]. Coefficients C14..C18 [°C], then the exponent 0.1984 [-].
 #: From memory; checked: within 0.1 K of psychrolib's dew point from 0 to 90 °C
-#: (tests/test_moist_air.py). Only a first guess: the answer is the Newton root of Eq. 36.
+#: (tests/test_constants.py). Only a first guess: the answer is the Newton root of Eq. 36.
 DEW_POINT_WATER_COEFFICIENTS = (6.54, 14.526, 0.7389, 0.09486, 0.4569)
 DEW_POINT_WATER_EXPONENT = 0.1984
 #: Eq. 38 (dew point below 0 °C): td = 6.09 + 12.608 a + 0.4959 a² [°C]. From memory;
-#: checked against psychrolib like Eq. 37 (within 1 K from -60 to 0 °C).
+#: checked against psychrolib like Eq. 37: within 0.1 K from -20 to 0 °C, 0.6 K at
+#: -40 °C, 3 K at -60 °C.
 DEW_POINT_ICE_COEFFICIENTS = (6.09, 12.608, 0.4959)
 #: Clausius-Clapeyron slope of ln pws, L/(R_v T²) with L/R_v [K] = 2500/0.46152 over water
 #: and 2830/0.46152 over ice (R_v = 0.46152 kJ/(kg K)); common practice (no source), used

@@ -728,8 +728,9 @@ def _ln_kpa(vapor_pressure):
 
 
 def _dew_point_first_guess(alpha):
-    """Closed-form dew point [°C] from alpha = ln pw, pw in kPa, accurate to about 0.1 K
-    from -20 to 93 °C (about 1 K at -60 °C); a first guess for Newton iterations.
+    """Closed-form dew point [°C] from alpha = ln pw, pw in kPa, within 0.1 K of the exact
+    dew point from -20 to 90 °C (0.6 K at -40 °C, 3 K at -60 °C; psychrolib, see
+    tests/test_constants.py); a first guess for Newton iterations.
 
     ASHRAE Handbook Fundamentals 2017, Ch. 1, Eq. 37 (dew point 0 to 93 °C) and Eq. 38
     (below 0 °C).
