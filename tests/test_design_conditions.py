@@ -163,7 +163,7 @@ def test_enthalpy_condition_matches_its_definition():
     condition = conditions.cooling("enthalpy", 1.0)
     # The design enthalpy is exceeded by >= 88 hours and the next recorded value up by fewer.
     assert np.count_nonzero(hourly_h > condition.enthalpy + 1e-9) >= 88
-    # Enthalpy of the state from psychrolib (ASHRAE Fundamentals 2017 Ch. 1 Eq. 32), J->kJ.
+    # Enthalpy of the state from psychrolib (ASHRAE Fundamentals 2017 Ch. 1 Eq. 30), J->kJ.
     assert condition.enthalpy == pytest.approx(
         psychrolib.GetMoistAirEnthalpy(condition.drybulb, condition.humidity_ratio) / 1000, rel=1e-6
     )

@@ -55,7 +55,7 @@ def test_enthalpy_limit_conversion_with_psychrolib():
     h_ip = psychrolib.GetMoistAirEnthalpy(75.0, w)  # Btu/lb
     psychrolib.SetUnitSystem(psychrolib.SI)
     h_si = psychrolib.GetMoistAirEnthalpy((75.0 - 32.0) / 1.8, w) / 1000.0
-    # The IP and SI forms of Eq. 32 use 0.240 Btu/(lb °F) and 1.006 kJ/(kg K) for dry air,
+    # The IP and SI forms of Eq. 30 use 0.240 Btu/(lb °F) and 1.006 kJ/(kg K) for dry air,
     # 0.12 % apart: about 0.03 kJ/kg at 24 °C.
     assert float(enthalpy_si_from_ip_table(h_ip)) == pytest.approx(h_si, abs=0.05)
     # 28 Btu/lb (Table 6.5.1.1.3, from memory) -> 47.3 kJ/kg.

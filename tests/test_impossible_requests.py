@@ -7,7 +7,7 @@ allowed range, so the dashboard and the command line can show it beside the inpu
 Physics behind each refusal (sources beside each case):
 
 - a cooling supply at or above the zone temperature removes no sensible heat
-  (Q = m c_p (t_zone - t_supply), ASHRAE Handbook Fundamentals 2017 Ch. 1 Eq. 32 for c_p);
+  (Q = m c_p (t_zone - t_supply), ASHRAE Handbook Fundamentals 2017 Ch. 1 Eq. 30 for c_p);
   the model demands at least 0.5 K below the zone cooling set point (project rule);
 - a coil cannot leave air at a dew point below its apparatus dew point, and the apparatus
   dew point cannot fall below what its cooling medium gives (``apparatus_dew_point_min``);
@@ -281,7 +281,7 @@ def test_physics_functions_refuse_negative_or_zero_flows():
 
 def test_impossible_outdoor_states_are_refused_by_the_hour_model():
     # Humidity above saturation at the dry bulb (ASHRAE Handbook Fundamentals 2017 Ch. 1
-    # Eq. 23), and a pressure no site has.
+    # Eq. 20 at saturation), and a pressure no site has.
     settings = AirHandlerSettings()
     loads = HourlyZoneLoads(sensible=[30.0], latent=[5.0])
     assert_refused(

@@ -153,7 +153,7 @@ def _coolprop_saturated(output, t):
 @pytest.mark.parametrize(("t", "ws", "decimals"), TABLE2_WS)
 def test_saturation_humidity_ratio_against_table2(t, ws, decimals):
     # ASHRAE 2017 Ch. 1 Table 2, column Ws (from memory; CoolProp confirms it at printed
-    # precision). Ours is the ideal-gas Eq. 23, below the real-gas table by the
+    # precision). Ours is the ideal-gas Eq. 20 at saturation, below the real-gas table by the
     # enhancement factor (0.4-0.6 %): tolerance is the handbook's 0.7 %.
     assert _confirmed(_coolprop_saturated("W", t), ws, decimals)
     ours = ma.saturation_humidity_ratio(t, P_STD)

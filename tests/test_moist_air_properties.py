@@ -45,7 +45,7 @@ def _wet_bulb_in_range(drybulb, w, pressure):
 @EXAMPLES
 @given(dew_point=temperatures, pressure=pressures)
 def test_dew_point_humidity_ratio_dew_point(dew_point, pressure):
-    # Eq. 37 forward (W from td), then the Newton inverse: back to the same dew point.
+    # Eq. 36 forward (W from td), then the Newton inverse: back to the same dew point.
     assume(_below_one_kg_per_kg(ma.saturation_vapor_pressure(dew_point), pressure))
     w = ma.humidity_ratio_from_dew_point(dew_point, pressure)
     assert abs(ma.dew_point_from_humidity_ratio(w, pressure) - dew_point) < 1e-6
@@ -54,7 +54,7 @@ def test_dew_point_humidity_ratio_dew_point(dew_point, pressure):
 @EXAMPLES
 @given(drybulb=room_range, relative_humidity=st.floats(0.01, 1.0), pressure=pressures)
 def test_wet_bulb_relative_humidity_round_trip(drybulb, relative_humidity, pressure):
-    # RH -> W (Eq. 24) -> wet bulb (Eq. 33/35 solved) -> W (Eq. 33/35) -> RH.
+    # RH -> W (Eq. 22) -> wet bulb (Eq. 33/35 solved) -> W (Eq. 33/35) -> RH.
     pws = ma.saturation_vapor_pressure(drybulb)
     assume(pws < pressure)
     assume(_below_one_kg_per_kg(relative_humidity * pws, pressure))
@@ -90,7 +90,7 @@ def test_wet_bulb_solves_its_equation_everywhere(drybulb, fraction, pressure):
 @EXAMPLES
 @given(drybulb=room_range, fraction=fractions, pressure=pressures)
 def test_enthalpy_drybulb_round_trip(drybulb, fraction, pressure):
-    # Eq. 32 and its two closed-form inverses.
+    # Eq. 30 and its two closed-form inverses.
     ws = min(float(ma.saturation_humidity_ratio(drybulb, pressure)), 1.0)
     w = fraction * ws
     h = ma.enthalpy_from_humidity_ratio(drybulb, w)

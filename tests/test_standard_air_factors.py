@@ -5,7 +5,7 @@ q = 0.68 cfm dW[gr/lb] or 4840 cfm dW[lb/lb] (latent), q = 4.5 cfm dh (total), a
 Btu/h; in SI about 1.2 kW per m³/s per K, 3.0 kW per m³/s per g/kg and 1.2 kW per m³/s
 per kJ/kg. They are common practice (no source): 0.075 lb/ft³ x 60 min/h x a specific
 heat or a latent heat, each rounded to two or three figures. Here each is rebuilt from
-the ASHRAE Handbook Fundamentals 2017 Ch. 1 functions (Eq. 26 for the density, Eq. 32
+the ASHRAE Handbook Fundamentals 2017 Ch. 1 functions (Eq. 26 for the density, Eq. 30
 for the enthalpy) and the unit conversions, at standard air: dry air at 20 °C (68 °F)
 and 101.325 kPa, about 1.204 kg/m³ = 0.075 lb/ft³. The tolerance of each check is the
 rounding the factor carries plus, where stated, what the factor leaves out.
@@ -30,7 +30,7 @@ def _dry_air_density():
 
 
 def _sensible_heat_per_kelvin(w):
-    """d h / d t at constant W [kJ/(kg K)], from Eq. 32 by a finite difference."""
+    """d h / d t at constant W [kJ/(kg K)], from Eq. 30 by a finite difference."""
     return ma.enthalpy_from_humidity_ratio(T_STANDARD + 1.0, w) - ma.enthalpy_from_humidity_ratio(
         T_STANDARD, w
     )
@@ -38,7 +38,7 @@ def _sensible_heat_per_kelvin(w):
 
 def _latent_heat():
     """Heat removed per kg of water condensed [kJ/kg]: vapour enthalpy at a 75 °F room
-    (d h / d W of Eq. 32) less the liquid condensate's enthalpy at 50 °F (4.186 t, the
+    (d h / d W of Eq. 30) less the liquid condensate's enthalpy at 50 °F (4.186 t, the
     liquid-water enthalpy of Ch. 1 used in Eq. 33)."""
     w = 0.0093
     vapour = (

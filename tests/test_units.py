@@ -13,6 +13,7 @@ Sources:
 from __future__ import annotations
 
 import numpy as np
+import psychrolib
 import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
@@ -99,15 +100,19 @@ def test_enthalpy_differences_and_humidity():
 @pytest.mark.parametrize(("t_f", "w"), [(0.0, 0.0), (32.0, 0.0), (55.0, 0.0092), (75.0, 0.0188),
                                        (95.0, 0.0143), (-10.0, 0.0004)])  # fmt: skip
 def test_enthalpy_on_the_ip_reference(t_f, w):
-    # ASHRAE Handbook Fundamentals 2017 Ch. 1 Eq. 32 in the I-P edition (from memory):
+    # ASHRAE Handbook Fundamentals 2017 Ch. 1 Eq. 30 in the I-P edition (psychrolib 2.5's
+    # I-P GetMoistAirEnthalpy, checked below):
     # h = 0.240 t + W (1061 + 0.444 t), Btu/lb, t in °F (zero: dry air at 0 °F, liquid
-    # water at 32 °F). The SI Eq. 32 converted with the unit's offset must give the same
+    # water at 32 °F). The SI Eq. 30 converted with the unit's offset must give the same
     # number; the I-P coefficients are rounded (0.240 for 1.006/4.1868 = 0.24028;
     # 1061 for 2501/2.326 - 0.444 x 32 = 1061.03), worth up to 0.03 Btu/lb here.
     h_si = enthalpy_from_humidity_ratio(u.celsius_from_fahrenheit(t_f), w)
     h_ip = 0.240 * t_f + w * (1061.0 + 0.444 * t_f)
     assert u.btulb_from_kjkg(h_si) == pytest.approx(h_ip, abs=0.03)
     assert u.kjkg_from_btulb(h_ip) == pytest.approx(h_si, abs=0.03 * 2.326)
+    psychrolib.SetUnitSystem(psychrolib.IP)  # the conftest fixture resets it to SI
+    # psychrolib floors W at 1e-7 lb/lb: 1.1e-4 Btu/lb at W = 0.
+    assert psychrolib.GetMoistAirEnthalpy(t_f, w) == pytest.approx(h_ip, abs=2e-4)
 
 
 def test_length_and_pressure():
