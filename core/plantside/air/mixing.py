@@ -13,8 +13,9 @@ mass flow [kg dry air/s], outdoor-air fraction [-] on a dry-air mass basis.
 References
 ----------
 [1] ASHRAE, 2017. ASHRAE Handbook - Fundamentals (SI), Chapter 1, Psychrometrics,
-    "Adiabatic Mixing of Two Moist Airstreams", Eqs. 46-47 (numbered from memory):
-    m1 h1 + m2 h2 = m3 h3, m1 W1 + m2 W2 = m3 W3, m1 + m2 = m3.
+    section "Adiabatic Mixing of Two Moist Airstreams" (its balances, cited by section;
+    the equation numbers are not confirmed): m1 h1 + m2 h2 = m3 h3,
+    m1 W1 + m2 W2 = m3 W3, m1 + m2 = m3.
 """
 
 from __future__ import annotations
