@@ -8,6 +8,8 @@ References
 [4] Kell, G. S., 1975. Density, thermal expansivity, and compressibility of liquid water
     from 0 to 150 °C. J. Chem. Eng. Data 20(1), 97-105, Eq. 16 (coefficients from memory,
     checked against CoolProp in tests/test_water.py).
+[5] Hyland, R.W. and A. Wexler, 1983. Formulations for the thermodynamic properties of
+    the saturated phases of H2O from 173.15 K to 473.15 K. ASHRAE Transactions 89(2A).
 """
 
 # --- moist air, ASHRAE Handbook Fundamentals 2017 Ch. 1 [1] ---------------------------
@@ -48,7 +50,7 @@ ZERO_CELSIUS = 273.15
 DRYBULB_MIN_C = -100.0
 DRYBULB_MAX_C = 200.0
 
-# --- saturation pressure, Eqs. 5 and 6 of [1] (Hyland and Wexler 1983 [4]) ---------------
+# --- saturation pressure, Eqs. 5 and 6 of [1] (Hyland and Wexler 1983 [5]) ---------------
 #: Eq. 5, over ice (-100 to 0.01 °C): ln pws = C1/T + C2 + C3 T + C4 T² + C5 T³ + C6 T⁴
 #: + C7 ln T, pws [Pa], T [K]. Coefficients C1..C7 [K, -, 1/K, 1/K², 1/K³, 1/K⁴, -];
 #: identical to psychrolib 2.5's GetSatVapPres.
