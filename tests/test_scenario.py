@@ -53,9 +53,13 @@ def test_ip_numbers_are_converted_at_the_edge():
     assert unit.supply_airflow == pytest.approx(m3s_from_cfm(14000.0), rel=1e-12)
     # 55 °F supply air is 12.78 °C (exact conversion).
     assert unit.supply_drybulb == pytest.approx((55.0 - 32.0) / 1.8, rel=1e-12)
-    # 22 tons of zone sensible load: 1 ton = 12,000 Btu/h = 3.51685 kW (AHRI 550/590).
+    # 17 tons of zone sensible load: 1 ton = 12,000 Btu/h = 3.51685 kW (AHRI 550/590).
     assert scenario.air_handlers[1].zone.cooling_design_sensible == pytest.approx(
-        22.0 * 3.516853, rel=1e-6
+        17.0 * 3.516853, rel=1e-6
+    )
+    # 1200 ft² of east glazing: 1 ft² = 0.09290304 m² (NIST SP 811, exact).
+    assert scenario.air_handlers[1].zone.glazing_area_east == pytest.approx(
+        1200.0 * 0.09290304, rel=1e-12
     )
 
 

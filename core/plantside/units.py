@@ -307,6 +307,14 @@ QUANTITIES = {
         lambda kgs: _f(kgs) * 3600.0 / 0.45359237,
         lambda lbh: _f(lbh) * 0.45359237 / 3600.0,
     ),
+    "area": (
+        "m²",
+        "ft²",
+        _identity,
+        _identity,
+        lambda m2: _f(m2) / M_PER_FT**2,
+        lambda ft2: _f(ft2) * M_PER_FT**2,
+    ),
 }
 
 

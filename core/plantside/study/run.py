@@ -49,6 +49,7 @@ from plantside.study.figures import (
     load_peak,
     plant_option_specs,
 )
+from plantside.study.high_limit_cautions import economizer_limit_cautions
 from plantside.study.scenario import PlantOptionSpec, Scenario
 
 __all__ = [
@@ -336,7 +337,8 @@ def assemble_plants(
         cautions=GENERAL_CAUTIONS
         + cooling.cautions
         + heating.cautions
-        + tuple(dict.fromkeys(unit_cautions)),
+        + tuple(dict.fromkeys(unit_cautions))
+        + economizer_limit_cautions(scenario, weather),
     )
 
 

@@ -20,6 +20,10 @@ The layout (field by field in the README)::
     weather_file = "year.csv"     # an hourly CSV, relative to the scenario file
     cooling_design_percent = 0.4  # 0.4 | 1 | 2
     heating_design_percent = 99.6 # 99.6 | 99
+    climate_zone = "2A"           # ASHRAE 90.1 climate zone (economizer high limits)
+    latitude = 29.1               # degrees north; with longitude and time_zone, the sun's
+    longitude = -94.7             # position for zones with glazing (bundled sites know theirs)
+    time_zone = -6                # hours from UTC, standard time
 
     [plant]
     distribution_gain_percent = 3
@@ -58,11 +62,13 @@ from plantside.air_handler.year import AirHandlerSettings
 from plantside.air_handler.zone_load_csv import read_zone_loads_csv
 from plantside.air_handler.zone_loads import HourlyZoneLoads, ZoneLoadModel
 from plantside.climate.bundled import BUNDLED_CLIMATES, load_bundled_climate
+from plantside.climate.climate_zone import economizer_drybulb_limit, parse_climate_zone
 from plantside.climate.design_conditions import COOLING_PERCENTS, HEATING_PERCENTS
 from plantside.climate.weather import Weather
 from plantside.climate.weather_csv import read_weather_csv
 from plantside.errors import InputFileError, InputRangeError, ScenarioError
 from plantside.plant.staging import DEFAULT_MINIMUM_TURNDOWN
+from plantside.study.solar_gains import zone_with_solar_gain
 from plantside.units import UnitSystem, from_display, to_display, unit_label
 
 __all__ = [
@@ -109,6 +115,10 @@ FIELD_QUANTITIES = {
     "cooling_design_drybulb": "temperature",
     "heating_design_load": "heating_power",
     "heating_design_drybulb": "temperature",
+    "glazing_area_north": "area",
+    "glazing_area_east": "area",
+    "glazing_area_south": "area",
+    "glazing_area_west": "area",
 }
 
 _TOP_KEYS = ("title", "unit_system", "site", "plant", "air_handler")
@@ -120,6 +130,10 @@ _SITE_KEYS = (
     "fill_gaps",
     "cooling_design_percent",
     "heating_design_percent",
+    "climate_zone",
+    "latitude",
+    "longitude",
+    "time_zone",
 )
 _PLANT_KEYS = (
     "distribution_gain_percent",
@@ -189,6 +203,10 @@ class Scenario:
     heating_margin_percent: float = 10.0
     cooling_options: tuple[PlantOptionSpec, ...] = ()
     heating_options: tuple[PlantOptionSpec, ...] = ()
+    climate_zone: str | None = None
+    latitude: float | None = None
+    longitude: float | None = None
+    time_zone: float | None = None
     source: str = field(default="<scenario>", compare=False)
     files: str = field(default="any", compare=False)
     base_dir: Path = field(default_factory=Path.cwd, compare=False)
@@ -196,7 +214,7 @@ class Scenario:
     def load_weather(self) -> Weather:
         """The hourly weather of the site (bundled climate or CSV)."""
         if self.climate is not None:
-            return load_bundled_climate(self.climate)
+            return self._located(load_bundled_climate(self.climate))
         path = _resolve(
             self.base_dir, self.weather_file, self.source, "site.weather_file", self.files
         )
@@ -204,17 +222,33 @@ class Scenario:
         if altitude is not None and self.unit_system is UnitSystem.IP:
             altitude = float(to_display("length", altitude, "IP")[0])
         try:
-            return read_weather_csv(
+            weather = read_weather_csv(
                 path, units=self.weather_units, altitude=altitude, fill_gaps=self.fill_gaps
             )
         except (InputFileError, InputRangeError) as error:
             raise ScenarioError(self.source, "site.weather_file", str(error)) from error
+        return self._located(weather)
+
+    def _located(self, weather: Weather) -> Weather:
+        """The weather with the site's latitude, longitude and time zone, where given."""
+        place = {
+            name: getattr(self, name)
+            for name in ("latitude", "longitude", "time_zone")
+            if getattr(self, name) is not None
+        }
+        return replace(weather, **place) if place else weather
 
     def zone_loads(self, index: int, weather: Weather | None = None):
         """Zone loads of air handler ``index``: the model, or the hourly file read."""
         spec = self.air_handlers[index]
         if spec.zone is not None:
-            return spec.zone
+            if not spec.zone.has_glazing:
+                return spec.zone
+            weather = self.load_weather() if weather is None else weather
+            try:
+                return zone_with_solar_gain(spec.zone, weather)
+            except InputRangeError as error:
+                raise ScenarioError(self.source, f"site.{error.field}", str(error)) from error
         where = f"air_handler[{index + 1}].zone_load_file"
         path = _resolve(self.base_dir, spec.zone_load_file, self.source, where, self.files)
         hours = None if weather is None else weather.hours
@@ -320,7 +354,7 @@ def _field_kind(cls, name):
 
 def _dataclass_from_table(cls, table, source, where, system):
     """Build a settings dataclass from a TOML table in ``system`` units, with checks."""
-    names = [f.name for f in fields(cls)]
+    names = [f.name for f in fields(cls) if f.init]
     _check_keys(source, where, table, names)
     values = {}
     for key, raw in table.items():
@@ -337,6 +371,10 @@ def _dataclass_from_table(cls, table, source, where, system):
             value = _number(source, path, raw, integer=True)
         elif hint is bool:
             value = _flag(source, path, raw)
+        elif typing.get_origin(hint) is tuple:
+            if not isinstance(raw, list):
+                raise ScenarioError(source, path, f"expected a list of numbers, got {raw!r}")
+            value = tuple(_number(source, f"{path}[{i + 1}]", v) for i, v in enumerate(raw))
         else:
             value = _text(source, path, raw)
         values[key] = value
@@ -497,6 +535,26 @@ def scenario_from_dict(
         site.get("heating_design_percent", 99.6),
         HEATING_PERCENTS,
     )
+    climate_zone = site.get("climate_zone")
+    if climate_zone is not None:
+        try:
+            climate_zone = parse_climate_zone(
+                _text(source, "site.climate_zone", climate_zone), "site.climate_zone"
+            )
+        except InputRangeError as error:
+            raise ScenarioError(source, "site.climate_zone", str(error)) from error
+    place = {}
+    for key, low, high in (("latitude", -90, 90), ("longitude", -180, 180), ("time_zone", -12, 14)):
+        if key in site:
+            value = _number(source, f"site.{key}", site[key])
+            if not low <= value <= high:
+                unit = "h from UTC" if key == "time_zone" else "°"
+                raise ScenarioError(
+                    source,
+                    f"site.{key}",
+                    f"{value:g} is outside the allowed range {low} to {high} {unit}",
+                )
+            place[key] = value
 
     plant = data.get("plant", {})
     _check_keys(source, "plant", plant, _PLANT_KEYS)
@@ -528,6 +586,11 @@ def scenario_from_dict(
         _check_keys(source, where, table, [*setting_names, "zone", "zone_load_file"])
         settings_table = {k: v for k, v in table.items() if k not in ("zone", "zone_load_file")}
         settings = _dataclass_from_table(AirHandlerSettings, settings_table, source, where, system)
+        if climate_zone is not None and "economizer_drybulb_limit" not in settings_table:
+            # the 90.1 table's fixed dry-bulb limit of the site's zone is the default
+            settings = replace(
+                settings, economizer_drybulb_limit=economizer_drybulb_limit(climate_zone)
+            )
         zone, zone_file = table.get("zone"), table.get("zone_load_file")
         if (zone is None) == (zone_file is None):
             raise ScenarioError(
@@ -564,6 +627,8 @@ def scenario_from_dict(
         heating_margin_percent=heating_margin,
         cooling_options=options["cooling"],
         heating_options=options["heating"],
+        climate_zone=climate_zone,
+        **place,
         source=source,
         base_dir=base_dir,
         files=files,
@@ -636,6 +701,8 @@ def _display(key, value, system):
         return "none"
     if isinstance(value, bool | str | int):
         return value
+    if isinstance(value, tuple):
+        return [float(f"{v:.12g}") for v in value]
     if key in FIELD_QUANTITIES:
         value = float(to_display(FIELD_QUANTITIES[key], value, system)[0])
     return float(f"{value:.12g}")
@@ -682,6 +749,9 @@ def scenario_to_dict(scenario: Scenario) -> dict:
         site["fill_gaps"] = True
     site["cooling_design_percent"] = scenario.cooling_design_percent
     site["heating_design_percent"] = scenario.heating_design_percent
+    for key in ("climate_zone", "latitude", "longitude", "time_zone"):
+        if getattr(scenario, key) is not None:
+            site[key] = getattr(scenario, key)
     plant = {
         "distribution_gain_percent": scenario.distribution_gain_percent,
         "cooling_margin_percent": scenario.cooling_margin_percent,
@@ -700,8 +770,11 @@ def scenario_to_dict(scenario: Scenario) -> dict:
             table["zone"] = {
                 f.name: _display(f.name, getattr(spec.zone, f.name), system)
                 for f in fields(spec.zone)
-                if zone_defaults[f.name] is dataclasses.MISSING
-                or getattr(spec.zone, f.name) != zone_defaults[f.name]
+                if f.init
+                and (
+                    zone_defaults[f.name] is dataclasses.MISSING
+                    or getattr(spec.zone, f.name) != zone_defaults[f.name]
+                )
             }
         else:
             table["zone_load_file"] = spec.zone_load_file
