@@ -124,3 +124,15 @@ def test_charts_writes_every_dashboard_chart_as_png_and_svg(tmp_path):
         root = ET.fromstring(svg.read_text(encoding="utf-8"))
         assert root.tag.endswith("svg")
         assert "Tinderloft Works" in svg.read_text(encoding="utf-8")  # the scenario stamp
+
+
+def test_climates_and_design_show_the_suggested_climate_zone(capsys):
+    # plantside.climate.climate_zone: the hot-humid fictional site suggests 2A; the clinic
+    # confirms 2A in site.climate_zone (example_data/scenarios/quillon_clinic.toml).
+    assert main(["climates", "--json"]) == 0
+    listed = {c["name"]: c for c in json.loads(capsys.readouterr().out)}
+    assert listed["Salvia Flats"]["suggested_climate_zone"] == "2A"
+    assert main(["design", str(CLINIC)]) == 0
+    text = capsys.readouterr().out
+    assert "climate zone 2A (site.climate_zone)" in text
+    assert "economizer_drybulb_limit 70 °F is above" in text

@@ -75,6 +75,7 @@ def _design_text(result) -> str:
         )
         if np.isclose(condition.percent, wanted):
             lines.append(f"  design condition {_condition_text(condition, system)}")
+    lines.append(_climate_zone_text(scenario, result.weather))
     lines.append("")
     width = max(14, *(len(u.name) + 2 for u in result.air_handlers))
     header = (
@@ -116,6 +117,19 @@ def _design_text(result) -> str:
     lines.append("")
     lines += [f"! {c}" for c in result.cautions]
     return "\n".join(lines)
+
+
+def _climate_zone_text(scenario, weather) -> str:
+    """The site's climate zone as given, beside the one its weather suggests."""
+    from plantside.climate.climate_zone import suggest_climate_zone
+
+    suggestion = suggest_climate_zone(weather)
+    given = (
+        f"climate zone {scenario.climate_zone} (site.climate_zone)"
+        if scenario.climate_zone
+        else "climate zone not given (site.climate_zone)"
+    )
+    return f"  {given}; {suggestion.describe()}"
 
 
 def _load(path):
@@ -208,13 +222,25 @@ def _report_written(written, as_json: bool) -> int:
 
 
 def _cmd_climates(args) -> int:
-    from plantside.climate.bundled import BUNDLED_CLIMATES, bundled_climate_description
+    from plantside.climate.bundled import (
+        BUNDLED_CLIMATES,
+        bundled_climate_description,
+        load_bundled_climate,
+    )
+    from plantside.climate.climate_zone import suggest_climate_zone
 
+    zones = {n: suggest_climate_zone(load_bundled_climate(n)) for n in BUNDLED_CLIMATES}
     if args.json:
         print(
             json.dumps(
                 [
-                    {"name": n, "description": bundled_climate_description(n)}
+                    {
+                        "name": n,
+                        "description": bundled_climate_description(n),
+                        "suggested_climate_zone": zones[n].zone,
+                        "heating_degree_days_18C": round(zones[n].heating_degree_days, 1),
+                        "cooling_degree_days_10C": round(zones[n].cooling_degree_days, 1),
+                    }
                     for n in BUNDLED_CLIMATES
                 ],
                 indent=2,
@@ -223,6 +249,7 @@ def _cmd_climates(args) -> int:
     else:
         for name in BUNDLED_CLIMATES:
             print(bundled_climate_description(name))
+            print(f"    {zones[name].describe()}")
     return EXIT_OK
 
 
