@@ -151,6 +151,7 @@ CORE_VALUES = {
     "energy": np.array([0.0, 1.2e6]),
     "heating_energy": np.array([3.0e5]),
     "airflow": np.array([0.1, 12.5]),
+    "water_flow": np.array([0.0, 0.0631, 0.25]),
     "enthalpy": np.array([-10.0, 0.0, 55.2]),
     "enthalpy_difference": np.array([-3.0, 0.0, 25.0]),
     "humidity_ratio": np.array([0.0, 0.0093, 0.02]),
@@ -186,6 +187,7 @@ def test_display_round_trip(quantity, system):
         ("humidity_ratio", "g/kg", "gr/lb"),
         ("pressure", "kPa", "inHg"),
         ("length", "m", "ft"),
+        ("water_flow", "L/s", "gpm"),
     ],
 )
 def test_display_units_are_the_trades(quantity, si, ip):

@@ -17,6 +17,7 @@ from plantside.constants import (
     GRAINS_PER_LB,
     KJKG_PER_BTULB,
     KW_PER_TON,
+    M3_PER_US_GALLON,
     M3S_PER_CFM,
     M_PER_FT,
     PA_PER_INHG,
@@ -40,6 +41,7 @@ __all__ = [
     "feet_from_meters",
     "from_display",
     "g_per_kg_from_grains_per_lb",
+    "gpm_from_m3s",
     "grains_per_lb_from_g_per_kg",
     "inhg_from_pa",
     "kjkg_from_btulb",
@@ -48,6 +50,7 @@ __all__ = [
     "kw_from_tons",
     "lps_from_m3s",
     "m3s_from_cfm",
+    "m3s_from_gpm",
     "m3s_from_lps",
     "mbh_from_kw",
     "meters_from_feet",
@@ -154,6 +157,16 @@ def lps_from_m3s(m3s):
 def m3s_from_lps(lps):
     """Airflow [m³/s] from [L/s]."""
     return _f(lps) / 1000.0
+
+
+def gpm_from_m3s(m3s):
+    """Water flow [US gal/min] from [m³/s] (1 US gallon = 3.785411784 L, NIST SP 811)."""
+    return _f(m3s) * 60.0 / M3_PER_US_GALLON
+
+
+def m3s_from_gpm(gpm):
+    """Water flow [m³/s] from [US gal/min]."""
+    return _f(gpm) * M3_PER_US_GALLON / 60.0
 
 
 # enthalpy and humidity
@@ -273,6 +286,7 @@ QUANTITIES = {
         lambda mmbtu: kw_from_btuh(_f(mmbtu) * 1e6),
     ),
     "airflow": ("L/s", "cfm", lps_from_m3s, m3s_from_lps, cfm_from_m3s, m3s_from_cfm),
+    "water_flow": ("L/s", "gpm", lps_from_m3s, m3s_from_lps, gpm_from_m3s, m3s_from_gpm),
     "enthalpy": ("kJ/kg", "Btu/lb", _identity, _identity, btulb_from_kjkg, kjkg_from_btulb),
     "enthalpy_difference": (
         "kJ/kg",
