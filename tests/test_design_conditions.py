@@ -246,3 +246,44 @@ def load_year():
     from plantside.climate.bundled import load_bundled_climate
 
     return load_bundled_climate("Linden Vale")
+
+
+# --- evaporation conditions (wet bulb with MCDB), for cooling towers -----------------------
+@pytest.mark.parametrize("site", ["Salvia Flats", "Korva Plains"])
+def test_evaporation_wet_bulb_and_mcdb(site):
+    # ASHRAE Fundamentals 2017 Ch. 14: evaporation wet bulb exceeded by 0.4/1/2 % of the hours
+    # with its mean coincident dry bulb. Wet bulbs from psychrolib (independent of
+    # plantside's moist air); the rule: at least ceil(pN/100) hours strictly above, and the
+    # next higher recorded wet bulb has fewer; MCDB over |WB - WB_design| <= 0.5 K.
+    from plantside.climate.bundled import load_bundled_climate
+
+    weather = load_bundled_climate(site)
+    wet_bulb = np.array(
+        [
+            psychrolib.GetTWetBulbFromHumRatio(t, w, p)
+            for t, w, p in zip(
+                weather.drybulb, weather.humidity_ratio, weather.pressure, strict=True
+            )
+        ]
+    )
+    conditions = design_conditions_from_weather(weather)
+    for percent in COOLING_PERCENTS:
+        condition = conditions.evaporation(percent)
+        required = int(np.ceil(percent * weather.hours / 100))
+        design = condition.design_value
+        # psychrolib's wet bulb iteration is converged to about 0.001 K, so hours within
+        # 2 mK of the design value may count either way (a handful at most)
+        assert required - 3 <= np.sum(wet_bulb > design + 2e-3) <= required
+        assert required <= np.sum(wet_bulb > design - 2e-3) <= required + 4
+        band = np.abs(wet_bulb - design) <= 0.5
+        assert condition.drybulb == pytest.approx(weather.drybulb[band].mean(), abs=0.05)
+        assert condition.wet_bulb == pytest.approx(design)
+        assert condition.label.startswith(f"evaporation {percent:g} %")
+    values = [conditions.evaporation(p).wet_bulb for p in COOLING_PERCENTS]
+    assert values == sorted(values, reverse=True)
+    # the evaporation wet bulb is at least the MCWB of the cooling dry bulb (same percentage)
+    assert (
+        conditions.evaporation(0.4).wet_bulb >= conditions.cooling("cooling", 0.4).wet_bulb - 0.05
+    )
+    with pytest.raises(InputRangeError, match="evaporation"):
+        conditions.evaporation(5.0)

@@ -10,6 +10,7 @@ cooling dry bulb          dry bulb at 0.4 / 1 / 2 %   mean coincident wet bulb (
 dehumidification          dew point at 0.4 / 1 / 2 %  humidity ratio; mean coincident dry
                                                       bulb (MCDB)
 enthalpy                  enthalpy at 0.4 / 1 / 2 %   mean coincident dry bulb (MCDB)
+evaporation               wet bulb at 0.4 / 1 / 2 %   mean coincident dry bulb (MCDB)
 heating dry bulb          dry bulb at 99.6 / 99 %     mean coincident humidity ratio
                                                       (a plantside addition, see below)
 mean daily range          of the warmest month        --
@@ -57,6 +58,11 @@ over the hours whose *design* quantity lies in a band around the design value:
   dew point is within ``dew_point_band`` (default ±0.5 K) of the design dew point.
 - MCDB of an enthalpy condition: mean hourly dry bulb over the hours whose
   enthalpy is within ``enthalpy_band`` (default ±1.0 kJ/kg) of the design enthalpy.
+- MCDB of an evaporation wet bulb: mean hourly dry bulb over the hours whose wet
+  bulb is within ``wet_bulb_band`` (default ±0.5 K) of the design wet bulb. These
+  conditions size cooling towers and evaporative equipment; they are kept apart from
+  the others (:attr:`DesignConditions.evaporation_conditions`) because the air-handler
+  design points are not evaluated at them.
 - Heating: mean hourly humidity ratio over the hours whose dry bulb is within
   ``drybulb_band`` of the heating design dry bulb (the handbook tabulates
   humidification dew points instead; plantside needs one full outdoor state for
@@ -139,7 +145,8 @@ class DesignCondition:
     ----------
     kind : str
         ``"cooling"`` (dry bulb with MCWB), ``"dehumidification"`` (dew point with
-        MCDB), ``"enthalpy"`` (enthalpy with MCDB) or ``"heating"`` (dry bulb).
+        MCDB), ``"enthalpy"`` (enthalpy with MCDB), ``"evaporation"`` (wet bulb with
+        MCDB) or ``"heating"`` (dry bulb).
     percent : float
         Annual percentage [%]: 0.4, 1 or 2 for cooling kinds, 99.6 or 99 for heating.
     drybulb : float
@@ -181,6 +188,8 @@ class DesignCondition:
             return self.dew_point
         if self.kind == "enthalpy":
             return self.enthalpy
+        if self.kind == "evaporation":
+            return self.wet_bulb
         return self.drybulb
 
 
@@ -205,6 +214,8 @@ class DesignConditions:
         Mean station pressure of the record [Pa].
     notes : tuple of str
         Notes (short record, widened coincident bands, ...).
+    evaporation_conditions : tuple of DesignCondition
+        Evaporation conditions (wet bulb with MCDB) at 0.4/1/2 %, for cooling towers.
     """
 
     site: str
@@ -214,6 +225,7 @@ class DesignConditions:
     mean_daily_range: float
     pressure: float
     notes: tuple[str, ...] = field(default=())
+    evaporation_conditions: tuple[DesignCondition, ...] = field(default=())
 
     def cooling(self, kind: str = "cooling", percent: float = 0.4) -> DesignCondition:
         """The cooling-side condition of a kind at an annual percentage.
@@ -231,6 +243,17 @@ class DesignConditions:
                 "kind", f"kind = {kind!r} is not one of {sorted(_KINDS)}", str(sorted(_KINDS))
             )
         return self._find(_KINDS[kind], percent, COOLING_PERCENTS)
+
+    def evaporation(self, percent: float = 0.4) -> DesignCondition:
+        """The evaporation condition (wet bulb with MCDB) at 0.4, 1 or 2 [%]."""
+        for condition in self.evaporation_conditions:
+            if math.isclose(condition.percent, percent):
+                return condition
+        raise InputRangeError(
+            "percent",
+            f"percent = {percent!r} is not available for evaporation; allowed {COOLING_PERCENTS} %",
+            str(COOLING_PERCENTS),
+        )
 
     def heating(self, percent: float = 99.6) -> DesignCondition:
         """The heating condition at an annual percentage (99.6 or 99 [%])."""
@@ -422,6 +445,8 @@ def _state(kind, percent, drybulb, humidity_ratio, pressure, hours, band):
         )
     elif kind == "enthalpy":
         label = f"enthalpy {pct}: {enthalpy:.1f} kJ/kg / {drybulb:.1f} °C MCDB"
+    elif kind == "evaporation":
+        label = f"evaporation {pct}: {wet_bulb:.1f} °C WB / {drybulb:.1f} °C MCDB"
     else:
         label = f"heating {pct}: {drybulb:.1f} °C DB"
     return DesignCondition(
@@ -446,6 +471,7 @@ def design_conditions_from_weather(
     dew_point_band: float = 0.5,
     enthalpy_band: float = 1.0,
     min_coincident_hours: int = 5,
+    wet_bulb_band: float = 0.5,
 ) -> DesignConditions:
     """Annual design conditions of an hourly weather record.
 
@@ -461,6 +487,8 @@ def design_conditions_from_weather(
         Half-width of the enthalpy band for the MCDB [kJ/kg], 0.05 to 10.
     min_coincident_hours : int
         Fewest hours behind a coincident mean, 1 to 100; bands widen until reached.
+    wet_bulb_band : float
+        Half-width of the wet-bulb band for the evaporation MCDB [K], 0.05 to 5.
 
     Returns
     -------
@@ -474,6 +502,7 @@ def design_conditions_from_weather(
     check_range("drybulb_band", drybulb_band, 0.05, 5.0, "K")
     check_range("dew_point_band", dew_point_band, 0.05, 5.0, "K")
     check_range("enthalpy_band", enthalpy_band, 0.05, 10.0, "kJ/kg")
+    check_range("wet_bulb_band", wet_bulb_band, 0.05, 5.0, "K")
     check_range("min_coincident_hours", min_coincident_hours, 1, 100, "h")
     n = weather.hours
     if n < MIN_RECORD_HOURS:
@@ -499,6 +528,7 @@ def design_conditions_from_weather(
     design_dp = value_exceeded_by_percent(dew_point, COOLING_PERCENTS)
     design_h = value_exceeded_by_percent(enthalpy, COOLING_PERCENTS)
     heating_db = value_exceeded_by_percent(drybulb, HEATING_PERCENTS)
+    design_wb = value_exceeded_by_percent(wet_bulb, COOLING_PERCENTS)
 
     conditions = []
 
@@ -532,6 +562,15 @@ def design_conditions_from_weather(
         w_mean, hours, band = coincident("heating", percent, drybulb, value, w, drybulb_band)
         conditions.append(_state("heating", percent, value, w_mean, pressure, hours, band))
 
+    evaporation = []
+    for percent, value in zip(COOLING_PERCENTS, design_wb, strict=True):
+        mcdb, hours, band = coincident(
+            "evaporation", percent, wet_bulb, value, drybulb, wet_bulb_band
+        )
+        mcdb = max(mcdb, value)
+        w_state = float(moist_air.humidity_ratio_from_wet_bulb(mcdb, value, pressure))
+        evaporation.append(_state("evaporation", percent, mcdb, w_state, pressure, hours, band))
+
     warmest, daily_range = mean_daily_range(weather)
     return DesignConditions(
         site=weather.site,
@@ -541,4 +580,5 @@ def design_conditions_from_weather(
         mean_daily_range=daily_range,
         pressure=pressure,
         notes=tuple(notes),
+        evaporation_conditions=tuple(evaporation),
     )
