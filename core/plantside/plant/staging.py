@@ -63,6 +63,7 @@ __all__ = [
     "compare_plant_options",
     "compare_stage_hours",
     "stage_machines",
+    "staging_result",
 ]
 
 #: Minimum turndown of a machine when a plant option does not give one [-]: a machine
@@ -433,15 +434,27 @@ def stage_machines(
     cumulative = np.cumsum(caps)
     staged = np.minimum(np.searchsorted(cumulative, arr, side="left") + 1, caps.size)
     running = np.where(arr > threshold, staged, 0)
+    return staging_result(arr, caps, turndown, threshold, running)
+
+
+def staging_result(loads, capacities, minimum_turndown, no_load_threshold, machines_running):
+    """A :class:`StagingResult` from the machines running each hour (rules 2-4).
+
+    Running machines share the load at one part-load ratio, load beyond the whole plant
+    is unmet. Used by :func:`stage_machines` and by the other staging rules
+    (:mod:`plantside.plant.efficient_staging`). Inputs already validated.
+    """
+    cumulative = np.cumsum(capacities)
+    running = np.asarray(machines_running)
     running_capacity = cumulative[np.maximum(running - 1, 0)]
-    part_load_ratio = np.where(running > 0, np.minimum(arr / running_capacity, 1.0), 0.0)
-    unmet = np.where(running > 0, np.maximum(arr - cumulative[-1], 0.0), 0.0)
+    part_load_ratio = np.where(running > 0, np.minimum(loads / running_capacity, 1.0), 0.0)
+    unmet = np.where(running > 0, np.maximum(loads - cumulative[-1], 0.0), 0.0)
     return StagingResult(
-        loads=_read_only(arr.copy()),
-        capacities=_read_only(caps),
-        minimum_turndown=_read_only(turndown),
-        no_load_threshold=threshold,
-        machines_running=_read_only(running),
+        loads=_read_only(np.array(loads, dtype=float)),
+        capacities=_read_only(capacities),
+        minimum_turndown=_read_only(minimum_turndown),
+        no_load_threshold=no_load_threshold,
+        machines_running=_read_only(np.array(running)),
         part_load_ratio=_read_only(part_load_ratio),
         unmet_load=_read_only(unmet),
     )
