@@ -60,7 +60,8 @@ supply_humidity_ratio_kgkg supply_enthalpy_kJkg apparatus_dew_point_C bypass_fac
 coil_total_kW coil_sensible_kW coil_latent_kW condensate_kgs condensate_heat_kW preheat_kW
 heating_coil_kW reheat_kW zone_sensible_kW zone_latent_kW zone_sensible_unmet_kW
 zone_latent_unmet_kW plenum_gain_kW ventilation_sensible_kW ventilation_latent_kW fan_power_kW
-fan_heat_kW economizer_effect_kW recovery_effect_kW
+fan_heat_kW economizer_effect_kW recovery_effect_kW dehumidification_reheat_kW
+condenser_heat_recovered_kW coil_runaround_heat_kW
 """.split()
 
 CONFIGURATION_NAMES = [
@@ -119,7 +120,15 @@ def years(weather, office_zone, vav_unit):
 
 
 def _balance_residual(frame):
-    net_coil = frame["coil_total_kW"] - frame["heating_coil_kW"] - frame["preheat_kW"]
+    # the unit's reheat after a dew-point coil is heat added, like the heating coil's; the
+    # passive exchanger around the coil takes and gives the same heat (checked apart)
+    added = (
+        frame["heating_coil_kW"]
+        + frame["preheat_kW"]
+        + frame["dehumidification_reheat_kW"]
+        + frame["condenser_heat_recovered_kW"]
+    )
+    net_coil = frame["coil_total_kW"] - added
     parts = (
         frame["zone_sensible_kW"]
         + frame["zone_latent_kW"]
@@ -131,7 +140,7 @@ def _balance_residual(frame):
         - frame["recovery_effect_kW"]
         - frame["condensate_heat_kW"]
     )
-    scale = frame["coil_total_kW"] + frame["heating_coil_kW"] + frame["preheat_kW"]
+    scale = frame["coil_total_kW"] + added
     return (net_coil - parts).abs(), scale
 
 

@@ -158,3 +158,93 @@ def test_impossible_apparatus_dew_point_and_leaving_dew_point():
     assert info.value.field == "leaving_dew_point"
     with pytest.raises(InputRangeError, match="exactly one"):
         cooling_coil_leaving_humidity_ratio(27.0, 0.011, 12.0, P)
+
+
+# --- a coil holding a leaving dew point, and the passive exchanger around it ------------
+def test_dew_point_coil_leaves_on_its_process_line():
+    # Worked example (constructed; bypass-factor line: common practice): entering at the
+    # AHRI 340/360 rating state 26.7 °C DB / 19.4 °C WB (from memory), held to a 10 °C
+    # leaving dew point with BF = 0.1. By hand with psychrolib: W2 = W(t_dp = 10 °C),
+    # Ws(t_adp) = (W2 - 0.1 W1)/0.9, t_adp its dew point, t2 = 0.1 t1 + 0.9 t_adp.
+    from plantside.air.coils import dew_point_coil_process
+
+    t1 = 26.7
+    w1 = psychrolib.GetHumRatioFromTWetBulb(t1, 19.4, P)
+    w2 = psychrolib.GetHumRatioFromTDewPoint(10.0, P)
+    w_adp = (w2 - 0.1 * w1) / 0.9
+    t_adp = psychrolib.GetTDewPointFromHumRatio(t1, w_adp, P)
+    t2 = 0.1 * t1 + 0.9 * t_adp
+    process = dew_point_coil_process(t1, w1, w2, 0.1, P)
+    # psychrolib's dew-point iteration converges to about 1e-3 K
+    assert float(process.apparatus_dew_point) == pytest.approx(t_adp, abs=0.005)
+    assert float(process.leaving_drybulb) == pytest.approx(t2, abs=0.005)
+    # near saturation, not at the 71 % RH of a leaving dry bulb taken from the set point
+    assert psychrolib.GetRelHumFromHumRatio(t2, w2, P) > 0.9
+    # with no bypass the coil leaves saturated at the target dew point
+    exact = dew_point_coil_process(t1, w1, w2, 0.0, P)
+    assert float(exact.leaving_drybulb) == pytest.approx(10.0, abs=0.005)
+
+
+def test_runaround_exchanger_meets_its_effectiveness_and_limits():
+    # Effectiveness of a sensible exchanger, Q = eps C_min (t_hot,in - t_cold,in)
+    # (ASHRAE HVAC Systems and Equipment 2020 Ch. 26, from memory); here the hot inlet is
+    # the air entering the pre-cool side and the cold inlet the air leaving the coil.
+    from plantside.air.coils import dew_point_coil_process, runaround_exchange
+
+    m, t1, w1, w2, bf, eps = 2.0, 30.0, 0.011, 0.0076, 0.1, 0.5
+    t_dp1 = psychrolib.GetTDewPointFromHumRatio(t1, w1, P)
+    t_dp2 = psychrolib.GetTDewPointFromHumRatio(t1, w2, P)
+    t_adp = float(dew_point_coil_process(t1, w1, w2, bf, P).apparatus_dew_point)
+    free = runaround_exchange(m, t1, w1, t_dp1, w2, t_dp2, t_adp, bf, 40.0, eps)
+    c1, c2 = 1.006 + 1.86 * w1, 1.006 + 1.86 * w2  # Eq. 32 of ASHRAE 2017 Ch. 1
+    q = float(free.heat)
+    assert q == pytest.approx(eps * m * c2 * (t1 - float(free.coil_leaving_drybulb)), rel=1e-9)
+    # the same heat leaves the entering air and reaches the leaving air
+    assert q == pytest.approx(m * c1 * (t1 - float(free.coil_entering_drybulb)), rel=1e-9)
+    assert q == pytest.approx(
+        m * c2 * float(free.reheated_drybulb - free.coil_leaving_drybulb), rel=1e-9
+    )
+    # the coil still leaves on its line from the pre-cooled state (common practice)
+    assert float(free.coil_leaving_drybulb) == pytest.approx(
+        bf * float(free.coil_entering_drybulb) + (1 - bf) * t_adp
+    )
+    # modulated: the reheated air stops at the limit (the supply set point)
+    limited = runaround_exchange(m, t1, w1, t_dp1, w2, t_dp2, t_adp, bf, 13.0, eps)
+    assert float(limited.reheated_drybulb) == pytest.approx(13.0)
+    assert 0.0 < float(limited.heat) < q
+    # sensible only: pre-cooling stops at the entering dew point
+    humid = psychrolib.GetHumRatioFromTDewPoint(25.0, P)
+    capped = runaround_exchange(m, 27.0, humid, 25.0, w2, t_dp2, t_adp, bf, 40.0, 0.9)
+    assert float(capped.coil_entering_drybulb) == pytest.approx(25.0)
+    # no exchanger: no heat, the coil alone
+    none = runaround_exchange(m, t1, w1, t_dp1, w2, t_dp2, t_adp, bf, 40.0, 0.0)
+    assert float(none.heat) == 0.0
+    assert float(none.coil_leaving_drybulb) == pytest.approx(bf * t1 + (1 - bf) * t_adp)
+
+
+@given(
+    t1=st.floats(12.0, 40.0),
+    dew_margin=st.floats(0.5, 15.0),
+    bf=st.floats(0.0, 0.4),
+    eps=st.floats(0.0, 0.9),
+    limit=st.floats(10.0, 25.0),
+)
+def test_runaround_exchanger_properties(t1, dew_margin, bf, eps, limit):
+    # Whatever the state: heat >= 0, never more than eps C_min (t1 - t2), the reheated air
+    # never above the limit unless the coil alone leaves warmer, the coil leaving state at
+    # or below saturation (t2 >= its dew point), the pre-cooled air not below its dew point.
+    from plantside.air.coils import dew_point_coil_process, runaround_exchange
+
+    t_dp1 = t1 - dew_margin
+    w1 = psychrolib.GetHumRatioFromTDewPoint(t_dp1, P)
+    t_dp2 = min(t_dp1 - 0.5, 10.0)
+    w2 = psychrolib.GetHumRatioFromTDewPoint(t_dp2, P)
+    process = dew_point_coil_process(t1, w1, w2, bf, P)
+    x = runaround_exchange(1.5, t1, w1, t_dp1, w2, t_dp2, process.apparatus_dew_point, bf,
+                           limit, eps)  # fmt: skip
+    q, t2 = float(x.heat), float(x.coil_leaving_drybulb)
+    assert q >= 0.0
+    assert q <= eps * 1.5 * (1.006 + 1.86 * w2) * (t1 - t2) * (1 + 1e-9) + 1e-9
+    assert t2 >= t_dp2 - 1e-9
+    assert float(x.coil_entering_drybulb) >= t_dp1 - 1e-9
+    assert float(x.reheated_drybulb) <= max(limit, t2) + 1e-9

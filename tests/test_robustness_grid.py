@@ -164,7 +164,9 @@ def _design_inputs(design, k):
 
 def _energy_balance_residual(r):
     """Contract balance: left - right, and the gross flow it is compared with [kW]."""
-    left = r["coil_total_kW"] - r["heating_coil_kW"] - r["preheat_kW"]
+    added = ("heating_coil_kW", "preheat_kW", "dehumidification_reheat_kW",
+             "condenser_heat_recovered_kW")  # fmt: skip
+    left = r["coil_total_kW"] - sum(r[key] for key in added)
     terms = {
         "zone_sensible_kW": 1,
         "zone_latent_kW": 1,
@@ -178,7 +180,7 @@ def _energy_balance_residual(r):
     }
     right = sum(sign * r[key] for key, sign in terms.items())
     gross = sum(np.abs(r[key]) for key in terms) + np.abs(r["coil_total_kW"])
-    gross = gross + np.abs(r["heating_coil_kW"]) + np.abs(r["preheat_kW"])
+    gross = gross + sum(np.abs(r[key]) for key in added)
     return left - right, gross
 
 

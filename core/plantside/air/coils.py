@@ -52,11 +52,15 @@ from plantside.errors import InputRangeError, check_range
 __all__ = [
     "CoilLeavingState",
     "CoilLoad",
+    "DewPointCoilProcess",
+    "RunaroundExchange",
     "apparatus_dew_point_from_bypass_factor",
     "bypass_factor_from_apparatus_dew_point",
     "cooling_coil_leaving_humidity_ratio",
     "cooling_coil_load",
+    "dew_point_coil_process",
     "heating_coil_load",
+    "runaround_exchange",
 ]
 
 
@@ -355,3 +359,171 @@ def heating_coil_load(mass_flow, entering_drybulb, leaving_drybulb, humidity_rat
     w = np.asarray(humidity_ratio, dtype=float)
     t1, t2 = np.asarray(entering_drybulb, float), np.asarray(leaving_drybulb, float)
     return m * (CP_DRY_AIR + CP_WATER_VAPOR * w) * (t2 - t1)
+
+
+class DewPointCoilProcess(NamedTuple):
+    """A coil holding a leaving humidity ratio, on its own process line."""
+
+    leaving_drybulb: np.ndarray  #: coil leaving dry bulb [°C]
+    apparatus_dew_point: np.ndarray  #: apparatus dew point [°C]
+
+
+def dew_point_coil_process(
+    entering_drybulb, entering_humidity_ratio, leaving_humidity_ratio, bypass_factor, pressure
+):
+    r"""Leaving dry bulb of a coil that dries the air to a leaving humidity ratio.
+
+    The coil leaves on the straight line from the entering state to the saturated
+    state at its apparatus dew point, a fraction BF (the bypass factor) of the way back
+    from the apparatus dew point. Holding the leaving humidity ratio fixes the apparatus
+    dew point, and the line then fixes the leaving dry bulb:
+
+    .. math::
+
+        W_s(t_{adp}) = \frac{W_2 - BF\,W_1}{1 - BF}, \qquad
+        t_2 = BF\,t_1 + (1 - BF)\,t_{adp}
+
+    Parameters
+    ----------
+    entering_drybulb : array_like
+        Entering dry bulb [°C].
+    entering_humidity_ratio : array_like
+        Entering humidity ratio [kg/kg dry air].
+    leaving_humidity_ratio : array_like
+        Leaving humidity ratio held by the coil [kg/kg dry air], below the entering one.
+    bypass_factor : array_like
+        Bypass factor [-], 0 <= BF < 1.
+    pressure : array_like
+        Pressure [Pa].
+
+    Returns
+    -------
+    DewPointCoilProcess
+        ``leaving_drybulb`` [°C] and ``apparatus_dew_point`` [°C]. Where the coil could not
+        reach the leaving humidity ratio with this bypass factor (BF W1 >= W2) the
+        apparatus dew point is that of 1e-6 kg/kg (about -60 °C at sea level), so the
+        caller's apparatus-dew-point limit flags the hour.
+
+    Notes
+    -----
+    The bypass-factor line is common practice (no single normative source). The
+    apparatus dew point is the dew point of W_s(t_adp): ASHRAE Handbook Fundamentals
+    2017 Ch. 1, Eq. 20 (vapour pressure from W) and Eqs. 37-38 (dew point).
+
+    Examples
+    --------
+    >>> process = dew_point_coil_process(30.0, 0.015, 0.0076, 0.1, 101325.0)
+    >>> round(float(process.leaving_drybulb), 1), round(float(process.apparatus_dew_point), 1)
+    (10.4, 8.3)
+    """
+    from plantside.air.moist_air import dew_point_from_humidity_ratio
+
+    bf = check_range("bypass_factor", bypass_factor, 0.0, 1.0, "(fraction)", high_inclusive=False)
+    t1 = np.asarray(entering_drybulb, dtype=float)
+    w1 = np.asarray(entering_humidity_ratio, dtype=float)
+    w2 = np.asarray(leaving_humidity_ratio, dtype=float)
+    w_adp = np.maximum((w2 - bf * w1) / (1.0 - bf), 1e-6)
+    t_adp = dew_point_from_humidity_ratio(w_adp, pressure, check=False)
+    return DewPointCoilProcess(bf * t1 + (1.0 - bf) * t_adp, t_adp)
+
+
+class RunaroundExchange(NamedTuple):
+    """Heat moved by a passive sensible exchanger around a cooling coil."""
+
+    heat: np.ndarray  #: heat moved from the entering to the leaving air [kW]
+    coil_entering_drybulb: np.ndarray  #: dry bulb entering the coil, pre-cooled [°C]
+    coil_leaving_drybulb: np.ndarray  #: dry bulb leaving the coil [°C]
+    reheated_drybulb: np.ndarray  #: dry bulb after the exchanger's reheat side [°C]
+
+
+def runaround_exchange(
+    mass_flow,
+    entering_drybulb,
+    entering_humidity_ratio,
+    entering_dew_point,
+    leaving_humidity_ratio,
+    leaving_dew_point,
+    apparatus_dew_point,
+    bypass_factor,
+    reheat_limit_drybulb,
+    effectiveness,
+):
+    r"""A passive sensible exchanger (run-around loop or heat pipe) around a cooling coil.
+
+    The exchanger pre-cools the air entering the coil and gives the same heat to the
+    air leaving it. With capacity rates C_1 = m c_p(W_1) (entering) and
+    C_2 = m c_p(W_2) (leaving, the smaller), effectiveness eps on C_2, and the coil on
+    its process line t_2 = BF t_1' + (1 - BF) t_adp (t_adp fixed by the leaving
+    humidity, so pre-cooling moves only the dry bulbs), the heat is the smallest of
+
+    .. math::
+
+        Q_\epsilon = \frac{\epsilon C_2 (t_1 - t_{2,0})}{1 - \epsilon BF C_2 / C_1},\quad
+        Q_{lim} = \frac{t_{lim} - t_{2,0}}{1/C_2 - BF/C_1},\quad
+        Q_{dp} = C_1 (t_1 - t_{dp,1})
+
+    (full effectiveness; modulated so the reheated air does not pass ``t_lim``, the
+    supply set point; pre-cooling stopped at the entering dew point, the exchanger being
+    sensible only), and not below 0. t_{2,0} = BF t_1 + (1 - BF) t_adp is the coil
+    leaving dry bulb without the exchanger. Where the line would leave the air
+    supersaturated (t_2 below the leaving dew point t_{dp,2}), the leaving state is
+    capped at saturation, t_2 = t_{dp,2}, and the first two limits become
+    eps C_2 (t_1 - t_{dp,2}) and C_2 (t_lim - t_{dp,2}) (the smaller of each pair
+    holds). Then t_1' = t_1 - Q/C_1, t_2 = max(BF t_1' + (1 - BF) t_adp, t_{dp,2}) and
+    the reheated dry bulb t_2 + Q/C_2. With eps = 0 this is the coil alone.
+
+    Parameters
+    ----------
+    mass_flow : array_like
+        Dry-air mass flow [kg/s].
+    entering_drybulb, entering_humidity_ratio, entering_dew_point : array_like
+        State entering the exchanger's pre-cool side [°C, kg/kg dry air, °C].
+    leaving_humidity_ratio : array_like
+        Coil leaving humidity ratio [kg/kg dry air].
+    leaving_dew_point : array_like
+        Dew point of the coil leaving air [°C] (the lowest leaving dry bulb).
+    apparatus_dew_point : array_like
+        The coil's apparatus dew point [°C].
+    bypass_factor : array_like
+        The coil's bypass factor [-].
+    reheat_limit_drybulb : array_like
+        Highest dry bulb of the reheated air (the supply set point) [°C].
+    effectiveness : float
+        Sensible effectiveness on the smaller capacity rate [-], 0 to 1.
+
+    Returns
+    -------
+    RunaroundExchange
+        ``heat`` [kW] and the three dry bulbs [°C].
+
+    Notes
+    -----
+    Effectiveness of a sensible exchanger, Q = eps C_min (t_hot,in - t_cold,in):
+    ASHRAE Handbook HVAC Systems and Equipment 2020, Ch. 26 (air-to-air energy
+    recovery; run-around coil loops and heat pipes). Enthalpy: ASHRAE Handbook
+    Fundamentals 2017 Ch. 1, Eq. 30.
+
+    Examples
+    --------
+    >>> x = runaround_exchange(1.0, 30.0, 0.015, 20.3, 0.0076, 10.0, 8.3, 0.1, 13.0, 0.5)
+    >>> round(float(x.heat), 2), round(float(x.reheated_drybulb), 1)
+    (2.86, 13.0)
+    """
+    m = np.asarray(mass_flow, dtype=float)
+    t1 = np.asarray(entering_drybulb, dtype=float)
+    bf = np.asarray(bypass_factor, dtype=float)
+    c1 = CP_DRY_AIR + CP_WATER_VAPOR * np.asarray(entering_humidity_ratio, dtype=float)
+    c2 = CP_DRY_AIR + CP_WATER_VAPOR * np.asarray(leaving_humidity_ratio, dtype=float)
+    t_adp = np.asarray(apparatus_dew_point, dtype=float)
+    t_lim = np.asarray(reheat_limit_drybulb, dtype=float)
+    t2_min = np.asarray(leaving_dew_point, dtype=float)
+    t20 = bf * t1 + (1.0 - bf) * t_adp
+    # heat per kg of dry air [kJ/kg]
+    q_eps = effectiveness * c2 * (t1 - t20) / (1.0 - effectiveness * bf * c2 / c1)
+    q_eps = np.minimum(q_eps, effectiveness * c2 * (t1 - t2_min))
+    q_lim = np.minimum((t_lim - t20) / (1.0 / c2 - bf / c1), c2 * (t_lim - t2_min))
+    q_dp = c1 * (t1 - np.asarray(entering_dew_point, dtype=float))
+    q = np.maximum(np.minimum(np.minimum(q_eps, q_lim), q_dp), 0.0)
+    t1_cooled = t1 - q / c1
+    t2 = np.maximum(bf * t1_cooled + (1.0 - bf) * t_adp, t2_min)
+    return RunaroundExchange(m * q, t1_cooled, t2, t2 + q / c2)

@@ -43,8 +43,10 @@ leaving humidity is concave and piecewise linear in W_e::
 
     W_cl = min(W_e,  a W_e + b,  Ws(t_cl))
 
-(dry coil; wet coil line with a = BF, b = (1 - BF) W_adp, or a = 0, b = W_ldp for a
-leaving dew point; saturation at the leaving dry bulb). Each branch gives a
+(dry coil; wet coil line with a = BF, b = (1 - BF) W_adp; saturation at the leaving
+dry bulb). A coil holding a leaving dew point adds the branch W_t (a = 0, b = W_t) in
+every hour, cooling or not: where it governs the coil leaves on its own process line
+below the leaving target and is reheated (:mod:`plantside.air_handler.results`). Each branch gives a
 linear equation for W_z::
 
     dry:        W_z = W_o + mu / alpha
@@ -66,7 +68,8 @@ decisions are taken in the first two passes and then held.
 Energy balance (an identity of the reported states, see
 :mod:`plantside.air_handler.results`)::
 
-    coil_total - heating_coil - preheat = zone_sensible + zone_latent + reheat
+    coil_total - heating_coil - preheat - dehumidification_reheat
+        - condenser_heat_recovered = zone_sensible + zone_latent + reheat
         + ventilation_sensible + ventilation_latent + fan_heat
         - economizer_effect - recovery_effect - condensate_heat
 
@@ -272,11 +275,20 @@ def air_handler_hours(
     # --- cooling coil parameters ------------------------------------------------------------
     coil_model = s.coil_model
     bf_setting = float(s.bypass_factor)
-    if coil_model != "bypass_factor":
-        t_adp_fixed = float(
-            s.apparatus_dew_point if coil_model == "apparatus_dew_point" else s.leaving_dew_point
-        )
+    if coil_model == "apparatus_dew_point":
+        t_adp_fixed = float(s.apparatus_dew_point)
         w_adp_fixed = saturation_humidity_ratio(t_adp_fixed, p, check=False)
+    # A coil holding a leaving dew point: a bypass-factor coil cooling to the coil leaving
+    # target, whose valve opens further whenever that leaves the air wetter than the
+    # target humidity (W_cl = min(bypass-factor line, W_target)); it then leaves below the
+    # target dry bulb on its process line and is reheated (results.py).
+    dew_point_coil = coil_model == "leaving_dew_point"
+    t_dew_target = float(s.leaving_dew_point) if dew_point_coil else None
+    w_target = (
+        saturation_humidity_ratio(float(s.leaving_dew_point), p, check=False)
+        if dew_point_coil
+        else None
+    )
 
     # Initial humidity guess: cooling hours, supply at about 92 % RH at the supply set
     # point (a wet coil; the outdoor humidity if drier); heating hours, the dry-coil
@@ -377,16 +389,14 @@ def air_handler_hours(
         t_e = t_ph + fan_heat / (m * c_m) if blow_through else t_ph
         cooling = t_e > t_cl + COIL_IDLE_K
         # coil humidity line W_cl = a W_e + b on the wet branch
-        if coil_model == "bypass_factor":
+        if coil_model != "apparatus_dew_point":
             t_adp = (t_cl - bf_setting * t_e) / (1.0 - bf_setting)
             a = bf = bf_setting
             w_adp = _saturation_humidity_ratio(t_adp, p)
-        elif coil_model == "apparatus_dew_point":
+        else:
             t_adp, w_adp = t_adp_fixed, w_adp_fixed
             with np.errstate(divide="ignore", invalid="ignore"):
                 a = bf = np.where(cooling, (t_cl - t_adp) / (t_e - t_adp), 1.0)
-        else:
-            t_adp, a, w_adp, bf = t_adp_fixed, 0.0, w_adp_fixed, np.nan
         b = (1.0 - a) * w_adp
         if pass_number <= 1:  # t_cl moves by the iteration tolerance only after that
             ws_cl = _saturation_humidity_ratio(t_cl, p)
@@ -396,11 +406,22 @@ def air_handler_hours(
             z_dry = w_o + mu / alpha  # +-inf (no steady state) or NaN (any) when alpha = 0
             z_wet = (a * alpha * w_o + b + mu) / (1.0 - a * (1.0 - alpha))
         z = np.where(cooling, np.minimum(np.minimum(z_dry, z_wet), ws_cl + mu), z_dry)
-        w_z_new = np.minimum(np.maximum(np.where(np.isnan(z), w_z, z), _W_FLOOR), ws_zone)
+        undetermined = w_z
+        if dew_point_coil:
+            # the target branch (a = 0, b = W_target) holds in every hour, heating too,
+            # where the entering air is warmer than the target dew point (colder air, a
+            # fog of mixing, is not dried by cooling it further)
+            dew_active = t_e > t_dew_target + COIL_IDLE_K
+            z = np.where(dew_active, np.minimum(z, w_target + mu), z)
+            undetermined = np.where(dew_active, np.minimum(w_z, w_target + mu), w_z)
+        w_z_new = np.minimum(np.maximum(np.where(np.isnan(z), undetermined, z), _W_FLOOR), ws_zone)
         change = float(np.max(np.abs(w_z_new - w_z)))
         w_z = w_z_new
         w_e = w_z + alpha * (w_o - w_z)
         w_s = np.where(cooling, np.minimum(np.minimum(w_e, a * w_e + b), ws_cl), w_e)
+        if dew_point_coil:
+            w_s_by_drybulb = w_s
+            w_s = np.where(dew_active, np.minimum(w_s, w_target), w_s)
         if pass_number == 1:
             frozen_mode = None if s.all_outdoor_air else mode
             frozen_recovery = (heat_branch, cool_branch) if recovery else None
@@ -410,6 +431,8 @@ def air_handler_hours(
         if pass_number >= 1 and change < _PASS_TOLERANCE:
             break
 
+    # hours where the leaving dew point, not the leaving dry bulb, sets the coil
+    dew_point_governs = (w_s < w_s_by_drybulb) if dew_point_coil else False
     return hourly_results(SimpleNamespace(**locals()))
 
 

@@ -4,7 +4,8 @@
 :func:`plantside.air_handler.model.air_handler_hours` into every published column.
 All states are recomputed from the final zone humidity, so the energy balance
 
-    coil_total - heating_coil - preheat = zone_sensible + zone_latent + reheat
+    coil_total - heating_coil - preheat - dehumidification_reheat
+        - condenser_heat_recovered = zone_sensible + zone_latent + reheat
         + ventilation_sensible + ventilation_latent + fan_heat
         - economizer_effect - recovery_effect - condensate_heat
 
@@ -25,6 +26,17 @@ r = return):
   air, negative when it heats it;
 - zone sensible = m c_p(W_s)(t_z - t_s) - reheat + m c_p(W_z)(t_r - t_z) (room and
   return plenum), zone latent = m (W_z - W_s)(2501 + 1.86 t_z).
+
+A coil holding a leaving dew point (``coil_model="leaving_dew_point"``), in the hours
+where the dew point and not the leaving dry bulb sets it, leaves on its process line
+(:func:`plantside.air.coils.dew_point_coil_process`), below the coil leaving target t_cl,
+and is reheated to t_cl: first by the passive exchanger around the coil
+(``coil_runaround_heat_kW``, Q taken from the entering air and given to the leaving air,
+:func:`plantside.air.coils.runaround_exchange`, so it appears on neither side of the
+balance), then by the unit's reheat source (``dehumidification_reheat_kW`` from hot water,
+or ``condenser_heat_recovered_kW``). Reheat above the entering dry bulb (a zone that needs
+heat) is the heating coil's, as without dehumidification. The coil entering state is the
+air entering the coil itself, after the exchanger's pre-cooling.
 """
 
 from __future__ import annotations
@@ -33,7 +45,9 @@ from types import SimpleNamespace
 
 import numpy as np
 
+from plantside.air.coils import dew_point_coil_process, runaround_exchange
 from plantside.air.economizer import MODE_OFF
+from plantside.air.moist_air import dew_point_from_humidity_ratio
 from plantside.constants import (
     CP_DRY_AIR,
     CP_LIQUID_WATER,
@@ -112,6 +126,9 @@ HOURLY_COLUMNS = (
     "fan_heat_kW",
     "economizer_effect_kW",
     "recovery_effect_kW",
+    "dehumidification_reheat_kW",
+    "condenser_heat_recovered_kW",
+    "coil_runaround_heat_kW",
 )
 
 _STATE_COLUMNS = tuple(
@@ -269,19 +286,59 @@ def hourly_results(v: SimpleNamespace) -> dict:
     # Coil duties as decided in the last pass (the humidity solution belongs to them);
     # the final dry bulbs differ from that pass by the iteration tolerance only, and the
     # clamps keep a coil from reversing its duty within that tolerance.
-    heat_coil = ~cooling & (t_e < t_cl - COIL_IDLE_K)
+    dew = v.dew_point_governs
+    heat_coil = ~cooling & (t_e < t_cl - COIL_IDLE_K) & ~dew
     t_leave = np.where(
         cooling, np.minimum(t_cl, t_e), np.where(heat_coil, np.maximum(t_cl, t_e), t_e)
     )
+    c_cl = CP_DRY_AIR + CP_WATER_VAPOR * w_cl
+    heating_coil = np.where(heat_coil, m * c_m * (t_leave - t_e), 0.0)
+    t_coil_in, t_after, adp_required = t_e, t_leave, t_adp
+    runaround = reheat_active = 0.0
+    if v.dew_point_coil:
+        settings = v.s
+        process = dew_point_coil_process(t_e, w_e, w_cl, v.bf_setting, p)
+        effectiveness = float(settings.coil_runaround_effectiveness)
+        t_dew_e = (
+            dew_point_from_humidity_ratio(np.maximum(w_e, 1e-9), p, check=False)
+            if effectiveness > 0.0
+            else t_e
+        )
+        exchange = runaround_exchange(
+            m,
+            t_e,
+            w_e,
+            t_dew_e,
+            w_cl,
+            float(settings.leaving_dew_point),
+            process.apparatus_dew_point,
+            v.bf_setting,
+            t_cl,
+            effectiveness,
+        )
+        t_coil_in = np.where(dew, exchange.coil_entering_drybulb, t_e)
+        t_leave = np.where(dew, exchange.coil_leaving_drybulb, t_leave)
+        t_after = np.where(dew, np.maximum(t_cl, t_leave), t_leave)
+        t_reheated = np.where(dew, exchange.reheated_drybulb, t_leave)
+        runaround = np.where(dew, exchange.heat, 0.0)
+        # the lift above the entering dry bulb heats the zone: the heating coil's duty
+        above_entering = np.where(
+            dew, m * c_cl * np.maximum(t_after - np.maximum(t_e, t_reheated), 0.0), 0.0
+        )
+        reheat_active = np.where(dew, m * c_cl * (t_after - t_reheated), 0.0) - above_entering
+        heating_coil = heating_coil + above_entering
+        t_adp = np.where(dew, process.apparatus_dew_point, t_adp)
+        adp_required = t_adp
+        cooling = cooling | dew
     wet = cooling & (w_cl < w_e)
     condensate = m * (w_e - w_cl)
     condensate_heat = condensate * CP_LIQUID_WATER * t_leave
-    c_cl = CP_DRY_AIR + CP_WATER_VAPOR * w_cl
-    coil_sensible = np.where(cooling, m * c_cl * (t_e - t_leave), 0.0)
-    coil_latent = condensate * (LATENT_HEAT_0C + CP_WATER_VAPOR * t_e) - condensate_heat
-    heating_coil = np.where(heat_coil, m * c_m * (t_leave - t_e), 0.0)
+    coil_sensible = np.where(cooling, m * c_cl * (t_coil_in - t_leave), 0.0)
+    coil_latent = condensate * (LATENT_HEAT_0C + CP_WATER_VAPOR * t_coil_in) - condensate_heat
     h_cl = _h(t_leave, w_cl)
-    h_supply = h_cl if blow_through else h_cl + fan_heat / m
+    h_after = _h(t_after, w_cl)
+    h_supply = h_after if blow_through else h_after + fan_heat / m
+    from_condenser = v.dew_point_coil and v.s.reheat_source == "condenser_heat"
     t_supply = (h_supply - LATENT_HEAT_0C * w_cl) / c_cl
     # zone: what the supply air takes up in the room and the plenum, from the states
     zone_latent = m * (w_z - w_cl) * h_g_zone
@@ -337,9 +394,9 @@ def hourly_results(v: SimpleNamespace) -> dict:
         "mixed_drybulb_C": t_m,
         "mixed_humidity_ratio_kgkg": w_m,
         "mixed_enthalpy_kJkg": h_m,
-        "coil_entering_drybulb_C": t_e,
+        "coil_entering_drybulb_C": t_coil_in,
         "coil_entering_humidity_ratio_kgkg": w_e,
-        "coil_entering_enthalpy_kJkg": _h(t_e, w_e),
+        "coil_entering_enthalpy_kJkg": _h(t_coil_in, w_e),
         "coil_leaving_drybulb_C": t_leave,
         "coil_leaving_humidity_ratio_kgkg": w_cl,
         "coil_leaving_enthalpy_kJkg": h_cl,
@@ -368,6 +425,9 @@ def hourly_results(v: SimpleNamespace) -> dict:
         "fan_heat_kW": fan_heat,
         "economizer_effect_kW": economizer_effect,
         "recovery_effect_kW": recovery_effect,
+        "dehumidification_reheat_kW": 0.0 if from_condenser else reheat_active,
+        "condenser_heat_recovered_kW": reheat_active if from_condenser else 0.0,
+        "coil_runaround_heat_kW": runaround,
     }
     shape = np.broadcast_shapes(*(np.shape(v) for v in out.values()))
     for key, value in out.items():
@@ -384,6 +444,6 @@ def hourly_results(v: SimpleNamespace) -> dict:
         out["zone_sensible_unmet_kW"] = np.where(off, q_sens, out["zone_sensible_unmet_kW"])
         out["zone_latent_unmet_kW"] = np.where(off, q_lat, out["zone_latent_unmet_kW"])
     out["humidity_iteration_change"] = change
-    adp_required = np.where(cooling & operating, t_adp, np.nan)
+    adp_required = np.where(cooling & operating, adp_required, np.nan)
     out["apparatus_dew_point_required_C"] = np.broadcast_to(adp_required, shape)
     return out

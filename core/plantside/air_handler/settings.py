@@ -46,6 +46,7 @@ __all__ = [
     "FAN_POSITIONS",
     "FAN_SCHEDULES",
     "LOW_LOAD_RESPONSES",
+    "REHEAT_SOURCES",
     "AirHandlerSettings",
     "fan_power_fraction",
 ]
@@ -56,6 +57,7 @@ FAN_POSITIONS = ("draw_through", "blow_through")
 COIL_MODELS = ("bypass_factor", "apparatus_dew_point", "leaving_dew_point")
 FAN_SCHEDULES = ("always", "occupied")
 LOW_LOAD_RESPONSES = ("raise_supply_temperature", "reheat")
+REHEAT_SOURCES = ("hot_water", "condenser_heat")
 
 # ASHRAE 90.1-2019 Appendix G Table G3.1.3.15, VAV fan with variable-speed drive
 # (coefficients from memory).
@@ -93,7 +95,7 @@ def _choice(field, value, allowed):
 
 
 _TEXT_FIELDS = ("name", "airflow_basis", "fan_control", "fan_position", "economizer",
-                "coil_model", "fan_schedule", "low_load_response")  # fmt: skip
+                "coil_model", "fan_schedule", "low_load_response", "reheat_source")  # fmt: skip
 _FLAG_FIELDS = ("all_outdoor_air", "economizer_integrated")
 
 
@@ -200,8 +202,21 @@ class AirHandlerSettings:
         Fixed apparatus dew point [°C], 0 to 25 and below ``supply_drybulb``
         (``coil_model="apparatus_dew_point"``).
     leaving_dew_point : float or None
-        Leaving dew point limit [°C], 0 to 25 and at most ``supply_drybulb``
-        (``coil_model="leaving_dew_point"``).
+        Leaving dew point held by the coil [°C], 0 to 25 and at most ``supply_drybulb``
+        (``coil_model="leaving_dew_point"``). The coil leaves on its process line (with
+        ``bypass_factor``), near saturation, and a reheat stage lifts the air to the
+        supply set point; the coil dehumidifies whenever the entering dew point is above
+        this, also when the entering air is cooler than the supply set point.
+    reheat_source : str
+        Where the reheat after a ``leaving_dew_point`` coil comes from: ``"hot_water"``
+        (a hot-water coil on the heating plant) or ``"condenser_heat"`` (heat recovered
+        from the chillers' condensers; not a load on the heating plant).
+    coil_runaround_effectiveness : float
+        Sensible effectiveness of a passive exchanger around the cooling coil (run-around
+        coil loop or heat pipe) [-], 0 to 0.9 (0 = none). It pre-cools the air entering
+        the coil by the heat it gives the air leaving it, modulated so the supply set
+        point is not passed; the rest of the reheat comes from ``reheat_source``. Acts
+        only when the coil leaves below the supply set point (``leaving_dew_point``).
     apparatus_dew_point_min : float
         Lowest apparatus dew point the coil and its cooling medium can produce [°C],
         -5 to 20. A design point needing a lower one is an error; hours of the year
@@ -249,6 +264,8 @@ class AirHandlerSettings:
     apparatus_dew_point_min: float = 3.0
     fan_schedule: str = "always"
     low_load_response: str = "raise_supply_temperature"
+    reheat_source: str = "hot_water"
+    coil_runaround_effectiveness: float = 0.0
 
     def __post_init__(self):
         _check_types(self)
@@ -365,6 +382,14 @@ class AirHandlerSettings:
             )
         _choice("fan_schedule", self.fan_schedule, FAN_SCHEDULES)
         _choice("low_load_response", self.low_load_response, LOW_LOAD_RESPONSES)
+        _choice("reheat_source", self.reheat_source, REHEAT_SOURCES)
+        check_range(
+            "coil_runaround_effectiveness",
+            self.coil_runaround_effectiveness,
+            0.0,
+            0.9,
+            "(fraction)",
+        )
         _optional(
             "ventilation_airflow_required",
             self.ventilation_airflow_required,

@@ -236,7 +236,12 @@ def outdoor_air_sweep(
         )
         checked = True
         operating = r["operating"]
-        heating = r["heating_coil_kW"] + r["preheat_kW"] + r["reheat_kW"]
+        heating = (
+            r["heating_coil_kW"]
+            + r["preheat_kW"]
+            + r["reheat_kW"]
+            + r["dehumidification_reheat_kW"]
+        )
         mode = r["economizer_mode"]
         rows.append(
             np.column_stack(

@@ -64,8 +64,10 @@ __all__ = [
     "study_summary",
 ]
 
-#: Hourly columns whose sum is an air handler's heating coil load [kW].
-heating_load_columns = ("preheat_kW", "heating_coil_kW", "reheat_kW")
+#: Hourly columns whose sum is an air handler's heating coil load [kW] (reheat after a
+#: dew-point coil counts only when its source is hot water; recovered condenser heat is
+#: ``condenser_heat_recovered_kW``, not a heating-plant load).
+heating_load_columns = ("preheat_kW", "heating_coil_kW", "reheat_kW", "dehumidification_reheat_kW")
 
 #: The cautions every study carries, whatever its numbers.
 GENERAL_CAUTIONS = (
@@ -88,7 +90,7 @@ class AirHandlerResult:
 
     @property
     def heating_hourly(self) -> np.ndarray:
-        """Hourly heating coil load (preheat + heating + reheat) [kW]."""
+        """Hourly heating coil load (preheat + heating + reheat + dehumidification reheat) [kW]."""
         return sum(self.hourly[c].to_numpy() for c in heating_load_columns)
 
     @property
