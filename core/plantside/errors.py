@@ -16,7 +16,33 @@ __all__ = [
     "PlantsideError",
     "ScenarioError",
     "check_range",
+    "excerpt",
 ]
+
+#: Longest file name or value quoted whole in a message [characters]; longer ones are
+#: shortened by :func:`excerpt`, so a message never echoes a huge input back.
+EXCERPT_CHARS = 80
+#: The same for a file name (with its folders) or a field name [characters].
+NAME_EXCERPT_CHARS = 160
+
+
+def excerpt(text, limit: int = EXCERPT_CHARS) -> str:
+    """``text`` (any object, as ``str``) shortened to at most ``limit`` characters.
+
+    The start and the end are kept (a file name's folder and its own name) with ``...``
+    between them.
+
+    Examples
+    --------
+    >>> excerpt("a" * 100, 11)
+    'aaaa...aaaa'
+    """
+    text = str(text)
+    if len(text) <= limit:
+        return text
+    keep = max(2, limit - 3)
+    head = (keep + 1) // 2
+    return text[:head] + "..." + text[len(text) - (keep - head) :]
 
 
 class PlantsideError(Exception):
@@ -57,7 +83,7 @@ class InputFileError(PlantsideError, ValueError):
         self.problems = list(problems)
         shown = self.problems[:20]
         more = len(self.problems) - len(shown)
-        text = f"{source}: " + "; ".join(shown)
+        text = f"{excerpt(source, NAME_EXCERPT_CHARS)}: " + "; ".join(shown)
         if more > 0:
             text += f"; and {more} more problem(s)"
         super().__init__(text)
@@ -69,7 +95,8 @@ class ScenarioError(PlantsideError, ValueError):
     def __init__(self, source: str, field: str, message: str):
         self.source = source
         self.field = field
-        super().__init__(f"{source}: {field}: {message}")
+        shown = excerpt(source, NAME_EXCERPT_CHARS), excerpt(field, NAME_EXCERPT_CHARS)
+        super().__init__(f"{shown[0]}: {shown[1]}: {message}")
 
 
 def _describe_indices(bad: np.ndarray, size: int) -> str:

@@ -50,7 +50,6 @@ from __future__ import annotations
 import dataclasses
 import difflib
 import math
-import tomllib
 import types
 import typing
 from dataclasses import dataclass, field, fields, replace
@@ -69,10 +68,12 @@ from plantside.climate.weather_csv import read_weather_csv
 from plantside.errors import InputFileError, InputRangeError, ScenarioError
 from plantside.plant.staging import DEFAULT_MINIMUM_TURNDOWN
 from plantside.study.solar_gains import zone_with_solar_gain
+from plantside.study.toml_input import MAX_SCENARIO_BYTES, parse_toml_text, read_toml_text
 from plantside.units import UnitSystem, from_display, to_display, unit_label
 
 __all__ = [
     "FIELD_QUANTITIES",
+    "MAX_SCENARIO_BYTES",
     "AirHandlerSpec",
     "PlantOptionSpec",
     "Scenario",
@@ -80,13 +81,11 @@ __all__ = [
     "field_unit",
     "load_scenario",
     "loads_scenario",
+    "read_toml_text",
     "save_scenario",
     "scenario_from_dict",
     "scenario_to_dict",
 ]
-
-#: Largest scenario file read [bytes]; a study is a few kilobytes.
-MAX_SCENARIO_BYTES = 1_000_000
 
 #: Physical quantity of each numeric field written in the file's unit system. Fields not
 #: listed are dimensionless (fractions, effectivenesses) or carry their unit in their name
@@ -643,10 +642,7 @@ def loads_scenario(
     Pass ``files="inside"`` for text that came from someone else (an upload), so the
     file names in it can only reach files inside ``base_dir``.
     """
-    try:
-        data = tomllib.loads(text)
-    except tomllib.TOMLDecodeError as error:
-        raise ScenarioError(source, "(syntax)", f"not valid TOML: {error}") from error
+    data = parse_toml_text(text, source)
     return scenario_from_dict(data, source, base_dir, files=files)
 
 
@@ -660,37 +656,6 @@ def load_scenario(path) -> Scenario:
     """
     path = Path(path)
     return loads_scenario(read_toml_text(path), str(path), path.parent)
-
-
-def read_toml_text(path: Path) -> str:
-    """The text of a scenario or sweep file, after the checks every such file gets.
-
-    Parameters
-    ----------
-    path : pathlib.Path
-        The ``.toml`` file.
-
-    Returns
-    -------
-    str
-        The file's text (UTF-8, a byte-order mark dropped).
-
-    Raises
-    ------
-    ScenarioError
-        If the file is missing, larger than ``MAX_SCENARIO_BYTES`` or not UTF-8 text.
-    """
-    source = str(path)
-    if not path.is_file():
-        raise ScenarioError(source, "(file)", "file not found")
-    if path.stat().st_size > MAX_SCENARIO_BYTES:
-        raise ScenarioError(
-            source, "(file)", f"larger than the {MAX_SCENARIO_BYTES // 1000} kB allowed"
-        )
-    try:
-        return path.read_bytes().decode("utf-8-sig")
-    except UnicodeDecodeError as error:
-        raise ScenarioError(source, "(file)", f"not UTF-8 text ({error.reason})") from error
 
 
 # ---------------------------------------------------------------------------------------

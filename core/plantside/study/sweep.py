@@ -32,7 +32,6 @@ import json
 import math
 import os
 import re
-import tomllib
 import types
 import typing
 from dataclasses import dataclass, fields, replace
@@ -47,15 +46,15 @@ from plantside.air_handler.year import AirHandlerSettings
 from plantside.air_handler.zone_loads import ZoneLoadModel
 from plantside.climate.bundled import BUNDLED_CLIMATES
 from plantside.climate.design_conditions import COOLING_PERCENTS, HEATING_PERCENTS
-from plantside.errors import InputRangeError, ScenarioError
+from plantside.errors import InputRangeError, ScenarioError, excerpt
 from plantside.study.scenario import (
     FIELD_QUANTITIES,
     Scenario,
     load_scenario,
-    read_toml_text,
     scenario_from_dict,
     scenario_to_dict,
 )
+from plantside.study.toml_input import parse_toml_text, read_toml_text
 from plantside.units import UnitSystem, from_display, unit_label
 
 __all__ = [
@@ -74,6 +73,12 @@ __all__ = [
 MAX_CASES = 200_000
 #: Most values one ``{start, stop, num}`` range may produce.
 MAX_RANGE_VALUES = 10_000
+
+
+def _quoted(value) -> str:
+    """A value from the file as quoted in a message: its repr, at most a short excerpt."""
+    return excerpt(repr(value))
+
 
 #: Suffix of a varied value's column in the results table (values there are SI).
 SI_SUFFIXES = {
@@ -402,17 +407,17 @@ class _Reader:
 
     def unknown(self, where: str, key: str, allowed) -> ScenarioError:
         guess = difflib.get_close_matches(key, list(allowed), n=1, cutoff=0.6)
-        hint = f"; did you mean {guess[0]!r}?" if guess else ""
-        return self.error(where, f"unknown field {key!r}{hint}")
+        hint = f"; did you mean {_quoted(guess[0])}?" if guess else ""
+        return self.error(where, f"unknown field {_quoted(key)}{hint}")
 
     def number(self, where, value, kind="float"):
         if isinstance(value, bool) or not isinstance(value, int | float):
-            raise self.error(where, f"expected a number, got {value!r}")
+            raise self.error(where, f"expected a number, got {_quoted(value)}")
         if not math.isfinite(value):
-            raise self.error(where, f"expected a finite number, got {value!r}")
+            raise self.error(where, f"expected a finite number, got {_quoted(value)}")
         if kind == "int":
             if float(value) != int(value):
-                raise self.error(where, f"expected a whole number, got {value!r}")
+                raise self.error(where, f"expected a whole number, got {_quoted(value)}")
             return int(value)
         return float(value)
 
@@ -447,20 +452,20 @@ class _Reader:
             names = list(BUNDLED_CLIMATES)
         if not isinstance(names, list) or not names:
             raise self.error(
-                where, f'expected a list of bundled climate names or "all", got {names!r}'
+                where, f'expected a list of bundled climate names or "all", got {_quoted(names)}'
             )
         lookup = {n.lower(): n for n in BUNDLED_CLIMATES}
         chosen = []
         for i, name in enumerate(names):
             item = f"{where}[{i + 1}]"
             if not isinstance(name, str):
-                raise self.error(item, f"expected a climate name in quotes, got {name!r}")
+                raise self.error(item, f"expected a climate name in quotes, got {_quoted(name)}")
             if name.strip().lower() not in lookup:
                 guess = difflib.get_close_matches(name, list(BUNDLED_CLIMATES), n=1, cutoff=0.5)
-                hint = f"; did you mean {guess[0]!r}?" if guess else ""
+                hint = f"; did you mean {_quoted(guess[0])}?" if guess else ""
                 raise self.error(
                     item,
-                    f"{name!r} is not a bundled climate{hint} "
+                    f"{_quoted(name)} is not a bundled climate{hint} "
                     f"Bundled: {', '.join(BUNDLED_CLIMATES)}",
                 )
             chosen.append(lookup[name.strip().lower()])
@@ -472,12 +477,12 @@ class _Reader:
     def folder(self, folder, base_dir: Path) -> tuple[ClimateChoice, ...]:
         where = "sweep.climate_folder"
         if not isinstance(folder, str) or not folder:
-            raise self.error(where, f"expected a folder name in quotes, got {folder!r}")
+            raise self.error(where, f"expected a folder name in quotes, got {_quoted(folder)}")
         path = Path(folder)
         if not path.is_absolute():
             path = base_dir / path
         if not path.is_dir():
-            raise self.error(where, f"folder {folder!r} not found (looked in {path.parent})")
+            raise self.error(where, f"folder {_quoted(folder)} not found (looked in {path.parent})")
         files = sorted(p for p in path.iterdir() if p.suffix.lower() == ".csv" and p.is_file())
         if not files:
             raise self.error(where, f"no .csv weather files in {path}")
@@ -501,7 +506,7 @@ class _Reader:
         if "fill_gaps" in table:
             if not isinstance(table["fill_gaps"], bool):
                 raise self.error(
-                    "sweep.fill_gaps", f"expected true or false, got {table['fill_gaps']!r}"
+                    "sweep.fill_gaps", f"expected true or false, got {_quoted(table['fill_gaps'])}"
                 )
             changes["fill_gaps"] = table["fill_gaps"]
         return changes
@@ -511,7 +516,9 @@ class _Reader:
         if table is None:
             return ()
         if not isinstance(table, dict):
-            raise self.error("sweep.axes", f"expected a table of field = values, got {table!r}")
+            raise self.error(
+                "sweep.axes", f"expected a table of field = values, got {_quoted(table)}"
+            )
         return tuple(self.axis(key, raw) for key, raw in table.items())
 
     def target(self, key: str, where: str):
@@ -552,7 +559,7 @@ class _Reader:
         if kind is None:
             raise self.error(
                 where,
-                f"{name!r} is not a number; sweeps vary numeric fields (for a text or "
+                f"{_quoted(name)} is not a number; sweeps vary numeric fields (for a text or "
                 "true/false setting, write one scenario per choice)",
             )
         if zone:
@@ -609,7 +616,8 @@ class _Reader:
             hint = ' or "none"' if optional else ""
             raise self.error(
                 where,
-                f"expected a list of numbers{hint} or a range {{start, stop, num}}, got {raw!r}",
+                f"expected a list of numbers{hint} or a range {{start, stop, num}}, "
+                f"got {_quoted(raw)}",
             )
         seen = [v for v in values if values.count(v) > 1]
         if seen:
@@ -709,13 +717,13 @@ def sweep_from_dict(table: dict, base: Scenario, source: str = "<sweep>", base_d
     reader = _Reader(source, base)
     base_dir = Path.cwd() if base_dir is None else Path(base_dir)
     if not isinstance(table, dict):
-        raise reader.error("sweep", f"expected a [sweep] table, got {table!r}")
+        raise reader.error("sweep", f"expected a [sweep] table, got {_quoted(table)}")
     for key in table:
         if key not in _SWEEP_KEYS:
             raise reader.unknown(f"sweep.{key}", key, _SWEEP_KEYS)
     title = table.get("title", f"Sweep of {base.title}")
     if not isinstance(title, str):
-        raise reader.error("sweep.title", f"expected text in quotes, got {title!r}")
+        raise reader.error("sweep.title", f"expected text in quotes, got {_quoted(title)}")
     climates = reader.climates(table, base_dir)
     if table.get("climate_folder") is not None:
         changes = reader.folder_settings(table)
@@ -733,7 +741,7 @@ def sweep_from_dict(table: dict, base: Scenario, source: str = "<sweep>", base_d
             if key in touched:
                 raise reader.error(
                     f'sweep.axes."{axis.field}"',
-                    f"varies the same field as {touched[key]!r}; give it once",
+                    f"varies the same field as {_quoted(touched[key])}; give it once",
                 )
             touched[key] = axis.field
     reader.combinations(axes)
@@ -761,17 +769,14 @@ def loads_sweep(text: str, source: str = "<sweep>", base_dir=None) -> Sweep:
         Folder that relative paths resolve against (default: the working folder).
     """
     base_dir = Path.cwd() if base_dir is None else Path(base_dir)
-    try:
-        data = tomllib.loads(text)
-    except tomllib.TOMLDecodeError as error:
-        raise ScenarioError(source, "(syntax)", f"not valid TOML: {error}") from error
+    data = parse_toml_text(text, source)
     if "sweep" not in data:
         raise ScenarioError(
             source, "sweep", "missing: a sweep file needs a [sweep] table (see the README)"
         )
     table = data.pop("sweep")
     if not isinstance(table, dict):
-        raise ScenarioError(source, "sweep", f"expected a [sweep] table, got {table!r}")
+        raise ScenarioError(source, "sweep", f"expected a [sweep] table, got {_quoted(table)}")
     base_name = table.get("base")
     if base_name is not None:
         if data:
@@ -782,13 +787,17 @@ def loads_sweep(text: str, source: str = "<sweep>", base_dir=None) -> Sweep:
                 f"{', '.join(sorted(data))}",
             )
         if not isinstance(base_name, str) or not base_name:
-            raise ScenarioError(source, "sweep.base", f"expected a file name, got {base_name!r}")
+            raise ScenarioError(
+                source, "sweep.base", f"expected a file name, got {_quoted(base_name)}"
+            )
         path = Path(base_name)
         if not path.is_absolute():
             path = Path(os.path.normpath(base_dir / path))
         if not path.is_file():
             raise ScenarioError(
-                source, "sweep.base", f"file {base_name!r} not found (looked in {path.parent})"
+                source,
+                "sweep.base",
+                f"file {_quoted(base_name)} not found (looked in {excerpt(path.parent, 160)})",
             )
         base = load_scenario(path)
         table = {k: v for k, v in table.items() if k != "base"}
