@@ -4,6 +4,7 @@ The reference is the same sweep run in this process (workers=1), itself checked 
 case against :func:`plantside.study.run.run_study` in ``tests/test_sweep.py``.
 """
 
+import json
 import sys
 from pathlib import Path
 
@@ -100,3 +101,57 @@ def test_missing_cluster_extra_is_a_clear_error(sweep, tmp_path, monkeypatch):
     with pytest.raises(InputRangeError, match=r"plantside\[cluster\]"):
         run_sweep(sweep, tmp_path / "out", scheduler="tcp://127.0.0.1:8786")
     assert not (tmp_path / "out").exists()  # refused before anything is written
+
+
+def test_a_batch_whose_worker_dies_is_resubmitted_once_then_recorded_failed(
+    sweep, tmp_path, monkeypatch
+):
+    # A cluster of its own where attribution is exact: each worker holds one task at a
+    # time (worker-saturation 1.0) and the scheduler reports a task whose worker died
+    # at once (allowed-failures 0), so plantside's one resubmission is the only retry.
+    import functools
+    import os
+
+    import dask
+    import plantside.study.sweep_run as sweep_run
+    import sweep_faults
+
+    doomed = sweep.cases[5]
+    dying = functools.partial(
+        sweep_faults.dying_run_batch, frozenset({doomed.case_id}), None, os.getpid()
+    )
+    settings = {
+        "distributed.scheduler.allowed-failures": 0,
+        "distributed.scheduler.worker-saturation": 1.0,
+    }
+    out = tmp_path / "out"
+    with (
+        dask.config.set(settings),
+        distributed.LocalCluster(
+            host="127.0.0.1",
+            n_workers=2,
+            threads_per_worker=1,
+            processes=True,
+            dashboard_address=None,
+        ) as local,
+        distributed.Client(local) as client,
+    ):
+        monkeypatch.setattr(sweep_run, "run_batch", dying)
+        run = run_sweep(sweep, out, client=client, batch_size=1)
+        monkeypatch.undo()
+        table = run.table.set_index("case_id")
+        assert (run.computed, run.failed, len(table)) == (12, 1, 12)
+        assert table.loc[doomed.case_id, "status"] == "failed"
+        assert "worker died" in table.loc[doomed.case_id, "error_message"]
+        assert (table.drop(doomed.case_id)["status"] == "ok").all()
+        manifest = json.loads((out / "manifest.json").read_text())
+        assert (manifest["state"], manifest["cases_done"], manifest["cases_failed"]) == (
+            "complete",
+            12,
+            1,
+        )
+        # the cause gone, a rerun asked to retry finishes the rest on the same cluster
+        again = run_sweep(sweep, out, client=client, retry_failed=True)
+    assert (again.computed, again.skipped, again.failed) == (1, 11, 0)
+    single = run_sweep(sweep, tmp_path / "single", workers=1)
+    pd.testing.assert_frame_equal(again.table, single.table, check_exact=False, rtol=1e-12)

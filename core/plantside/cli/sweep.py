@@ -3,12 +3,16 @@
 ::
 
     plantside sweep SWEEP.toml --out DIR [--workers N | --scheduler ADDRESS]
-                    [--batch-size N] [--restart] [--plan] [--charts] [--quiet] [--json]
+                    [--batch-size N] [--restart | --retry-failed] [--plan] [--charts]
+                    [--quiet] [--json]
 
 Runs on all local cores by default; ``--scheduler tcp://host:8786`` runs on a Dask
 cluster. Finished cases are written as they finish; Ctrl-C keeps them (exit 130) and
-the same command continues where it stopped. The progress bar is plain text on
-stderr. Exit status: 0 done, 2 bad input (message on stderr), 130 interrupted.
+the same command continues where it stopped. A case the model refuses is a row with
+status ``failed`` and its error; the others go on. The progress bar is plain text on
+stderr. Exit status: 0 every case ran, 3 done but some cases failed (a line on stderr
+says how many and where the table is), 2 bad input (message on stderr), 130
+interrupted.
 
 The parser is added to the main command by :func:`add_sweep_parser`.
 """
@@ -20,9 +24,17 @@ import sys
 import time
 from pathlib import Path
 
-__all__ = ["EXIT_INTERRUPTED", "ProgressBar", "add_sweep_parser", "cmd_sweep"]
+__all__ = [
+    "EXIT_CASES_FAILED",
+    "EXIT_INTERRUPTED",
+    "ProgressBar",
+    "add_sweep_parser",
+    "cmd_sweep",
+]
 
 EXIT_OK = 0
+#: The sweep finished but some cases failed (their rows say why).
+EXIT_CASES_FAILED = 3
 EXIT_INTERRUPTED = 130
 
 
@@ -128,6 +140,7 @@ def cmd_sweep(args) -> int:
             scheduler=args.scheduler,
             batch_size=args.batch_size,
             restart=args.restart,
+            retry_failed=args.retry_failed,
             progress=progress,
         )
     except SweepInterruptedError as stopped:
@@ -135,7 +148,8 @@ def cmd_sweep(args) -> int:
         return EXIT_INTERRUPTED
     written = list(run.files)
     if args.charts:
-        written += _write_charts(sweep, run.table, Path(args.out) / "charts")
+        ran = run.table[run.table["status"] != "failed"]  # failed cases have no results
+        written += _write_charts(sweep, ran, Path(args.out) / "charts")
     if args.json:
         print(
             json.dumps(
@@ -143,6 +157,7 @@ def cmd_sweep(args) -> int:
                     "cases": run.total,
                     "computed": run.computed,
                     "skipped_already_done": run.skipped,
+                    "failed": run.failed,
                     "seconds": round(run.seconds, 3),
                     "written": [str(p) for p in written],
                 },
@@ -152,10 +167,18 @@ def cmd_sweep(args) -> int:
     else:
         print(
             f"{run.computed} case(s) computed, {run.skipped} already done, "
-            f"{run.total} in all ({run.seconds:.1f} s)"
+            f"{run.failed} failed, {run.total} in all ({run.seconds:.1f} s)"
         )
         for path in written:
             print(path)
+    if run.failed:
+        print(
+            f"plantside: {run.failed} of {run.total} case(s) failed; their rows in "
+            f"{run.files[1]} have status 'failed' and the error (error_field, "
+            "error_message); fix the input and rerun with --retry-failed to run them again",
+            file=sys.stderr,
+        )
+        return EXIT_CASES_FAILED
     return EXIT_OK
 
 
@@ -192,8 +215,14 @@ def add_sweep_parser(subparsers) -> None:
     sweep.add_argument(
         "--batch-size", type=int, help="cases per task (default: chosen from the case count)"
     )
-    sweep.add_argument(
+    again = sweep.add_mutually_exclusive_group()
+    again.add_argument(
         "--restart", action="store_true", help="discard finished cases in --out and run all"
+    )
+    again.add_argument(
+        "--retry-failed",
+        action="store_true",
+        help="run again the cases an earlier run recorded failed (a rerun skips them otherwise)",
     )
     sweep.add_argument(
         "--plan", action="store_true", help="show the climates, axes and case count; run nothing"

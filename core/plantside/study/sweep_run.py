@@ -15,6 +15,14 @@ How a sweep runs
   is brought up to date. An interrupted sweep keeps every finished part; running
   the same sweep again into the same folder skips the cases already there (a case
   is known by its id, a hash of its climate and its values).
+- A case that the model refuses (a :class:`plantside.errors.PlantsideError`, e.g. a
+  supply temperature the coil cannot reach in one climate) is a row with status
+  ``failed``, the error's field and message and no results; the other cases go on. A
+  rerun leaves failed cases alone unless asked (``retry_failed``).
+- A worker process that dies (killed, out of memory) loses only the batches it was
+  running: they are run again, each in a worker of its own, so a batch that kills its
+  worker a second time is known; its cases are recorded failed ("worker died"). On a
+  Dask cluster a batch whose task ends in ``KilledWorker`` is submitted once more.
 - At the end the parts are gathered into one tidy table, one row per case (the
   varied values and the headline results, SI with unit-suffixed column names),
   written as ``<out>/sweep_results.parquet`` and ``<out>/sweep_results.csv``.
@@ -32,8 +40,10 @@ import os
 import signal
 import threading
 import time
+from collections import deque
 from collections.abc import Callable, Sequence
 from concurrent.futures import FIRST_COMPLETED, ProcessPoolExecutor, wait
+from concurrent.futures.process import BrokenProcessPool
 from dataclasses import dataclass
 from datetime import UTC, datetime
 from functools import lru_cache
@@ -44,7 +54,13 @@ import pandas as pd
 
 from plantside import __version__
 from plantside.climate.weather import Weather
-from plantside.errors import InputFileError, InputRangeError, PlantsideError
+from plantside.errors import (
+    NAME_EXCERPT_CHARS,
+    InputFileError,
+    InputRangeError,
+    PlantsideError,
+    excerpt,
+)
 from plantside.study.run import GENERAL_CAUTIONS, StudyResult, heating_load_columns, run_study
 from plantside.study.scenario import Scenario
 from plantside.study.sweep import Sweep, SweepCase
@@ -53,10 +69,11 @@ __all__ = [
     "MANIFEST_NAME",
     "PARTS_FOLDER",
     "RESULTS_NAME",
-    "SweepCaseError",
+    "STATUS_COLUMNS",
     "SweepInterruptedError",
     "SweepRun",
     "case_headlines",
+    "failed_rows",
     "headline_columns",
     "plan_batches",
     "results_table",
@@ -76,13 +93,19 @@ MAX_AUTO_BATCH = 16
 BATCHES_PER_WORKER = 4
 #: How long to wait for a Dask scheduler to answer.
 CONNECT_TIMEOUT = "20s"
-
-
-class SweepCaseError(PlantsideError):
-    """A case that could not run (bad weather file, refused combination of values).
-
-    Raised with a plain message so it crosses process and cluster boundaries intact.
-    """
+#: Columns after the results: ``status`` (``ok`` or ``failed``), the failed case's
+#: ``error_field`` and ``error_message`` (empty for a case that ran).
+STATUS_COLUMNS = ("status", "error_field", "error_message")
+CASE_OK = "ok"
+CASE_FAILED = "failed"
+#: Longest error message kept in the table [characters].
+MAX_ERROR_CHARS = 200
+#: ``error_field`` and ``error_message`` of the cases of a batch whose worker died twice.
+WORKER_DIED = (
+    "worker",
+    "worker died: the process running this case's batch was killed twice (out of memory, "
+    "or stopped from outside); rerun with retry of failed cases to try again",
+)
 
 
 class SweepInterruptedError(PlantsideError):
@@ -226,38 +249,62 @@ def _case_row(sweep: Sweep, case: SweepCase) -> dict:
     return row
 
 
+def _failure(error: BaseException) -> dict:
+    """``status``, ``error_field``, ``error_message`` of a case the model refused."""
+    field = getattr(error, "field", None)
+    if field is None:  # a file that cannot be used: the file is the field
+        field = getattr(error, "source", None) or getattr(error, "filename", None) or ""
+    return {
+        "status": CASE_FAILED,
+        "error_field": excerpt(field, NAME_EXCERPT_CHARS),
+        "error_message": excerpt(error, MAX_ERROR_CHARS),
+    }
+
+
 def run_batch(sweep: Sweep, cases: Sequence[SweepCase]) -> pd.DataFrame:
     """Run a batch of cases one study each; one row per case (what a worker does).
 
-    Raises
-    ------
-    SweepCaseError
-        Naming the case (climate and values) and the problem.
+    A case the model refuses (any :class:`plantside.errors.PlantsideError`, or a file
+    it cannot read) is a row with status ``failed``, the error's field and message
+    (at most ``MAX_ERROR_CHARS``) and no results; the batch goes on. Errors cross
+    process and cluster boundaries as these plain values (our exception types take
+    several constructor arguments and do not unpickle).
     """
     rows = []
+    ran = {"status": CASE_OK, "error_field": "", "error_message": ""}
     for case in cases:
         try:
             scenario = sweep.scenario_for(case)
             weather = _weather_for(scenario, case.climate.digest)
             result = run_study(scenario, weather)
         except (PlantsideError, OSError) as error:  # a bad file, a refused value
-            values = ", ".join(
-                f"{a.field} = {'none' if v is None else f'{v:g}'}"
-                for a, v in zip(sweep.axes, case.values, strict=True)
-            )
-            where = f"climate {case.climate.label}" + (f", {values} (SI)" if values else "")
-            raise SweepCaseError(f"case {case.index + 1} ({where}): {error}") from None
-        rows.append(_case_row(sweep, case) | case_headlines(result))
+            rows.append(_case_row(sweep, case) | _failure(error))
+            continue
+        rows.append(_case_row(sweep, case) | case_headlines(result) | ran)
     return _typed(pd.DataFrame(rows), sweep)
+
+
+def failed_rows(sweep: Sweep, cases: Sequence[SweepCase], field: str, message: str):
+    """Rows of ``cases`` recorded failed with one ``field`` and ``message`` (no results)."""
+    failure = {"status": CASE_FAILED, "error_field": field, "error_message": message}
+    return _typed(pd.DataFrame([_case_row(sweep, case) | failure for case in cases]), sweep)
 
 
 def _typed(frame: pd.DataFrame, sweep: Sweep) -> pd.DataFrame:
     """Fixed column order and dtypes, so parts from any worker concatenate cleanly."""
     columns = ["case_index", "case_id", "climate", *[a.column for a in sweep.axes]]
-    columns += headline_columns(sweep.base)
-    frame = frame.reindex(columns=columns)
+    results = headline_columns(sweep.base)
+    frame = frame.reindex(columns=[*columns, *results, *STATUS_COLUMNS])
     for axis in sweep.axes:
         frame[axis.column] = frame[axis.column].astype(float)
+    for column in results:  # a part of failed cases only has no value to type them by
+        text = column.startswith(("governing_condition", "cooling_governing_condition"))
+        if text:
+            frame[column] = frame[column].astype("str")  # missing stays missing
+        elif frame[column].isna().any():
+            frame[column] = frame[column].astype(float)
+    for column in STATUS_COLUMNS:
+        frame[column] = frame[column].fillna("").astype("str")
     return frame
 
 
@@ -331,12 +378,13 @@ class _Folder:
         self.parts.mkdir(parents=True, exist_ok=True)
         self.part_files: list[str] = sorted(p.name for p in self.parts.glob("part-*.parquet"))
 
-    def done_ids(self) -> set[str]:
-        done = set()
-        for name in self.part_files:
-            frame = pd.read_parquet(self.parts / name, columns=["case_id"])
-            done.update(frame["case_id"])
-        return done
+    def statuses(self) -> dict[str, str]:
+        """``case_id`` -> ``ok`` or ``failed`` of every case in the parts (the latest row)."""
+        status: dict[str, str] = {}
+        for path in _parts_in_order(self.out):
+            frame = pd.read_parquet(path, columns=["case_id", "status"])
+            status.update(zip(frame["case_id"], frame["status"], strict=True))
+        return status
 
     def write_part(self, frame: pd.DataFrame) -> Path:
         first = int(frame["case_index"].min())
@@ -348,7 +396,7 @@ class _Folder:
         self.part_files.append(path.name)
         return path
 
-    def write_manifest(self, done: int, state: str) -> None:
+    def write_manifest(self, done: int, state: str, failed: int = 0) -> None:
         sweep = self.sweep
         data = {
             "format": "plantside sweep results",
@@ -366,6 +414,7 @@ class _Folder:
             ],
             "cases_total": sweep.size,
             "cases_done": done,
+            "cases_failed": failed,
             "state": state,
             "parts": sorted(self.part_files),
             "updated": datetime.now(UTC).isoformat(timespec="seconds"),
@@ -376,15 +425,24 @@ class _Folder:
         os.replace(temporary, path)
 
 
+def _parts_in_order(out) -> list[Path]:
+    """The parts in ``out`` in the order they were written (a retried case's row last)."""
+    parts = (Path(out) / PARTS_FOLDER).glob("part-*.parquet")
+    return sorted(parts, key=lambda p: (p.stat().st_mtime_ns, p.name))
+
+
 def results_table(out, sweep: Sweep) -> pd.DataFrame:
     """The tidy table of a sweep from the parts in ``out`` (cases done so far).
 
     One row per finished case of ``sweep``, in case order: ``case_index``, ``case_id``,
-    ``climate``, one column per axis (SI; the name carries the unit) and the headline
-    results of :func:`case_headlines`. Parts of cases that are no longer in the sweep
-    (e.g. an axis value since removed) are left out.
+    ``climate``, one column per axis (SI; the name carries the unit), the headline
+    results of :func:`case_headlines`, then ``status`` (``ok`` or ``failed``),
+    ``error_field`` and ``error_message`` (a failed case has no results). A case run
+    more than once (a failed case retried) has the row of its latest run. Parts of
+    cases that are no longer in the sweep (e.g. an axis value since removed) are left
+    out.
     """
-    parts = sorted((Path(out) / PARTS_FOLDER).glob("part-*.parquet"))
+    parts = _parts_in_order(out)
     template = _typed(pd.DataFrame(), sweep)
     if not parts:
         return template
@@ -395,7 +453,7 @@ def results_table(out, sweep: Sweep) -> pd.DataFrame:
     frame["case_index"] = frame["case_id"].map(index)
     # varied values come from the sweep itself (authoritative), results from the parts
     cases = pd.DataFrame([_case_row(sweep, sweep.cases[i]) for i in frame["case_index"]])
-    results = frame[["case_id", *headline_columns(sweep.base)]]
+    results = frame[["case_id", *headline_columns(sweep.base), *STATUS_COLUMNS]]
     table = cases.merge(results, on="case_id", how="left") if len(cases) else template
     return _typed(table.sort_values("case_index").reset_index(drop=True), sweep)
 
@@ -445,32 +503,112 @@ def _terminate(executor: ProcessPoolExecutor) -> None:
         process.terminate()
 
 
+def _new_pool(workers: int) -> ProcessPoolExecutor:
+    return ProcessPoolExecutor(
+        max_workers=workers, mp_context=_local_context(), initializer=_ignore_interrupt
+    )
+
+
+def _stop(executors, futures) -> None:
+    """Stop on Ctrl-C or an error: cancel what has not started, stop the workers."""
+    for future in futures:
+        future.cancel()
+    for executor in executors:
+        _terminate(executor)
+        executor.shutdown(wait=False, cancel_futures=True)
+
+
 def _run_local(sweep, batches, workers, on_done):
+    """Run ``batches`` on ``workers`` local processes; ``on_done(frame)`` for each.
+
+    A worker that dies breaks the whole pool, and which of the batches it was running
+    is not known: those batches (the suspects) are run again, each in a fresh worker of
+    its own, ``workers`` at a time, and the rest go on in a new pool. A suspect whose
+    own worker dies too is the cause: its cases are recorded failed (``WORKER_DIED``).
+    """
     if workers <= 1:
         for batch in batches:
             on_done(run_batch(sweep, batch))
         return
-    executor = ProcessPoolExecutor(
-        max_workers=workers, mp_context=_local_context(), initializer=_ignore_interrupt
-    )
-    pending = set()
+    waiting = deque(batches)
+    while waiting:
+        suspects = _run_pool(sweep, waiting, workers, on_done)
+        if suspects:
+            _run_alone(sweep, suspects, workers, on_done)
+
+
+def _run_pool(sweep, waiting: deque, workers: int, on_done) -> list:
+    """Run batches from ``waiting`` in one pool until it is empty or the pool breaks.
+
+    At most ``workers + 1`` batches are in the pool at once (what it runs, plus one
+    ready), so a broken pool names a few suspects, not the whole sweep. Returns the
+    batches that were in the pool when it broke (empty if it did not).
+    """
+    executor = _new_pool(workers)
+    running: dict = {}  # future -> batch
+    suspects: list = []
+    broken = False
     try:
-        pending = {executor.submit(run_batch, sweep, batch) for batch in batches}
-        while pending:
-            finished, pending = wait(pending, return_when=FIRST_COMPLETED)
+        while (waiting or running) and not broken:
+            while waiting and len(running) <= workers and not broken:
+                batch = waiting.popleft()
+                try:
+                    running[executor.submit(run_batch, sweep, batch)] = batch
+                except BrokenProcessPool:  # broke since the last wait: not this one's fault
+                    waiting.appendleft(batch)
+                    broken = True
+            if broken:
+                break
+            finished, _ = wait(running, return_when=FIRST_COMPLETED)
             for future in finished:
-                on_done(future.result())
+                batch = running.pop(future)
+                if isinstance(future.exception(), BrokenProcessPool):
+                    suspects.append(batch)
+                    broken = True
+                else:
+                    on_done(future.result())
+        if broken:  # every batch still in the pool ends soon
+            wait(running)
+            for future, batch in running.items():
+                if future.exception() is None:
+                    on_done(future.result())
+                elif isinstance(future.exception(), BrokenProcessPool):
+                    suspects.append(batch)
+                else:
+                    future.result()  # an unexpected error: raise it
+            running.clear()
     except BaseException:
-        for future in pending:
-            future.cancel()
         # keep what finished while we were stopping, then stop the workers
-        for future in list(pending):
+        for future in list(running):
             if future.done() and not future.cancelled() and future.exception() is None:
                 on_done(future.result())
-        _terminate(executor)
-        executor.shutdown(wait=False, cancel_futures=True)
+        _stop([executor], running)
         raise
     executor.shutdown(wait=True)
+    return suspects
+
+
+def _run_alone(sweep, suspects: list, workers: int, on_done) -> None:
+    """Run each suspect batch in a fresh one-worker pool, ``workers`` pools at a time."""
+    queue = deque(suspects)
+    alone: dict = {}  # future -> (executor, batch)
+    try:
+        while queue or alone:
+            while queue and len(alone) < workers:
+                executor, batch = _new_pool(1), queue.popleft()
+                alone[executor.submit(run_batch, sweep, batch)] = (executor, batch)
+            finished, _ = wait(alone, return_when=FIRST_COMPLETED)
+            for future in finished:
+                executor, batch = alone.pop(future)
+                if isinstance(future.exception(), BrokenProcessPool):
+                    frame = failed_rows(sweep, batch, *WORKER_DIED)
+                else:
+                    frame = future.result()
+                executor.shutdown(wait=False)
+                on_done(frame)
+    except BaseException:
+        _stop([executor for executor, _ in alone.values()], alone)
+        raise
 
 
 def _dask():
@@ -504,13 +642,38 @@ def _cluster_workers(client) -> int:
 
 
 def _run_dask(sweep, batches, client, on_done):
+    """Run ``batches`` on a Dask cluster; ``on_done(frame)`` for each, as they finish.
+
+    A task whose worker died (Dask itself first reruns it elsewhere, up to the
+    scheduler's ``allowed-failures``, then reports ``KilledWorker``) is submitted once
+    more; if that ends the same way its cases are recorded failed (``WORKER_DIED``).
+    """
     distributed = _dask()
-    futures = []
+    futures: dict = {}  # future -> (batch, tries)
+    scattered = []  # every copy of the sweep sent, held so that none is released early
     try:
         [shared] = client.scatter([sweep], broadcast=True, hash=False)
-        futures = [client.submit(run_batch, shared, batch, pure=False) for batch in batches]
-        for future in distributed.as_completed(futures):
-            on_done(future.result())
+        scattered.append(shared)
+        for batch in batches:
+            futures[client.submit(run_batch, shared, batch, pure=False)] = (batch, 1)
+        pending = set(futures)
+        while pending:
+            finished, pending = distributed.wait(pending, return_when="FIRST_COMPLETED")
+            for future in finished:
+                batch, tries = futures.pop(future)
+                # (a result lost with a dead worker is recomputed: exception() waits for it)
+                error = future.exception()
+                if error is None:
+                    on_done(future.result())
+                elif not isinstance(error, distributed.KilledWorker):
+                    future.result()  # an unexpected error: raise it
+                elif tries > 1:
+                    on_done(failed_rows(sweep, batch, *WORKER_DIED))
+                else:  # once more, with the sweep scattered afresh (a dead worker held a copy)
+                    scattered += client.scatter([sweep], broadcast=True, hash=False)
+                    again = client.submit(run_batch, scattered[-1], batch, pure=False)
+                    futures[again] = (batch, tries + 1)
+                    pending.add(again)
     except BaseException:
         for future in futures:
             if future.status == "finished":
@@ -518,7 +681,7 @@ def _run_dask(sweep, batches, client, on_done):
                     on_done(future.result(timeout=5))
                 except Exception:  # keep stopping; the first error wins
                     pass
-        client.cancel(futures)
+        client.cancel(list(futures))
         raise
 
 
@@ -536,7 +699,10 @@ class SweepRun:
     out : pathlib.Path
         The results folder.
     computed, skipped, total : int
-        Cases run now, cases found already done, cases in the sweep.
+        Cases run now, cases found already done (failed ones included unless retried),
+        cases in the sweep.
+    failed : int
+        Cases of the table with status ``failed`` (now or in an earlier run).
     batches : int
         Batches run now.
     seconds : float
@@ -550,6 +716,7 @@ class SweepRun:
     computed: int
     skipped: int
     total: int
+    failed: int
     batches: int
     seconds: float
     files: tuple[Path, ...]
@@ -577,6 +744,7 @@ def run_sweep(
     client=None,
     batch_size: int | None = None,
     restart: bool = False,
+    retry_failed: bool = False,
     progress: Callable[[int, int], None] | None = None,
 ) -> SweepRun:
     """Run every case of ``sweep`` not yet in ``out`` and write the tidy table.
@@ -598,6 +766,9 @@ def run_sweep(
         Cases per task (see :func:`plan_batches`), 1 to 10,000.
     restart : bool
         Discard the parts already in ``out`` and run everything.
+    retry_failed : bool
+        Run again the cases an earlier run recorded failed (by default a rerun leaves
+        them as they are and runs only the cases not yet run).
     progress : callable, optional
         Called as ``progress(done, total)`` at the start and after every batch.
 
@@ -609,8 +780,10 @@ def run_sweep(
     ------
     SweepInterruptedError
         On Ctrl-C, after the finished batches are written.
-    SweepCaseError
-        If a case cannot run; the batches finished before are kept.
+
+    A case the model refuses, or whose worker died twice, does not raise: it is a row
+    with status ``failed`` (see :func:`results_table`), counted in ``SweepRun.failed``
+    and in the manifest's ``cases_failed``.
     """
     if batch_size is not None:
         batch_size = int(batch_size)
@@ -630,22 +803,26 @@ def run_sweep(
         client = _open_client(scheduler)  # a clear message before anything is written
     try:
         folder = _Folder(Path(out), sweep, restart)
-        done_ids = folder.done_ids()
-        todo = [case for case in sweep.cases if case.case_id not in done_ids]
+        status = folder.statuses()  # case_id -> ok / failed, of the cases already run
+        kept = {CASE_OK} if retry_failed else {CASE_OK, CASE_FAILED}
+        todo = [case for case in sweep.cases if status.get(case.case_id) not in kept]
         skipped = sweep.size - len(todo)
+        left_failed = [c for c in sweep.cases if status.get(c.case_id) == CASE_FAILED]
+        failed = 0 if retry_failed else len(left_failed)
         count = _cluster_workers(client) if client is not None else (workers or local_workers())
         count = max(1, min(count, len(todo)))
         batches = plan_batches(todo, count, batch_size)
         done = skipped
-        folder.write_manifest(done, "running")
+        folder.write_manifest(done, "running", failed)
         if progress is not None:
             progress(done, sweep.size)
 
         def on_done(frame: pd.DataFrame) -> None:
-            nonlocal done
+            nonlocal done, failed
             folder.write_part(frame)
             done += len(frame)
-            folder.write_manifest(done, "running")
+            failed += int((frame["status"] == CASE_FAILED).sum())
+            folder.write_manifest(done, "running", failed)
             if progress is not None:
                 progress(done, sweep.size)
 
@@ -655,10 +832,10 @@ def run_sweep(
             else:
                 _run_local(sweep, batches, count, on_done)
         except KeyboardInterrupt:
-            folder.write_manifest(done, "interrupted")
+            folder.write_manifest(done, "interrupted", failed)
             raise SweepInterruptedError(done, sweep.size, folder.out) from None
         except BaseException:
-            folder.write_manifest(done, "failed")
+            folder.write_manifest(done, "failed", failed)
             raise
     finally:
         if own_client:
@@ -668,13 +845,15 @@ def run_sweep(
     csv = folder.out / f"{RESULTS_NAME}.csv"
     table.to_parquet(parquet, index=False)
     table.to_csv(csv, index=False, float_format="%.10g")
-    folder.write_manifest(done, "complete")
+    failed = int((table["status"] == CASE_FAILED).sum())
+    folder.write_manifest(done, "complete", failed)
     return SweepRun(
         table=table,
         out=folder.out,
         computed=len(todo),
         skipped=skipped,
         total=sweep.size,
+        failed=failed,
         batches=len(batches),
         seconds=time.perf_counter() - started,
         files=(parquet, csv),
