@@ -10,6 +10,7 @@ has two shared cores.
 from __future__ import annotations
 
 import os
+import re
 import shutil
 import signal
 import socket
@@ -86,6 +87,18 @@ class VoilaServer:
             except (psutil.NoSuchProcess, psutil.AccessDenied):
                 continue
         return kernels
+
+    def kernel_ids(self) -> set[str]:
+        """Ids of the kernels whose processes are alive (from each kernel's connection file)."""
+        ids = set()
+        for kernel in self.kernel_processes():
+            try:
+                found = re.search(r"kernel-([0-9a-f-]+)\.json", " ".join(kernel.cmdline()))
+            except (psutil.NoSuchProcess, psutil.AccessDenied):
+                continue
+            if found:
+                ids.add(found.group(1))
+        return ids
 
     def log_text(self) -> str:
         try:

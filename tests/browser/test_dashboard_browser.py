@@ -306,3 +306,50 @@ def test_four_sessions_at_once_keep_their_own_results(dashboard_server, new_page
         + ", ".join(f"{s:.0f}" for s in sizes)
     )
     assert len(kernels) >= 4
+
+
+def page_kernel_id(page) -> str:
+    """The id of the kernel a Voila page runs on (Voila writes it into the page's config)."""
+    return page.evaluate(
+        "() => JSON.parse(document.getElementById('jupyter-config-data').textContent).kernelId"
+    )
+
+
+def wait_until_kernel_gone(server, kernel_id: str, timeout_s: float = 20.0) -> float:
+    """Seconds until the kernel's process has exited; fails after ``timeout_s``."""
+    start = time.monotonic()
+    while time.monotonic() - start < timeout_s:
+        if kernel_id not in server.kernel_ids():
+            return time.monotonic() - start
+        time.sleep(0.25)
+    raise AssertionError(
+        f"kernel {kernel_id} still running {timeout_s:.0f} s after its page went away "
+        f"(the page's shutdown request was refused or never sent).\n{server.log_text()[-3000:]}"
+    )
+
+
+def test_nothing_leaves_this_computer_and_a_closed_page_frees_its_kernel(
+    dashboard_server, new_page
+):
+    """Every request of the page goes to the server on 127.0.0.1 (no CDN: the page must
+    work offline), and reloading or closing a page shuts its kernel down at once instead
+    of after the idle cull (the served default is 15 minutes; this server's, 20)."""
+    from urllib.parse import urlsplit
+
+    page = new_page(1280, 800)
+    hosts = []
+    page.on("request", lambda request: hosts.append(urlsplit(request.url).hostname))
+    open_dashboard(page, dashboard_server, "plant.ipynb")
+    first = page_kernel_id(page)
+    assert first in dashboard_server.kernel_ids()
+    page.reload(wait_until="commit")
+    page.wait_for_selector(".plantside-chart-sweep canvas", timeout=WIDGET_TIMEOUT_MS)
+    seconds = wait_until_kernel_gone(dashboard_server, first)
+    print(f"\nreload: the old page's kernel gone after {seconds:.1f} s")
+    second = page_kernel_id(page)
+    assert second != first and second in dashboard_server.kernel_ids()
+    page.close(run_before_unload=True)  # what a browser does when a tab is closed
+    seconds = wait_until_kernel_gone(dashboard_server, second)
+    print(f"close: the page's kernel gone after {seconds:.1f} s")
+    outside = sorted({host for host in hosts if host not in ("127.0.0.1", None)})
+    assert hosts and not outside, f"the page asked other hosts: {outside}"

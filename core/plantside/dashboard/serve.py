@@ -9,9 +9,12 @@ the notebooks it serves (it refuses code sent from the page), but anyone who
 can reach the port and knows the token can use the dashboard and its kernels.
 Use it on a trusted network or behind an authenticating proxy.
 
-Kernels are pre-started (a page opens with its results already computed) and
-idle kernels of closed pages are shut down after a while, so a day of
-meetings does not leave one Python process behind per page view.
+Kernels are pre-started (a page opens with its results already computed). The
+page is Voila's "lab" page through plantside's own template (``jupyter_data/``):
+it fetches nothing from a network, and closing or reloading a page shuts its
+kernel down at once; kernels idle for long (a browser that crashed) are culled
+as a second line, so a day of meetings does not leave one Python process
+behind per page view.
 """
 
 from __future__ import annotations
@@ -28,15 +31,21 @@ __all__ = [
     "DEFAULT_PORT",
     "SCENARIO_ENVIRONMENT_VARIABLE",
     "SECURITY_NOTE",
+    "TEMPLATE",
     "dashboards_folder",
     "lan_address",
     "main",
+    "template_root",
     "voila_command",
+    "voila_environment",
 ]
 
 DEFAULT_PORT = 8866
 #: Environment variable through which the served notebooks learn the scenario file to open.
 SCENARIO_ENVIRONMENT_VARIABLE = "PLANTSIDE_SCENARIO"
+
+#: plantside's Voila template (``jupyter_data/voila/templates/plantside``, based on "lab").
+TEMPLATE = "plantside"
 
 SECURITY_NOTE = (
     "Security note: Voila runs only the code of the notebooks it serves, but anyone who can "
@@ -71,6 +80,25 @@ def dashboards_folder() -> Path:
     raise FileNotFoundError(
         f"no dashboards/ folder with notebooks found above {here.parent}; pass --dashboards PATH"
     )
+
+
+def template_root() -> Path:
+    """The Jupyter data folder holding plantside's Voila template (package data)."""
+    return Path(__file__).resolve().parent / "jupyter_data"
+
+
+def voila_environment(environment: dict[str, str] | None = None) -> dict[str, str]:
+    """``environment`` (default: this process's) with plantside's template on ``JUPYTER_PATH``.
+
+    Voila finds templates under ``<jupyter path>/voila/templates/<name>``; the folder is put
+    first, so the template is found whatever else the path holds.
+    """
+    result = dict(os.environ if environment is None else environment)
+    parts = [str(template_root())]
+    if result.get("JUPYTER_PATH"):
+        parts.append(result["JUPYTER_PATH"])
+    result["JUPYTER_PATH"] = os.pathsep.join(parts)
+    return result
 
 
 def voila_command(
@@ -119,6 +147,7 @@ def voila_command(
         f"--Voila.ip={'0.0.0.0' if lan else '127.0.0.1'}",
         f"--Voila.open_browser={open_browser}",
         "--show_tracebacks=False",
+        f"--template={TEMPLATE}",
         f"--MappingKernelManager.cull_idle_timeout={int(cull_idle_timeout)}",
         f"--MappingKernelManager.cull_interval={int(cull_interval)}",
         "--MappingKernelManager.cull_connected=False",
@@ -193,7 +222,7 @@ def main(argv: list[str] | None = None) -> int:
     except ValueError as error:
         print(f"error: {error}", file=sys.stderr)
         return 2
-    environment = dict(os.environ)
+    environment = voila_environment()
     if args.scenario is not None:
         scenario = args.scenario.resolve()
         if not scenario.is_file():
