@@ -34,6 +34,7 @@ from plantside.errors import InputRangeError, check_range
 __all__ = [
     "BOILER_TYPES",
     "CONDENSING_RETURN_CURVE",
+    "RATED_RETURN_C",
     "BoilerHours",
     "boiler_cautions",
     "boiler_efficiency",
@@ -49,6 +50,8 @@ CONDENSING_RETURN_CURVE = (
     (20.0, 30.0, 40.0, 50.0, 55.0, 60.0, 70.0, 80.0),
     (0.970, 0.955, 0.935, 0.905, 0.885, 0.870, 0.865, 0.860),
 )
+#: Default return water of the efficiency rating [°C]: 80 °F (common practice, no source).
+RATED_RETURN_C = (80.0 - 32.0) / 1.8
 #: Low-fire gain of a condensing boiler at zero firing rate [-] (common practice, no source).
 CONDENSING_LOW_FIRE_GAIN = 0.02
 #: Lowest return water of a non-condensing boiler without flue-gas condensation [°C]
@@ -92,7 +95,7 @@ def boiler_efficiency(
     firing_rate,
     boiler_type: str = "condensing",
     rated_efficiency: float = 0.95,
-    rated_return_temperature: float = 26.7,
+    rated_return_temperature: float = RATED_RETURN_C,
     jacket_loss: float = 0.01,
 ):
     """Overall boiler efficiency (heat out over fuel in, higher heating value) [-].
@@ -107,7 +110,7 @@ def boiler_efficiency(
     rated_efficiency : float
         Efficiency at full fire and the rated return temperature [-], 0.5 to 0.99.
     rated_return_temperature : float
-        Return temperature of the rating [°C] (default 26.7 °C, 80 °F).
+        Return temperature of the rating [°C] (default 80 °F, 26.7 °C).
     jacket_loss : float
         Casing loss as a share of rated input [-], 0 to 0.05.
 
@@ -160,7 +163,7 @@ def boiler_hours(
     return_temperature,
     boiler_type: str = "condensing",
     rated_efficiency: float = 0.95,
-    rated_return_temperature: float = 26.7,
+    rated_return_temperature: float = RATED_RETURN_C,
     jacket_loss: float = 0.01,
 ) -> BoilerHours:
     """Hourly fuel input of firing boilers sharing a load.

@@ -22,7 +22,12 @@ import numpy as np
 import pandas as pd
 
 from plantside.errors import check_range
-from plantside.plant.boilers import boiler_cautions, boiler_efficiency, boiler_hours
+from plantside.plant.boilers import (
+    RATED_RETURN_C,
+    boiler_cautions,
+    boiler_efficiency,
+    boiler_hours,
+)
 from plantside.plant.efficient_staging import EfficientStaging, stage_on_efficiency
 from plantside.plant.loads import hourly_loads
 from plantside.plant.pumps import PumpSettings, pump_power, pump_power_fraction_from_flow_fraction
@@ -68,7 +73,7 @@ class HotWaterSettings:
     delta_t_ratio_points: tuple[float, ...] = (1.0, 1.0)
     boiler_type: str = "condensing"
     rated_efficiency: float = 0.95
-    rated_return_temperature: float = 26.7
+    rated_return_temperature: float = RATED_RETURN_C
     jacket_loss: float = 0.01
 
     def __post_init__(self):
