@@ -115,6 +115,9 @@ def _design_text(result) -> str:
             f"{_fmt(quantity, plant.annual_peak, system)}"
         )
     lines.append("")
+    from plantside.cli.water_side_text import study_water_side_lines
+
+    lines += study_water_side_lines(result)
     lines += [f"! {c}" for c in result.cautions]
     return "\n".join(lines)
 

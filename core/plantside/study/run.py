@@ -51,6 +51,7 @@ from plantside.study.figures import (
 )
 from plantside.study.high_limit_cautions import economizer_limit_cautions
 from plantside.study.scenario import PlantOptionSpec, Scenario
+from plantside.study.water_side_run import run_water_side, water_side_summary
 
 __all__ = [
     "AirHandlerResult",
@@ -476,5 +477,6 @@ def study_summary(result: StudyResult) -> dict:
             "first_option_machines_kW": list(plant_figures.machine_capacities),
         },
         "heating_plant": plant(result.heating),
+        "water_side": water_side_summary(run_water_side(result)),
         "cautions": list(result.cautions),
     }

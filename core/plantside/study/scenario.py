@@ -35,6 +35,8 @@ The layout (field by field in the README)::
     minimum_turndown = 0.15
     efficiency_metric = "kw_per_ton"
     efficiency = [0.60, 0.52, 0.45, 0.50]   # at 100/75/50/25 % load
+    [plant.chilled_water]         # optional water side: [plant.chilled_water], [plant.condenser],
+    supply_temperature = 44       # [plant.hot_water] (plantside.study.water_side)
 
     [[air_handler]]               # one table per air handler
     name = "AHU-1"
@@ -69,6 +71,11 @@ from plantside.errors import InputFileError, InputRangeError, ScenarioError
 from plantside.plant.staging import DEFAULT_MINIMUM_TURNDOWN
 from plantside.study.solar_gains import zone_with_solar_gain
 from plantside.study.toml_input import MAX_SCENARIO_BYTES, parse_toml_text, read_toml_text
+from plantside.study.water_side import (
+    WaterSideSpec,
+    water_side_from_plant_table,
+    water_side_to_tables,
+)
 from plantside.units import UnitSystem, from_display, to_display, unit_label
 
 __all__ = [
@@ -140,6 +147,9 @@ _PLANT_KEYS = (
     "heating_margin_percent",
     "cooling_option",
     "heating_option",
+    "chilled_water",
+    "condenser",
+    "hot_water",
 )
 _OPTION_KEYS = ("name", "capacity_fractions", "minimum_turndown", "efficiency_metric", "efficiency")
 _EFFICIENCY_METRICS = ("cop", "eer", "kw_per_ton")
@@ -206,6 +216,7 @@ class Scenario:
     latitude: float | None = None
     longitude: float | None = None
     time_zone: float | None = None
+    water_side: WaterSideSpec | None = None
     source: str = field(default="<scenario>", compare=False)
     files: str = field(default="any", compare=False)
     base_dir: Path = field(default_factory=Path.cwd, compare=False)
@@ -575,6 +586,8 @@ def scenario_from_dict(
             _option(source, f"plant.{key}[{i + 1}]", table, kind) for i, table in enumerate(tables)
         )
 
+    water_side = water_side_from_plant_table(plant, source, system)
+
     units = data["air_handler"]
     if not isinstance(units, list) or not units:
         raise ScenarioError(source, "air_handler", "expected one or more [[air_handler]] tables")
@@ -626,6 +639,7 @@ def scenario_from_dict(
         heating_margin_percent=heating_margin,
         cooling_options=options["cooling"],
         heating_options=options["heating"],
+        water_side=water_side,
         climate_zone=climate_zone,
         **place,
         source=source,
@@ -726,6 +740,7 @@ def scenario_to_dict(scenario: Scenario) -> dict:
         plant["cooling_option"] = [_option_table(o) for o in scenario.cooling_options]
     if scenario.heating_options:
         plant["heating_option"] = [_option_table(o) for o in scenario.heating_options]
+    plant.update(water_side_to_tables(scenario.water_side, system))
     units = []
     default_settings = AirHandlerSettings()
     for spec in scenario.air_handlers:
