@@ -137,6 +137,27 @@ def test_dashboard_weather_upload_above_its_limit_is_refused_with_the_size():
     assert state.result is before
 
 
+
+@pytest.mark.parametrize(
+    "text",
+    [
+        "title = " + "[" * 10_000 + "]" * 10_000 + "\n",  # 10,000-deep inline arrays
+        "x = 1\n" + "a." * 5_000 + "b = 1\n",  # a dotted key 5,000 parts deep
+    ],
+    ids=["nested arrays", "dotted key"],
+)
+def test_dashboard_scenario_upload_nested_too_deep_gets_a_message(text):
+    # Found by an attack on the served page: a deeply nested upload raised an uncaught
+    # RecursionError inside the TOML parser (no message; the upload button stopped).
+    from plantside.dashboard.app import Dashboard
+
+    dashboard = Dashboard(load_scenario(SCENARIOS / "linden_office_si.toml"))
+    before = dashboard.state.result
+    assert dashboard.load_scenario_file("deep.toml", text.encode("utf-8")) is False
+    message = dashboard.state.messages["scenario"]
+    assert "nested more than" in message and "deep.toml" in message, message
+    assert dashboard.state.result is before
+
 # ---------------------------------------------------------------------------------------
 # zone-load CSV: size and rows
 # ---------------------------------------------------------------------------------------

@@ -574,20 +574,13 @@ class Dashboard:
 
     def load_scenario_file(self, name: str, data: bytes) -> bool:
         """Open an uploaded scenario TOML (bundled climates only: no file paths from a page)."""
-        import tomllib
+        from plantside.study.toml_input import parse_toml_text, read_toml_text
 
         label = safe_filename(name)
         try:
-            if len(data) > 1_000_000:
-                raise ScenarioError(label, "(file)", "larger than the 1000 kB allowed")
-            try:
-                text = bytes(data).decode("utf-8-sig")
-            except UnicodeDecodeError as error:
-                raise ScenarioError(label, "(file)", f"not UTF-8 text ({error.reason})") from None
-            try:
-                parsed = tomllib.loads(text)
-            except tomllib.TOMLDecodeError as error:
-                raise ScenarioError(label, "(syntax)", f"not valid TOML: {error}") from None
+            # the same guard as the command line: size, UTF-8, nesting depth before parsing
+            text = read_toml_text(bytes(data), label)
+            parsed = parse_toml_text(text, label)
             site = parsed.get("site", {}) if isinstance(parsed.get("site"), dict) else {}
             if "weather_file" in site:
                 raise ScenarioError(
