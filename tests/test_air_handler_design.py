@@ -99,7 +99,11 @@ def test_governing_cooling_condition(office_zone, vav_unit):
     table = summary.table
     assert table.loc[summary.governing, "coil_total_kW"] == table["coil_total_kW"].max()
     # A mostly recirculating unit with a large sensible zone load: the dry-bulb condition.
-    recirculating = replace(vav_unit, supply_airflow=12.0, minimum_outdoor_air_fraction=0.05)
+    # (at the airflow the load asks for: at the scheduled 12 m³/s the coil load is mostly
+    # airflow x mixed-air enthalpy, and the enthalpy condition governs)
+    recirculating = replace(
+        vav_unit, supply_airflow=12.0, minimum_outdoor_air_fraction=0.05, design_airflow="load"
+    )
     big = replace(office_zone, cooling_design_sensible=120.0, cooling_design_latent=2.0)
     assert cooling_design_points(recirculating, big, HUMID_CONDITIONS).governing == "cooling"
     # with too little design airflow the zone runs warm: said plainly

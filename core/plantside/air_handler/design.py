@@ -15,7 +15,7 @@ internal gains), the usual conservative convention.
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 
 import numpy as np
 import pandas as pd
@@ -79,6 +79,13 @@ class DesignPoint:
         Mode name (see :data:`plantside.air.economizer.ECONOMIZER_MODES`).
     cautions : tuple of str
         Plain-language cautions for the engineer.
+    airflow_used : str
+        Which airflow the point uses: ``"scheduled"`` (the unit's ``supply_airflow``,
+        coil leaving at the supply set point; the surplus over the zone load shows as
+        ``reheat_kW``) or ``"load"`` (the airflow the zone load asks for).
+    load_airflow : float
+        The airflow the zone load asks for at this condition [m³/s on the unit's
+        ``airflow_basis``] (the scheduled airflow for a constant-volume unit).
     """
 
     label: str
@@ -88,6 +95,8 @@ class DesignPoint:
     row: pd.Series
     economizer_mode: str
     cautions: tuple = ()
+    airflow_used: str = "load"
+    load_airflow: float = float("nan")
 
 
 @dataclass(frozen=True, eq=False)
@@ -200,7 +209,9 @@ def _cautions(settings: AirHandlerSettings, row: pd.Series) -> list[str]:
     return cautions
 
 
-def design_point(settings: AirHandlerSettings, zone_loads, outdoor, *, occupied=True):
+def design_point(
+    settings: AirHandlerSettings, zone_loads, outdoor, *, occupied=True, airflow="load"
+):
     """The air handler at one design outdoor condition, with full breakdown.
 
     Parameters
@@ -215,6 +226,12 @@ def design_point(settings: AirHandlerSettings, zone_loads, outdoor, *, occupied=
         (optional ``kind`` and ``label``), or a (drybulb, humidity_ratio, pressure) tuple.
     occupied : bool
         Evaluate a zone model's occupied line (default) or unoccupied line.
+    airflow : str
+        ``"load"`` (the airflow the zone load asks for, as the hourly year runs) or
+        ``"scheduled"`` (the unit's ``supply_airflow`` with the coil leaving at the
+        supply set point: the coil schedule's selection point; the surplus over the
+        zone load is reported as terminal ``reheat_kW`` so the energy balance closes).
+        The load-derived airflow is reported either way (``load_airflow``).
 
     Returns
     -------
@@ -229,6 +246,14 @@ def design_point(settings: AirHandlerSettings, zone_loads, outdoor, *, occupied=
     t, w, p, kind, label = _outdoor(outdoor)
     loads = _design_loads(zone_loads, t, occupied)
     result = air_handler_hours(settings, [t], [w], [p], loads, force_operating=True)
+    load_airflow = float(result["supply_airflow_m3s"].reshape(-1)[0])
+    if airflow == "scheduled":
+        scheduled = replace(settings, fan_control="constant_volume", low_load_response="reheat")
+        result = air_handler_hours(scheduled, [t], [w], [p], loads, force_operating=True)
+    elif airflow != "load":
+        raise InputRangeError(
+            "airflow", f"airflow = {airflow!r}; allowed: 'load', 'scheduled'", "load, scheduled"
+        )
     values = {key: result[key].reshape(-1)[0] for key in HOURLY_COLUMNS}
     values["economizer_mode"] = ECONOMIZER_MODES[int(values["economizer_mode"])]
     row = pd.Series(values, name=kind)
@@ -252,6 +277,8 @@ def design_point(settings: AirHandlerSettings, zone_loads, outdoor, *, occupied=
         row=row,
         economizer_mode=values["economizer_mode"],
         cautions=tuple(_cautions(settings, row)),
+        airflow_used=airflow,
+        load_airflow=load_airflow,
     )
 
 
@@ -295,7 +322,10 @@ def cooling_design_points(settings, zone_loads, conditions, percent=0.4):
             f"no {', '.join(missing)} design condition at {percent:g} % among the conditions given",
             "cooling, dehumidification and enthalpy conditions",
         )
-    points = {kind: design_point(settings, zone_loads, picked[kind]) for kind in picked}
+    points = {
+        kind: design_point(settings, zone_loads, picked[kind], airflow=settings.design_airflow)
+        for kind in picked
+    }
     columns = [
         "outdoor_drybulb_C",
         "outdoor_humidity_ratio_kgkg",
@@ -319,6 +349,8 @@ def cooling_design_points(settings, zone_loads, conditions, percent=0.4):
         {kind: point.row[columns] for kind, point in points.items()}
     ).T.rename_axis("kind")
     table.insert(0, "label", [points[k].label for k in table.index])
+    table["load_airflow_m3s"] = [points[k].load_airflow for k in table.index]
+    table["airflow_used"] = [points[k].airflow_used for k in table.index]
     for column in columns:
         if column != "economizer_mode":
             table[column] = table[column].astype(float)

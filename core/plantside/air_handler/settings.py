@@ -42,11 +42,13 @@ from plantside.errors import InputRangeError, check_range
 __all__ = [
     "AIRFLOW_BASES",
     "COIL_MODELS",
+    "DESIGN_AIRFLOWS",
     "FAN_CONTROLS",
     "FAN_POSITIONS",
     "FAN_SCHEDULES",
     "LOW_LOAD_RESPONSES",
     "REHEAT_SOURCES",
+    "UNOCCUPIED_HEATING",
     "AirHandlerSettings",
     "fan_power_fraction",
 ]
@@ -58,6 +60,11 @@ COIL_MODELS = ("bypass_factor", "apparatus_dew_point", "leaving_dew_point")
 FAN_SCHEDULES = ("always", "occupied")
 LOW_LOAD_RESPONSES = ("raise_supply_temperature", "reheat")
 REHEAT_SOURCES = ("hot_water", "condenser_heat")
+#: Airflow of the cooling design points: the unit's scheduled ``supply_airflow`` (the
+#: coil's selection point) or the airflow the zone load asks for.
+DESIGN_AIRFLOWS = ("scheduled", "load")
+#: Who serves the zone's heat while the fan is off (``fan_schedule="occupied"``).
+UNOCCUPIED_HEATING = ("terminal", "night_cycle")
 
 # ASHRAE 90.1-2019 Appendix G Table G3.1.3.15, VAV fan with variable-speed drive
 # (coefficients from memory).
@@ -96,6 +103,7 @@ def _choice(field, value, allowed):
 
 _TEXT_FIELDS = ("name", "airflow_basis", "fan_control", "fan_position", "economizer",
                 "coil_model", "fan_schedule", "low_load_response", "reheat_source")  # fmt: skip
+_TEXT_FIELDS += ("design_airflow", "unoccupied_heating")
 _FLAG_FIELDS = ("all_outdoor_air", "economizer_integrated")
 
 
@@ -227,6 +235,20 @@ class AirHandlerSettings:
         When the zone needs less cooling than the supply set point gives at the
         lowest airflow: ``"raise_supply_temperature"`` (the coil leaves warmer air) or
         ``"reheat"`` (supply held at the set point, terminal reheat makes up the rest).
+    design_airflow : str
+        Airflow of the cooling design points: ``"scheduled"`` (default; the unit's
+        ``supply_airflow`` with the coil leaving at the supply set point, the coil
+        schedule's selection point) or ``"load"`` (the airflow the design zone load
+        asks for, variable volume only being lower). The other airflow is reported
+        beside it (:class:`plantside.air_handler.design.DesignPoint`).
+    unoccupied_heating : str
+        Who serves the zone's heat in hours the fan is off (``fan_schedule="occupied"``):
+        ``"terminal"`` (perimeter or terminal heating on the hot-water plant, the
+        default) or ``"night_cycle"`` (the fan cycles on, outdoor damper closed, to hold
+        ``night_setback_drybulb``; not for a 100 % outdoor-air unit).
+    night_setback_drybulb : float or None
+        Zone heating set point while unoccupied [°C], 5 to ``zone_heating_drybulb``;
+        None for no set-back (the heating set point all day).
     """
 
     name: str = "AHU-1"
@@ -266,6 +288,9 @@ class AirHandlerSettings:
     low_load_response: str = "raise_supply_temperature"
     reheat_source: str = "hot_water"
     coil_runaround_effectiveness: float = 0.0
+    design_airflow: str = "scheduled"
+    unoccupied_heating: str = "terminal"
+    night_setback_drybulb: float | None = None
 
     def __post_init__(self):
         _check_types(self)
@@ -390,6 +415,7 @@ class AirHandlerSettings:
             0.9,
             "(fraction)",
         )
+        self._check_unoccupied_and_design_airflow()
         _optional(
             "ventilation_airflow_required",
             self.ventilation_airflow_required,
@@ -398,6 +424,25 @@ class AirHandlerSettings:
             "m³/s",
         )
         self._check_ventilation_floor()
+
+    def _check_unoccupied_and_design_airflow(self):
+        _choice("design_airflow", self.design_airflow, DESIGN_AIRFLOWS)
+        _choice("unoccupied_heating", self.unoccupied_heating, UNOCCUPIED_HEATING)
+        _optional(
+            "night_setback_drybulb",
+            self.night_setback_drybulb,
+            5.0,
+            self.zone_heating_drybulb,
+            "°C",
+        )
+        if self.unoccupied_heating == "night_cycle" and self.all_outdoor_air:
+            raise InputRangeError(
+                "unoccupied_heating",
+                "unoccupied_heating = 'night_cycle' recirculates with the outdoor damper closed, "
+                "which a 100 % outdoor-air unit (all_outdoor_air = true) cannot; allowed: "
+                "'terminal' for this unit",
+                "'terminal'",
+            )
 
     def _check_ventilation_floor(self):
         """Refuse minimum outdoor air below the ventilation need at the lowest airflow."""

@@ -37,6 +37,7 @@ from plantside.air_handler.design import (
 )
 from plantside.air_handler.model import HOURLY_COLUMNS, air_handler_hours
 from plantside.air_handler.settings import AirHandlerSettings, fan_power_fraction
+from plantside.air_handler.unoccupied import UNOCCUPIED_COLUMNS, serve_unoccupied_heating
 from plantside.air_handler.zone_loads import HourlyZoneLoads, ZoneLoadModel, zone_loads_for_weather
 from plantside.errors import InputRangeError, check_range
 
@@ -158,8 +159,10 @@ def hourly_year(settings: AirHandlerSettings, weather, zone_loads) -> pd.DataFra
     Returns
     -------
     pandas.DataFrame
-        Index ``hour`` (hour of year); columns ``month`` and :data:`HOURLY_COLUMNS`
-        (``economizer_mode`` categorical with :data:`ECONOMIZER_MODES`). ``attrs``:
+        Index ``hour`` (hour of year); columns ``month``, :data:`HOURLY_COLUMNS`
+        (``economizer_mode`` categorical with :data:`ECONOMIZER_MODES`) and the heat of
+        the hours the fan is off, :data:`plantside.air_handler.unoccupied.
+        UNOCCUPIED_COLUMNS` (terminal heating or night cycling). ``attrs``:
         ``air_handler``, ``site``, ``airflow_basis``, ``cautions`` (list of str),
         ``humidity_iteration_change`` [kg/kg].
     """
@@ -167,13 +170,17 @@ def hourly_year(settings: AirHandlerSettings, weather, zone_loads) -> pd.DataFra
     result = air_handler_hours(
         settings, weather.drybulb, weather.humidity_ratio, weather.pressure, loads
     )
+    result = serve_unoccupied_heating(
+        settings, weather.drybulb, weather.humidity_ratio, weather.pressure, loads, result
+    )
     return _frame(settings, weather, result)
 
 
 def _frame(settings, weather, result) -> pd.DataFrame:
     data = {"month": np.asarray(weather.month)}
-    for key in HOURLY_COLUMNS:
-        data[key] = result[key]
+    for key in (*HOURLY_COLUMNS, *UNOCCUPIED_COLUMNS):
+        if key in result:
+            data[key] = result[key]
     data["economizer_mode"] = pd.Categorical.from_codes(
         np.asarray(result["economizer_mode"], dtype=np.int8), categories=list(ECONOMIZER_MODES)
     )

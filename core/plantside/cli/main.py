@@ -4,7 +4,8 @@ Commands (``plantside COMMAND --help`` for each)::
 
     plantside design  SCENARIO [--json]            design points and plant size, as a table
     plantside year    SCENARIO --out DIR [--format csv|parquet]
-                                                    hourly results + summary JSON
+                                                    hourly results, coil schedule CSV,
+                                                    summary JSON
     plantside charts  SCENARIO --out DIR            every chart as PNG and SVG
     plantside climates                              the bundled fictional climates
     plantside sweep   SWEEP --out DIR [--workers N | --scheduler ADDR]
@@ -100,6 +101,7 @@ def _design_text(result) -> str:
             f"{unit.name:<{width}}{'heating':<18}{'':>14}{_fmt('heating_power', heat, system):>14}"
         )
     lines += ["(* governs the coil)", ""]
+    lines += _coil_schedule_text(result)
     cooling_kind = str(result.cooling.design_table["plant_kW"].idxmax())
     governing = {
         "cooling": result.conditions.cooling(cooling_kind, scenario.cooling_design_percent),
@@ -114,6 +116,22 @@ def _design_text(result) -> str:
             f"{_fmt(quantity, plant.design_capacity, system)}; the year's peak "
             f"{_fmt(quantity, plant.annual_peak, system)}"
         )
+    pickup = scenario.pickup_allowance_percent
+    if pickup > 0:
+        lines.append(
+            f"  the heating design load includes a {pickup:g} % morning pick-up allowance "
+            "after night set-back (common practice; set plant.heating_pickup_percent)"
+        )
+    for unit in result.air_handlers:
+        off = unit.terminal_hourly.sum()
+        cycled = int(unit.hourly["night_cycle"].sum()) if "night_cycle" in unit.hourly else 0
+        if off > 0 or cycled:
+            how = (
+                f"perimeter/terminal heating, {_fmt('heating_energy', off, system, 0)} a year"
+                if off > 0
+                else f"night cycling, {cycled} h a year (outdoor damper closed)"
+            )
+            lines.append(f"  {unit.name}: heat while the fan is off served by {how}")
     lines.append("")
     from plantside.cli.water_side_text import study_water_side_lines
 
@@ -133,6 +151,65 @@ def _climate_zone_text(scenario, weather) -> str:
         else "climate zone not given (site.climate_zone)"
     )
     return f"  {given}; {suggestion.describe()}"
+
+
+def _coil_schedule_text(result) -> list[str]:
+    """The coil schedule (``plantside.air_handler.coil_schedule``) in the user's units."""
+    from plantside.air_handler.coil_schedule import coil_schedule
+
+    system = result.scenario.unit_system
+    schedule = coil_schedule(result.air_handlers)
+    width = max(14, *(len(name) + 2 for name in schedule["air_handler"]))
+    flow_unit = to_display("airflow", 1.0, system)[1]
+    temp_unit = to_display("temperature", 0.0, system)[1]
+    header = (
+        f"{'air handler':<{width}}{'condition':<18}{'airflow':>9}{'load flow':>10}"
+        f"{'EDB':>7}{'EWB':>7}{'LDB':>7}{'LWB':>7}{'ADP':>7}{'BF':>6}"
+        f"{'total':>14}{'sensible':>14}{'latent':>14}{'SHR':>6}{'reheat':>14}"
+    )
+    lines = [
+        f"Coil schedule (airflow and load flow in {flow_unit}, temperatures in {temp_unit}; "
+        "airflow: the one the design uses, load flow: what the zone load asks for)",
+        header,
+        "-" * len(header),
+    ]
+
+    def num(quantity, value, digits=1):
+        if not np.isfinite(value):
+            return "-"
+        return f"{float(to_display(quantity, value, system)[0]):,.{digits}f}"
+
+    def _ratio(value):
+        return "-" if not np.isfinite(value) else f"{value:.2f}"
+
+    for row in schedule.itertuples(index=False):
+        quantity = "power" if row.coil == "cooling" else "heating_power"
+        used = "S" if row.airflow_used == "scheduled" else "L"
+        mark = " *" if row.governing and row.coil == "cooling" else ""
+        lines.append(
+            f"{row.air_handler:<{width}}{row.condition + mark:<18}"
+            f"{num('airflow', row.airflow_m3s, 0) + ' ' + used:>9}"
+            f"{num('airflow', row.load_airflow_m3s, 0):>10}"
+            f"{num('temperature', row.entering_drybulb_C):>7}"
+            f"{num('temperature', row.entering_wet_bulb_C):>7}"
+            f"{num('temperature', row.leaving_drybulb_C):>7}"
+            f"{num('temperature', row.leaving_wet_bulb_C):>7}"
+            f"{num('temperature', row.apparatus_dew_point_C):>7}"
+            f"{_ratio(row.bypass_factor):>6}"
+            f"{_fmt(quantity, row.total_kW, system):>14}"
+            f"{_fmt(quantity, row.sensible_kW, system):>14}"
+            f"{_fmt(quantity, row.latent_kW, system):>14}"
+            f"{_ratio(row.sensible_heat_ratio):>6}"
+            f"{_fmt('heating_power', row.reheat_kW + row.terminal_reheat_kW, system):>14}"
+        )
+    lines += [
+        "(S: scheduled airflow, the coil leaving at the supply set point; L: load-derived "
+        "airflow. Reheat: after a dehumidifying coil, plus at the scheduled airflow the "
+        "supply's surplus over the zone load. Heating rows: preheat + heating coil from "
+        "the mixed air. Condensate in the --json output and coil_schedule.csv.)",
+        "",
+    ]
+    return lines
 
 
 def _load(path):
@@ -170,6 +247,11 @@ def _cmd_year(args) -> int:
             path = out / f"hourly_{safe}.csv"
             frame.to_csv(path, float_format="%.6g")
         written.append(path)
+    from plantside.air_handler.coil_schedule import coil_schedule
+
+    path = out / "coil_schedule.csv"
+    coil_schedule(result.air_handlers).to_csv(path, index=False, float_format="%.6g")
+    written.append(path)
     summary = study_summary(result)
     path = out / "summary.json"
     path.write_text(json.dumps(summary, indent=2, allow_nan=False), encoding="utf-8")

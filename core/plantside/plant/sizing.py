@@ -252,21 +252,27 @@ def sizing_summary(
     )
 
 
-def sizing_cautions(loads, capacity: float) -> list[str]:
+def sizing_cautions(loads, capacity: float, design_load: float | None = None) -> list[str]:
     """Plain-language cautions on a plant capacity against the year's loads.
 
     Parameters
     ----------
     loads : array_like
-        Hourly plant loads [kW].
+        Hourly plant loads [kW]: everything the plant serves (for heating, also the
+        heat delivered outside the air handlers, such as perimeter heating).
     capacity : float
         Installed (or design) capacity [kW], > 0.
+    design_load : float, optional
+        The plant's load at the governing design condition [kW], >= 0. When given, the
+        oversizing caution is measured against the larger of the year's peak and the
+        design load, and never suggests a capacity below the design load: the year
+        simulated is one year, the design condition the one the plant must meet.
 
     Returns
     -------
     list of str
         Empty when the capacity covers the year's peak and is below
-        :data:`OVERSIZE_CAUTION_RATIO` times it.
+        :data:`OVERSIZE_CAUTION_RATIO` times the larger of the peak and the design load.
     """
     arr = hourly_loads(loads)
     cap = float(check_range("capacity", capacity, 0.0, None, "kW", low_inclusive=False))
@@ -279,11 +285,30 @@ def sizing_cautions(loads, capacity: float) -> list[str]:
             f"and {float(energy_above(arr, cap)):.0f} kWh of load would be unmet. Check comfort, "
             "humidity and process needs in those hours."
         )
-    if peak > 0 and cap > OVERSIZE_CAUTION_RATIO * peak:
-        notes.append(
-            f"Capacity {cap:.0f} kW is {cap / peak:.2f} times the year's peak of {peak:.0f} kW: "
-            "expect short cycling and poor part-load control."
-        )
+    if design_load is None:
+        if peak > 0 and cap > OVERSIZE_CAUTION_RATIO * peak:
+            notes.append(
+                f"Capacity {cap:.0f} kW is {cap / peak:.2f} times the year's peak of "
+                f"{peak:.0f} kW: expect short cycling and poor part-load control."
+            )
+    else:
+        design = float(check_range("design_load", design_load, 0.0, None, "kW"))
+        reference = max(peak, design)
+        if reference > 0 and cap > OVERSIZE_CAUTION_RATIO * reference:
+            notes.append(
+                f"Capacity {cap:.0f} kW is {cap / reference:.2f} times the larger of the "
+                f"year's peak ({peak:.0f} kW) and the design load ({design:.0f} kW): review "
+                f"the margin, keeping at least the design load of {design:.0f} kW, and meet "
+                "the low loads with turndown (more or smaller machines, a modulating lead "
+                "machine)."
+            )
+        elif peak > 0 and cap > OVERSIZE_CAUTION_RATIO * peak:
+            notes.append(
+                f"The year's peak ({peak:.0f} kW) is well below the design load "
+                f"({design:.0f} kW): the plant still needs at least the design load at the "
+                "design condition; plan the low loads with turndown (more or smaller "
+                "machines, a modulating lead machine), not with a smaller plant."
+            )
     if notes:
         notes.append(
             "These figures support, and do not replace, the judgement of a licensed engineer "

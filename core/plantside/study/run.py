@@ -20,6 +20,7 @@ import numpy as np
 import pandas as pd
 
 from plantside import __version__
+from plantside.air_handler.coil_schedule import coil_schedule
 from plantside.air_handler.results import zone_load
 from plantside.air_handler.year import (
     AirHandlerSettings,
@@ -92,7 +93,15 @@ class AirHandlerResult:
     @property
     def heating_hourly(self) -> np.ndarray:
         """Hourly heating coil load (preheat + heating + reheat + dehumidification reheat) [kW]."""
-        return sum(self.hourly[c].to_numpy() for c in heating_load_columns)
+        return sum(self.hourly[c].to_numpy() for c in heating_load_columns) + self.terminal_hourly
+
+    @property
+    def terminal_hourly(self) -> np.ndarray:
+        """Hourly heat delivered outside the air handler while its fan is off [kW]
+        (perimeter or terminal heating on the hot-water plant; 0 without)."""
+        if "terminal_heating_kW" not in self.hourly.columns:
+            return np.zeros(len(self.hourly))
+        return self.hourly["terminal_heating_kW"].to_numpy(dtype=float)
 
     @property
     def zone_hourly(self) -> np.ndarray:
@@ -188,7 +197,7 @@ def _plant(
     hourly = plant_load_from_coil_loads(coil_loads, gain)
     capacity = design_capacity_from_design_load(design_load, margin)
     specs, options = _options(specs, capacity, kind)
-    cautions = tuple(sizing_cautions(hourly, capacity)) if capacity > 0 else ()
+    cautions = tuple(sizing_cautions(hourly, capacity, design_load)) if capacity > 0 else ()
     return PlantResult(
         kind=kind,
         hourly_load=hourly,
@@ -309,7 +318,11 @@ def assemble_plants(
             unit.heating_design.loads[c] for c in heating_load_columns
         )
     heating_row["coil_total_kW"] = sum(heating_row[f"{u.name}_heating_kW"] for u in units)
-    heating_row["plant_kW"] = heating_row["coil_total_kW"] * factor
+    # morning pick-up after night set-back: an allowance on the design load, its own term
+    pickup = scenario.pickup_allowance_percent
+    heating_row["pickup_percent"] = pickup
+    heating_row["pickup_kW"] = heating_row["coil_total_kW"] * factor * pickup / 100.0
+    heating_row["plant_kW"] = heating_row["coil_total_kW"] * factor + heating_row["pickup_kW"]
     heating_table = pd.DataFrame([heating_row]).set_index("kind")
     heating = _plant(
         "heating",
@@ -433,6 +446,13 @@ def study_summary(result: StudyResult) -> dict:
                 "annual_peak_coil_total_kW": figures.peak_coil_load,
                 "annual_coil_total_kWh": figures.cooling_energy,
                 "annual_heating_kWh": load_energy(unit.heating_hourly),
+                "unoccupied_heating": unit.settings.unoccupied_heating,
+                "night_setback_drybulb_C": unit.settings.night_setback_drybulb,
+                "annual_terminal_heating_kWh": load_energy(unit.terminal_hourly),
+                "night_cycle_hours": int(hourly["night_cycle"].sum())
+                if "night_cycle" in hourly.columns
+                else 0,
+                "design_airflow": unit.settings.design_airflow,
                 "economizer_hours": {
                     str(k): int(v) for k, v in hourly["economizer_mode"].value_counts().items()
                 },
@@ -476,7 +496,11 @@ def study_summary(result: StudyResult) -> dict:
             "first_option": plant_figures.option_name,
             "first_option_machines_kW": list(plant_figures.machine_capacities),
         },
-        "heating_plant": plant(result.heating),
+        "heating_plant": {
+            **plant(result.heating),
+            "pickup_allowance_percent": scenario.pickup_allowance_percent,
+        },
+        "coil_schedule": _records(coil_schedule(result.air_handlers)),
         "water_side": water_side_summary(run_water_side(result)),
         "cautions": list(result.cautions),
     }

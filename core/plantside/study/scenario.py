@@ -29,6 +29,8 @@ The layout (field by field in the README)::
     distribution_gain_percent = 3
     cooling_margin_percent = 10
     heating_margin_percent = 15
+    heating_pickup_percent = 10   # morning pick-up after night set-back (default: 10 % where a
+                                  # unit sets back, else 0; common practice)
     [[plant.cooling_option]]      # one table per option compared
     name = "2 x 50 %"
     capacity_fractions = [0.5, 0.5]
@@ -41,6 +43,9 @@ The layout (field by field in the README)::
     [[air_handler]]               # one table per air handler
     name = "AHU-1"
     supply_airflow = 10000        # cfm (IP) or L/s (SI)
+    design_airflow = "scheduled"  # cooling design at supply_airflow, or "load"
+    unoccupied_heating = "terminal"   # fan off: perimeter/terminal heat, or "night_cycle"
+    night_setback_drybulb = 60    # °F (IP) or °C (SI): unoccupied heating set point
     ...
     [air_handler.zone]            # zone loads by the modified bin method, or
     cooling_design_sensible = 25  # tons (IP) or kW (SI)
@@ -79,6 +84,7 @@ from plantside.study.water_side import (
 from plantside.units import UnitSystem, from_display, to_display, unit_label
 
 __all__ = [
+    "DEFAULT_PICKUP_PERCENT",
     "FIELD_QUANTITIES",
     "MAX_SCENARIO_BYTES",
     "AirHandlerSpec",
@@ -93,6 +99,12 @@ __all__ = [
     "scenario_from_dict",
     "scenario_to_dict",
 ]
+
+#: Morning pick-up allowance on the heating plant's design load where an air handler sets
+#: its zone back at night [%] (common practice, no source: recovering the set-back in
+#: about an hour or two; a licensed engineer sets it from the building's mass and the
+#: pick-up period).
+DEFAULT_PICKUP_PERCENT = 10.0
 
 #: Physical quantity of each numeric field written in the file's unit system. Fields not
 #: listed are dimensionless (fractions, effectivenesses) or carry their unit in their name
@@ -114,6 +126,7 @@ FIELD_QUANTITIES = {
     "preheat_drybulb": "temperature",
     "apparatus_dew_point": "temperature",
     "leaving_dew_point": "temperature",
+    "night_setback_drybulb": "temperature",
     "apparatus_dew_point_min": "temperature",
     # zone load model
     "cooling_design_sensible": "power",
@@ -145,6 +158,7 @@ _PLANT_KEYS = (
     "distribution_gain_percent",
     "cooling_margin_percent",
     "heating_margin_percent",
+    "heating_pickup_percent",
     "cooling_option",
     "heating_option",
     "chilled_water",
@@ -212,6 +226,7 @@ class Scenario:
     heating_margin_percent: float = 10.0
     cooling_options: tuple[PlantOptionSpec, ...] = ()
     heating_options: tuple[PlantOptionSpec, ...] = ()
+    heating_pickup_percent: float | None = None
     climate_zone: str | None = None
     latitude: float | None = None
     longitude: float | None = None
@@ -220,6 +235,25 @@ class Scenario:
     source: str = field(default="<scenario>", compare=False)
     files: str = field(default="any", compare=False)
     base_dir: Path = field(default_factory=Path.cwd, compare=False)
+
+    @property
+    def pickup_allowance_percent(self) -> float:
+        """Morning pick-up allowance on the heating plant's design load [%].
+
+        ``heating_pickup_percent`` when given; otherwise
+        :data:`DEFAULT_PICKUP_PERCENT` when an air handler sets its zone back at
+        night (``night_setback_drybulb`` below ``zone_heating_drybulb`` with the fan off
+        when unoccupied), else 0.
+        """
+        if self.heating_pickup_percent is not None:
+            return float(self.heating_pickup_percent)
+        sets_back = any(
+            s.fan_schedule == "occupied"
+            and s.night_setback_drybulb is not None
+            and s.night_setback_drybulb < s.zone_heating_drybulb
+            for s in (spec.settings for spec in self.air_handlers)
+        )
+        return DEFAULT_PICKUP_PERCENT if sets_back else 0.0
 
     def load_weather(self) -> Weather:
         """The hourly weather of the site (bundled climate or CSV)."""
@@ -577,6 +611,9 @@ def scenario_from_dict(
     heating_margin = _percent(
         source, "plant.heating_margin_percent", plant.get("heating_margin_percent", 10.0)
     )
+    heating_pickup = plant.get("heating_pickup_percent")
+    if heating_pickup is not None:
+        heating_pickup = _percent(source, "plant.heating_pickup_percent", heating_pickup)
     options = {}
     for key, kind in (("cooling_option", "cooling"), ("heating_option", "heating")):
         tables = plant.get(key, [])
@@ -637,6 +674,7 @@ def scenario_from_dict(
         distribution_gain_percent=gain,
         cooling_margin_percent=cooling_margin,
         heating_margin_percent=heating_margin,
+        heating_pickup_percent=heating_pickup,
         cooling_options=options["cooling"],
         heating_options=options["heating"],
         water_side=water_side,
@@ -736,6 +774,8 @@ def scenario_to_dict(scenario: Scenario) -> dict:
         "cooling_margin_percent": scenario.cooling_margin_percent,
         "heating_margin_percent": scenario.heating_margin_percent,
     }
+    if scenario.heating_pickup_percent is not None:
+        plant["heating_pickup_percent"] = scenario.heating_pickup_percent
     if scenario.cooling_options:
         plant["cooling_option"] = [_option_table(o) for o in scenario.cooling_options]
     if scenario.heating_options:
