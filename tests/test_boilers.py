@@ -1,18 +1,11 @@
 """Boilers: efficiency against return water and firing rate, hourly fuel."""
 
-import doctest
-
 import numpy as np
 import pytest
 from hypothesis import given
 from hypothesis import strategies as st
 from plantside.errors import InputRangeError
-from plantside.plant import boilers
 from plantside.plant.boilers import boiler_cautions, boiler_efficiency, boiler_hours
-
-
-def test_docstring_examples_run():
-    assert doctest.testmod(boilers).failed == 0
 
 
 @pytest.mark.parametrize(("kind", "rated"), [("condensing", 0.95), ("non_condensing", 0.82)])

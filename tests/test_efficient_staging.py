@@ -1,18 +1,11 @@
 """Staging on efficiency: today's rule at f = 1, a staging fraction, the power rule, flow."""
 
-import doctest
-
 import numpy as np
 from hypothesis import given
 from hypothesis import strategies as st
 from hypothesis.extra.numpy import arrays
-from plantside.plant import efficient_staging
 from plantside.plant.efficient_staging import stage_on_efficiency
 from plantside.plant.staging import stage_machines
-
-
-def test_docstring_examples_run():
-    assert doctest.testmod(efficient_staging).failed == 0
 
 
 @given(

@@ -1,7 +1,5 @@
 """Chilled and hot water: properties, flow, quick forms, ΔT, reset, machines for flow."""
 
-import doctest
-
 import numpy as np
 import pytest
 from CoolProp.CoolProp import PropsSI
@@ -9,7 +7,6 @@ from hypothesis import given
 from hypothesis import strategies as st
 from plantside.constants import CP_LIQUID_WATER
 from plantside.errors import InputRangeError
-from plantside.plant import water
 from plantside.plant.water import (
     apparatus_dew_point_check,
     coil_delta_t_from_part_load_ratio,
@@ -28,10 +25,6 @@ from plantside.units import (
     lps_from_m3s,
     m3s_from_gpm,
 )
-
-
-def test_docstring_examples_run():
-    assert doctest.testmod(water).failed == 0
 
 
 @pytest.mark.parametrize("temperature", [1.0, 4.0, 10.0, 20.0, 40.0, 60.0, 80.0, 95.0])
