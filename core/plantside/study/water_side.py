@@ -45,6 +45,17 @@ __all__ = [
     "water_side_to_tables",
 ]
 
+#: Pump fields of a table: file key -> (quantity, SI low, SI high).
+_PUMP_FIELDS = {
+    "pump_head": ("length", 0.0, 200.0),
+    "pump_efficiency": ("", 0.05, 1.0),
+    "motor_efficiency": ("", 0.05, 1.0),
+    "control_head_share": ("", 0.0, 1.0),
+    "minimum_speed": ("", 0.0, 1.0),
+}
+#: The condenser-water pumps run at constant speed: no part-load fields.
+_CONSTANT_SPEED_PUMP_KEYS = ("pump_head", "pump_efficiency", "motor_efficiency")
+
 #: Each table's fields: file key -> (quantity or "" or kind, SI low, SI high).
 #: Quantities convert through :mod:`plantside.units`; "bool", "list", "text" are not numbers.
 WATER_SIDE_FIELDS = {
@@ -55,11 +66,7 @@ WATER_SIDE_FIELDS = {
         "delta_t_ratio_points": ("list", 0.05, 2.0),
         "flow_limit_fraction": ("", 1.0, 2.0),
         "coil_approach": ("temperature_difference", 0.0, 15.0),
-        "pump_head": ("length", 0.0, 200.0),
-        "pump_efficiency": ("", 0.05, 1.0),
-        "motor_efficiency": ("", 0.05, 1.0),
-        "control_head_share": ("", 0.0, 1.0),
-        "minimum_speed": ("", 0.0, 1.0),
+        **_PUMP_FIELDS,
         "staging_fraction": ("", 0.3, 1.0),
         "power_rule": ("bool", 0, 1),
         "heat_recovery_capacity": ("heating_power", 0.0, 1e6),
@@ -72,9 +79,7 @@ WATER_SIDE_FIELDS = {
         "condenser_water_floor": ("temperature", 5.0, 30.0),
         "fan_power_per_heat": ("", 0.0, 0.1),
         "fan_minimum_speed": ("", 0.0, 1.0),
-        "pump_head": ("length", 0.0, 200.0),
-        "pump_efficiency": ("", 0.05, 1.0),
-        "motor_efficiency": ("", 0.05, 1.0),
+        **{k: v for k, v in _PUMP_FIELDS.items() if k in _CONSTANT_SPEED_PUMP_KEYS},
         "waterside_economizer": ("bool", 0, 1),
         "exchanger_approach": ("temperature_difference", 0.5, 10.0),
         "evaporation_design_percent": ("", 0.4, 2.0),
@@ -92,11 +97,7 @@ WATER_SIDE_FIELDS = {
         "rated_efficiency": ("", 0.5, 0.99),
         "rated_return_temperature": ("temperature", 0.0, 100.0),
         "jacket_loss": ("", 0.0, 0.05),
-        "pump_head": ("length", 0.0, 200.0),
-        "pump_efficiency": ("", 0.05, 1.0),
-        "motor_efficiency": ("", 0.05, 1.0),
-        "control_head_share": ("", 0.0, 1.0),
-        "minimum_speed": ("", 0.0, 1.0),
+        **_PUMP_FIELDS,
         "staging_fraction": ("", 0.3, 1.0),
     },
 }
