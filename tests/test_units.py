@@ -158,7 +158,15 @@ CORE_VALUES = {
     "length": np.array([0.0, 1609.0]),
     "pressure": np.array([84000.0, 101325.0]),
     "mass_flow": np.array([0.5, 40.0]),
+    "area": np.array([0.0, 2.5, 120.0]),
 }
+
+
+def test_area_factor():
+    # 1 ft = 0.3048 m exactly (NIST SP 811, Appendix B.9), so 1 ft² = 0.09290304 m².
+    shown, unit = u.to_display("area", np.array([0.09290304, 10.0]), "IP")
+    assert unit == "ft²"
+    np.testing.assert_allclose(shown, [1.0, 107.6391041671], rtol=1e-12)
 
 
 def test_every_quantity_has_a_core_value_here():
