@@ -4,13 +4,14 @@ from dataclasses import replace
 from pathlib import Path
 
 import numpy as np
+import psychrolib
 import pytest
 from air_handler_cases import synthetic_weather
 from plantside.air_handler.coil_schedule import COIL_SCHEDULE_COLUMNS, coil_schedule
 from plantside.air_handler.design import design_point
 from plantside.air_handler.settings import AirHandlerSettings
 from plantside.air_handler.unoccupied import setback_sensible_load
-from plantside.air_handler.year import hourly_year
+from plantside.air_handler.year import hourly_cautions, hourly_year
 from plantside.air_handler.zone_loads import ZoneLoadModel
 from plantside.cli.main import main
 from plantside.errors import InputRangeError
@@ -102,6 +103,40 @@ def test_night_cycle_recirculates_at_the_setback(weather, school_zone):
         frame["zone_sensible_kW"] - frame["terminal_heating_kW"] + frame["zone_sensible_unmet_kW"]
     )
     np.testing.assert_allclose(ledger, frame["zone_sensible_need_kW"], rtol=1e-3, atol=1e-3)
+
+
+def test_night_cycle_latent_gain_is_not_a_coil_failure(weather, school_zone):
+    # The zone's unoccupied latent gain (0.1 x 8 kW, the bin model's default unoccupied
+    # share) is not met by a unit recirculating with its damper closed: reported unmet,
+    # as in an off hour, but not as a dehumidification failure.
+    unit = _unit(unoccupied_heating="night_cycle", night_setback_drybulb=15.0)
+    frame = hourly_year(unit, weather, school_zone)
+    night = frame["night_cycle"]
+    assert night.sum() > 500
+    np.testing.assert_allclose(frame.loc[night, "zone_latent_unmet_kW"], 0.8)
+    # dry winter air (dew point 6 K or more below the dry bulb): no caution names them
+    cautions = " ".join(frame.attrs["cautions"])
+    assert "cannot be removed" not in cautions and "night-cycle" not in cautions
+    # the same hours taken as conditioning hours raise the coil caution: the exclusion is
+    # by the night-cycle flag, not by the numbers
+    flagged = hourly_cautions(unit, frame.assign(night_cycle=False))
+    assert f"In {int(night.sum())} operating hours part of the zone latent" in " ".join(flagged)
+
+    # Humid nights (dew point 1 K below the dry bulb): the hours whose outdoor air is above
+    # the 60 % limit at the 15 °C set-back are counted, and only those; the limit's humidity
+    # ratio from psychrolib 2.5 (ASHRAE Handbook Fundamentals 2017 Ch. 1), independent of
+    # plantside's moist-air functions.
+    humid = synthetic_weather(dew_depression=1.0, seed=3)
+    frame = hourly_year(unit, humid, school_zone)
+    night = frame["night_cycle"].to_numpy()
+    pressure = frame["pressure_Pa"].to_numpy()[night]
+    w_limit = np.array([psychrolib.GetHumRatioFromRelHum(15.0, 0.6, p) for p in pressure])
+    above = int((frame["outdoor_humidity_ratio_kgkg"].to_numpy()[night] > w_limit).sum())
+    assert above > 50
+    notes = [c for c in frame.attrs["cautions"] if "night-cycle" in c]
+    assert len(notes) == 1 and notes[0].startswith(f"In {above} night-cycle hours")
+    assert "up to 0.8 kW" in notes[0]
+    assert not any("cannot be removed" in c for c in frame.attrs["cautions"])
 
 
 def test_unoccupied_settings_are_checked():

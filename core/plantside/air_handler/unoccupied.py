@@ -31,9 +31,14 @@ hour holds; heating negative, terminal heat positive)::
 
 Not modelled: the morning recovery from set-back (a pick-up allowance on the
 heating plant's design covers it, :mod:`plantside.study.run`), a cooling set-up,
-and the zone's unoccupied latent gain during night cycling (the unit neither adds
-nor removes moisture with the damper closed; the gain is reported unmet, as in an
-off hour, and the zone humidity is taken as the outdoor humidity).
+and the zone's unoccupied latent gain during night cycling: the unit neither adds
+nor removes moisture with the damper closed and its coil heating, so the gain is
+reported unmet (``zone_latent_unmet_kW``, as in an off hour) and the zone humidity
+is taken as the outdoor humidity (the air the building exchanges with outdoors
+carries the gain away). In dry winter air that is no caution; hours whose outdoor
+air is above the zone humidity limit at the set-back get one of their own
+(:func:`plantside.air_handler.year.hourly_cautions`), never the coil's "cannot be
+removed".
 """
 
 from __future__ import annotations

@@ -100,16 +100,32 @@ def hourly_cautions(settings: AirHandlerSettings, result) -> list[str]:
     Flags humidity above the zone limit (mould and comfort), unmet sensible or latent
     load (an undersized unit), and cooling hours needing an apparatus dew point below
     what the coil can produce. The engineer of record decides; local codes govern.
+
+    Night-cycle hours (``night_cycle``, :mod:`plantside.air_handler.unoccupied`) are
+    not hours of failed dehumidification: the unit recirculates with its outdoor damper
+    closed and heats, so the zone's unoccupied latent gain is left to the air the
+    building exchanges with outdoors (the zone humidity is taken as the outdoor
+    humidity). They get their own caution only where the outdoor air is itself above
+    the humidity limit at the set-back dry bulb; in dry winter air, none.
     """
     operating = np.asarray(result["operating"], dtype=bool)
+    night = (
+        np.asarray(result["night_cycle"], dtype=bool)
+        if "night_cycle" in result
+        else np.zeros_like(operating)
+    )
+    # hours the unit conditions the zone with its outdoor air (night cycling excluded)
+    conditioning = operating & ~night
+    limit = settings.zone_relative_humidity_limit
     cautions = []
     rh = np.asarray(result["zone_relative_humidity"], dtype=float)
-    high = operating & (rh > settings.zone_relative_humidity_limit)
+    high = conditioning & (rh > limit)
     if np.any(high):
         cautions.append(
-            f"Zone relative humidity is above {100 * settings.zone_relative_humidity_limit:.0f} % "
-            f"in {int(high.sum())} operating hours (highest {100 * np.nanmax(rh):.0f} %): risk of "
-            "discomfort and mould. Check the coil leaving dew point, latent loads and outdoor air."
+            f"Zone relative humidity is above {100 * limit:.0f} % "
+            f"in {int(high.sum())} operating hours (highest {100 * np.max(rh[high]):.0f} %): risk "
+            "of discomfort and mould. Check the coil leaving dew point, latent loads and outdoor "
+            "air."
         )
     unmet = np.asarray(result["zone_sensible_unmet_kW"], dtype=float)
     # shortfalls under 0.05 kW (a fraction of a percent of any zone load) are not flagged
@@ -126,11 +142,24 @@ def hourly_cautions(settings: AirHandlerSettings, result) -> list[str]:
             f"highest heating supply temperature (up to {-np.min(unmet[cold]):.1f} kW unmet)."
         )
     latent_unmet = np.asarray(result["zone_latent_unmet_kW"], dtype=float)
-    moist = operating & (np.abs(latent_unmet) > 1e-6)
+    moist = conditioning & (np.abs(latent_unmet) > 1e-6)
     if np.any(moist):
         cautions.append(
             f"In {int(moist.sum())} operating hours part of the zone latent load cannot be removed "
             "(dry coil and no outdoor air, or a negative latent load)."
+        )
+    humid_night = night & (rh > limit)
+    if np.any(humid_night):
+        setback = settings.night_setback_drybulb
+        setback = settings.zone_heating_drybulb if setback is None else setback
+        gain = np.max(latent_unmet[humid_night], initial=0.0)
+        cautions.append(
+            f"In {int(humid_night.sum())} night-cycle hours the outdoor air is above "
+            f"{100 * limit:.0f} % relative humidity at the {setback:g} °C set-back (highest "
+            f"{100 * np.max(rh[humid_night]):.0f} %). The unit recirculates with its outdoor "
+            "damper closed and heats: it removes none of the zone's unoccupied latent gain "
+            f"(up to {gain:.1f} kW), and the zone is at least as humid as the outdoor air. "
+            "Check cold surfaces for condensation where it matters."
         )
     if "apparatus_dew_point_required_C" in result:
         adp = np.asarray(result["apparatus_dew_point_required_C"], dtype=float)
