@@ -8,14 +8,18 @@ the unit system asked for (:func:`plantside.units.to_display`).
 from __future__ import annotations
 
 from plantside import __version__
+from plantside.study.figures import outdoor_air_fraction_of
 from plantside.units import to_display
 
 __all__ = [
     "ECONOMIZER_CHOICES",
     "FAN_CHOICES",
+    "changed_settings_text",
     "condition_text",
     "export_stamp",
     "inputs_stamp",
+    "unit_settings_parts",
+    "unit_settings_text",
 ]
 
 #: Economizer control types (model value -> label in the trade's words).
@@ -61,47 +65,128 @@ def condition_text(condition, system: str) -> str:
     return f"{condition.kind} {pct}: {drybulb} DB"
 
 
+def unit_settings_parts(settings, system: str) -> dict[str, str]:
+    """An air handler's settings that the views show, in words, only those that apply.
+
+    ``settings`` is an :class:`~plantside.air_handler.settings.AirHandlerSettings`
+    (SI); temperatures are shown in ``system``. A 100 % outdoor-air unit has no
+    economizer; the coil is named by its model (bypass factor, apparatus dew
+    point or leaving dew point with the bypass factor of its process line).
+    """
+
+    def temperature(value):
+        number, unit = to_display("temperature", value, system)
+        return f"{float(number):.1f} {unit}"
+
+    parts = {}
+    if settings.all_outdoor_air:
+        parts["outdoor air"] = "100 % outdoor air"
+    else:
+        parts["outdoor air"] = f"outdoor air {100 * outdoor_air_fraction_of(settings):.0f} %"
+    parts["supply"] = f"supply {temperature(settings.supply_drybulb)}"
+    if not settings.all_outdoor_air:
+        integrated = ", integrated" if settings.economizer_integrated else ""
+        economizer = ECONOMIZER_CHOICES.get(settings.economizer, settings.economizer)
+        parts["economizer"] = f"{economizer.lower()}{integrated}"
+    parts["fan"] = FAN_CHOICES.get(settings.fan_control, settings.fan_control)
+    if settings.coil_model == "apparatus_dew_point":
+        parts["coil"] = f"apparatus dew point {temperature(settings.apparatus_dew_point)}"
+    elif settings.coil_model == "leaving_dew_point":
+        parts["coil"] = (
+            f"leaving dew point {temperature(settings.leaving_dew_point)} "
+            f"(bypass factor {settings.bypass_factor:.2f})"
+        )
+    else:
+        parts["coil"] = f"bypass factor {settings.bypass_factor:.2f}"
+    if settings.preheat_drybulb is not None:
+        parts["preheat"] = f"preheat to {temperature(settings.preheat_drybulb)}"
+    if settings.supply_reset_drybulb is not None:
+        parts["reset"] = f"cold-weather supply reset {temperature(settings.supply_reset_drybulb)}"
+    return parts
+
+
+def unit_settings_text(settings, system: str) -> str:
+    """``"<name>: <every setting the views show>"`` (:func:`unit_settings_parts`)."""
+    return f"{settings.name}: " + ", ".join(unit_settings_parts(settings, system).values())
+
+
+def changed_settings_text(file_settings, settings, system: str) -> str:
+    """What differs between an air handler's settings in the scenario file and in use.
+
+    ``"<name>: supply 53.0 °F (file: supply 55.0 °F)"``, or "" when nothing differs.
+    """
+    before = unit_settings_parts(file_settings, system)
+    after = unit_settings_parts(settings, system)
+    changed = [
+        f"{text} (file: {before.get(key, 'none')})"
+        for key, text in after.items()
+        if before.get(key) != text
+    ]
+    return f"{settings.name}: " + ", ".join(changed) if changed else ""
+
+
 def inputs_stamp(
     climate: str,
     design_percent: float,
-    name: str,
+    units,
     *,
-    outdoor_air_fraction: float,
-    supply_air_temperature: float,
-    economizer: str,
-    economizer_integrated: bool,
-    fan_control: str,
-    bypass_factor: float,
+    shown: int,
+    plant_view: bool,
     system: str,
 ) -> str:
-    """One line naming the inputs of an air handler, for chart and file stamps.
+    """The inputs that made a chart, in one line, for chart and file stamps.
 
-    ``outdoor_air_fraction`` [-], ``supply_air_temperature`` [°C] (shown in
-    ``system``), ``bypass_factor`` [-]; the controls by their model values.
+    Parameters
+    ----------
+    climate : str
+        The climate as the views name it.
+    design_percent : float
+        Cooling design condition [annual % exceeded].
+    units : sequence of (settings, settings)
+        Per air handler, its settings in the scenario file and those in use (SI).
+    shown : int
+        Index of the air handler the unit charts show (all its settings are named).
+    plant_view : bool
+        For the plant, every air handler's settings that differ from the scenario
+        file are named; for one air handler, those of that one.
+    system : str
+        Unit system of the text.
     """
-    supply, supply_unit = to_display("temperature", supply_air_temperature, system)
-    integrated = ", integrated" if economizer_integrated else ""
-    return (
-        f"{climate}; cooling design {design_percent:g} %; {name}: "
-        f"outdoor air {100 * outdoor_air_fraction:.0f} %, "
-        f"supply {float(supply):.1f} {supply_unit}, "
-        f"{ECONOMIZER_CHOICES.get(economizer, economizer).lower()}{integrated}, "
-        f"{FAN_CHOICES.get(fan_control, fan_control)}, "
-        f"bypass factor {bypass_factor:.2f}"
+    parts = [climate, f"cooling design {design_percent:g} %"]
+    parts.append(
+        ("air handler shown " if plant_view else "") + unit_settings_text(units[shown][1], system)
     )
+    considered = units if plant_view else [units[shown]]
+    changes = [changed_settings_text(before, after, system) for before, after in considered]
+    changes = [text for text in changes if text]
+    if changes:
+        parts.append("changed from the scenario file: " + "; ".join(changes))
+    else:
+        parts.append(
+            ("all air handlers" if plant_view else "settings") + " as in the scenario file"
+        )
+    return "; ".join(parts)
 
 
 def export_stamp(
-    title: str, plant_view: bool, inputs: str, governing, system: str, when: str
+    title: str,
+    plant_view: bool,
+    inputs: str,
+    governing,
+    system: str,
+    when: str,
+    pinned_inputs: str | None = None,
 ) -> str:
     """The text stamped on every exported chart and file: study, inputs, version, time.
 
-    ``inputs`` is :func:`inputs_stamp` of the air handler shown, ``governing`` the
-    governing design condition of the view, ``when`` the time as text.
+    ``inputs`` is :func:`inputs_stamp` of what is shown (B when a result is pinned),
+    ``governing`` the governing design condition of the view, ``when`` the time as
+    text, ``pinned_inputs`` the :func:`inputs_stamp` of the pinned result "A".
     """
     view = "plant" if plant_view else "air handler"
+    shown = f"A: {pinned_inputs} · B: {inputs}" if pinned_inputs else inputs
     return (
-        f"plantside {__version__} · {title} · {view} view · {inputs} · "
+        f"plantside {__version__} · {title} · {view} view · {shown} · "
         f"governing {condition_text(governing, system)} · {when} · preliminary, "
         "for review by a licensed engineer"
     )

@@ -28,7 +28,6 @@ from plantside.study.design_sweep import design_outdoor_air_sweep
 from plantside.study.figures import (
     HeadlineFigures,
     ViewLoads,
-    control_values,
     headline_figures,
     outdoor_air_fraction_of,
     view_loads,
@@ -268,13 +267,18 @@ def study_chart_views(result, climate: str, shown: int = 0) -> list[tuple[str | 
 def view_stamp(scenario, view: ChartView, when: str) -> str:
     """The export stamp of ``view`` with the scenario's own inputs (the dashboard's stamp
     before any control is moved), ``when`` the time as text."""
-    unit = view.unit.settings
     system = scenario.unit_system.value
+    units = [(spec.settings, spec.settings) for spec in scenario.air_handlers]
+    shown = next(
+        (i for i, spec in enumerate(scenario.air_handlers) if spec.settings == view.unit.settings),
+        0,
+    )
     inputs = inputs_stamp(
         view.climate,
         scenario.cooling_design_percent,
-        unit.name,
-        **control_values(unit),
+        units,
+        shown=shown,
+        plant_view=view.plant,
         system=system,
     )
     return export_stamp(scenario.title, view.plant, inputs, view.figures.governing, system, when)

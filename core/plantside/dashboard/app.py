@@ -36,7 +36,7 @@ from plantside.charts.compare import combine_scenarios
 from plantside.charts.export import chart_bytes, safe_filename
 from plantside.charts.labels import export_stamp
 from plantside.charts.study_frames import CHARTS, ChartView, chart_frames, study_chart
-from plantside.dashboard.controls import Controls
+from plantside.dashboard.controls import Controls, GuardedDropdown
 from plantside.dashboard.download import BrowserDownload
 from plantside.dashboard.serve import SCENARIO_ENVIRONMENT_VARIABLE
 from plantside.dashboard.spec import SpecWriter
@@ -171,10 +171,11 @@ class Dashboard:
 
     def _layout(self) -> widgets.VBox:
         c = self.controls
-        air_handler = widgets.Dropdown(
+        air_handler = GuardedDropdown(
             options=[(name, i) for i, name in enumerate(self.state.names)],
             value=self.state.inputs.air_handler,
         )
+        c.guard("air_handler", air_handler)  # what the page sends is checked first
         air_handler.add_class("plantside-air-handler")
         air_handler.observe(self._on_air_handler, names="value")
         self.air_handler_choice = air_handler
@@ -195,6 +196,7 @@ class Dashboard:
             c.box("outdoor_air_fraction"),
             c.box("supply_air_temperature"),
             c.box("bypass_factor"),
+            c.box("leaving_dew_point"),  # shown only for a coil that holds a dew point
             c.box("economizer"),
             c.box("economizer_integrated"),
             c.box("fan_control"),
@@ -312,7 +314,7 @@ class Dashboard:
         return (name, state.inputs.unit_system, state.pinned is not None, state.inputs.air_handler)
 
     def _chart_key(self, name: str) -> tuple:
-        result, pinned = self.state.result, self.state.pinned
+        result, pinned = self.state.result, self.state.pinned_result()
         system = self.state.inputs.unit_system
         base = (system, id(pinned), result.inputs.air_handler if self.view == "air_handler" else -1)
         units = tuple(id(u.hourly) for u in result.units)
@@ -353,7 +355,7 @@ class Dashboard:
 
     def _combined(self, name: str, system: str) -> dict:
         current = self._frames(name, self.state.result, system)
-        pinned = self.state.pinned
+        pinned = self.state.pinned_result()  # A's same air handler as the one shown
         if pinned is None:
             return current
         key = (id(pinned), name, system, self._chart_key(name)[2])
@@ -434,7 +436,8 @@ class Dashboard:
     def _figures_html(self) -> str:
         system = self.state.inputs.unit_system
         now = self.state.result.figures
-        pinned = self.state.pinned.figures if self.state.pinned is not None else None
+        pinned_result = self.state.pinned_result()
+        pinned = pinned_result.figures if pinned_result is not None else None
         margin = self.state.scenario.cooling_margin_percent
 
         def power(v):
@@ -502,16 +505,21 @@ class Dashboard:
 
     # ------------------------------------------------------------------ exports
     def stamp(self) -> str:
-        """Text stamped on every export: study, inputs, version, time."""
+        """Text stamped on every export: study, inputs (A's and B's when pinned), version, time."""
         state = self.state
         system = state.inputs.unit_system
+        plant = self.view == "plant"
+        pinned = state.pinned_result()
         return export_stamp(
             state.scenario.title,
-            self.view == "plant",
-            state.result.inputs.stamp(state.names, system),
+            plant,
+            state.result.inputs.stamp(state.scenario, plant, system),
             state.result.figures.governing,
             system,
             datetime.now().strftime("%Y-%m-%d %H:%M"),
+            pinned_inputs=(
+                pinned.inputs.stamp(state.scenario, plant, system) if pinned is not None else None
+            ),
         )
 
     def _file_stem(self) -> str:

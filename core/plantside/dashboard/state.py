@@ -18,7 +18,7 @@ call :meth:`DashboardState.set`, which
                                   outdoor-air sweep; not the hourly years
    an air-handler control         that air handler's design points, sweep and
    (outdoor air, supply air,      hourly year; the others are reused
-   economizer, fan, bypass)
+   economizer, fan, coil)
    air handler shown              nothing (the controls show its values)
    unit system                    nothing (display only)
    =============================  ==============================================
@@ -28,6 +28,12 @@ call :meth:`DashboardState.set`, which
 3. on a model error keeps the last valid result, puts the message beside the
    control it concerns and keeps the input, so fixing that one control
    recovers.
+
+A control that does not apply to an air handler (the economizer of a 100 %
+outdoor-air unit, the bypass factor of a coil set by its apparatus dew point,
+the leaving dew point of a bypass-factor coil) is refused for it
+(:meth:`DashboardState.applies`); a control never changes a setting the page
+does not show (moving the bypass factor keeps the coil model).
 
 A state shows one of two *views*: ``"air_handler"`` (headline figures and
 charts of the air handler chosen) or ``"plant"`` (of the whole plant: the
@@ -50,6 +56,7 @@ from types import SimpleNamespace
 import numpy as np
 import pandas as pd
 
+from plantside.air_handler.design import cooling_design_points
 from plantside.charts.labels import ECONOMIZER_CHOICES, FAN_CHOICES, condition_text, inputs_stamp
 from plantside.climate.bundled import BUNDLED_CLIMATES, load_bundled_climate
 from plantside.climate.design_conditions import COOLING_PERCENTS, design_conditions_from_weather
@@ -65,7 +72,7 @@ from plantside.study.figures import (
     headline_figures,
     view_loads,
 )
-from plantside.study.run import AirHandlerResult, run_air_handler
+from plantside.study.run import AirHandlerResult, design_zone, run_air_handler
 from plantside.study.scenario import Scenario
 from plantside.units import UnitSystem, to_display
 
@@ -85,6 +92,7 @@ __all__ = [
     "HeadlineFigures",
     "UnitInputs",
     "UnitResult",
+    "UnitText",
     "condition_text",
     "display_text",
 ]
@@ -102,6 +110,7 @@ UNIT_CONTROLS = (
     "economizer_integrated",
     "fan_control",
     "bypass_factor",
+    "leaving_dew_point",
 )
 #: Every control -> what it makes the state recompute.
 CONTROLS: dict[str, str] = {
@@ -133,7 +142,7 @@ _FIELD_TO_CONTROL = {
     "supply_air_temperature": "supply_air_temperature",
     "supply_reset_drybulb": "supply_air_temperature",
     "preheat_drybulb": "supply_air_temperature",
-    "leaving_dew_point": "supply_air_temperature",
+    "leaving_dew_point": "leaving_dew_point",
     "apparatus_dew_point": "supply_air_temperature",
     "economizer": "economizer",
     "economizer_integrated": "economizer_integrated",
@@ -151,7 +160,10 @@ class UnitInputs:
     ``outdoor_air_fraction`` [-] 0..1 (minimum, of the supply air),
     ``supply_air_temperature`` [°C], ``economizer`` (key of
     :data:`ECONOMIZER_CHOICES`), ``economizer_integrated`` (bool),
-    ``fan_control`` (key of :data:`FAN_CHOICES`), ``bypass_factor`` [-].
+    ``fan_control`` (key of :data:`FAN_CHOICES`), ``bypass_factor`` [-],
+    ``leaving_dew_point`` [°C] (None unless the coil holds a leaving dew point).
+    ``coil_model`` and ``all_outdoor_air`` are the scenario's (no control moves
+    them); they say which controls apply.
     """
 
     outdoor_air_fraction: float
@@ -160,6 +172,9 @@ class UnitInputs:
     economizer_integrated: bool
     fan_control: str
     bypass_factor: float
+    leaving_dew_point: float | None = None
+    coil_model: str = "bypass_factor"
+    all_outdoor_air: bool = False
 
     @classmethod
     def from_settings(cls, settings) -> UnitInputs:
@@ -168,14 +183,21 @@ class UnitInputs:
         A fixed minimum outdoor airflow shows as its fraction of the design supply
         airflow; a 100 % outdoor-air unit shows 100 %.
         """
-        return cls(**control_values(settings))
+        dew_point_coil = settings.coil_model == "leaving_dew_point"
+        return cls(
+            **control_values(settings),
+            leaving_dew_point=float(settings.leaving_dew_point) if dew_point_coil else None,
+            coil_model=str(settings.coil_model),
+            all_outdoor_air=bool(settings.all_outdoor_air),
+        )
 
     def apply(self, settings):
         """The scenario's air-handler settings with the controls the user moved.
 
         Controls still at the scenario's value leave its settings alone (a fixed
-        minimum outdoor airflow, another coil model); a moved control replaces
-        them (outdoor air as a fraction of supply; the bypass-factor coil model).
+        minimum outdoor airflow); a moved control replaces only its own setting
+        (outdoor air as a fraction of supply; the bypass factor or the leaving dew
+        point, never the coil model).
         """
         original = UnitInputs.from_settings(settings)
         changes = {}
@@ -191,7 +213,9 @@ class UnitInputs:
         if self.fan_control != original.fan_control:
             changes["fan_control"] = self.fan_control
         if self.bypass_factor != original.bypass_factor:
-            changes.update(coil_model="bypass_factor", bypass_factor=self.bypass_factor)
+            changes["bypass_factor"] = self.bypass_factor
+        if self.leaving_dew_point != original.leaving_dew_point:
+            changes["leaving_dew_point"] = self.leaving_dew_point
         if self.supply_air_temperature != original.supply_air_temperature:
             changes["supply_drybulb"] = self.supply_air_temperature
             # carried along before the settings are rebuilt (they validate on creation)
@@ -279,17 +303,24 @@ class DashboardInputs:
             return replace(self, units=tuple(units))
         return replace(self, **{control: value})
 
-    def stamp(self, names: tuple[str, ...] = (), system: str | None = None) -> str:
-        """One line naming the inputs of the air handler shown, for chart and file stamps.
+    def stamp(self, scenario, plant_view: bool, system: str | None = None) -> str:
+        """One line naming the inputs that made the charts, for chart and file stamps.
 
-        Temperatures are in ``system`` (default: the unit system set).
+        Every setting of the air handler shown, and the settings that differ from
+        ``scenario`` (the file): of every air handler for the plant, of the one shown
+        otherwise (:func:`plantside.charts.labels.inputs_stamp`). Temperatures are in
+        ``system`` (default: the unit system set).
         """
-        name = names[self.air_handler] if names else f"air handler {self.air_handler + 1}"
+        units = [
+            (spec.settings, unit.apply(spec.settings))
+            for unit, spec in zip(self.units, scenario.air_handlers, strict=True)
+        ]
         return inputs_stamp(
             self.climate,
             self.design_percent,
-            name,
-            **{key: getattr(self.unit, key) for key in UNIT_CONTROLS},
+            units,
+            shown=self.air_handler,
+            plant_view=plant_view,
             system=system or self.unit_system,
         )
 
@@ -438,6 +469,7 @@ class DashboardState:
         self.uploaded: dict[str, Weather] = {}
         self._climates: dict[str, ClimatePart] = {}
         self.pinned: DashboardResult | None = None
+        self._pinned_view: tuple | None = None
         self._start(scenario, air_handler)
 
     def _start(self, scenario: Scenario, air_handler: int = 0):
@@ -456,6 +488,7 @@ class DashboardState:
             unit_system=UnitSystem.parse(scenario.unit_system).value,
         )
         self._zone_loads: dict[tuple[str, int], object] = {}
+        self._check_scenario_controls()
         self.result = self._compute(self.inputs, None, "all")
 
     # ------------------------------------------------------------------ facts
@@ -483,6 +516,187 @@ class DashboardState:
         """Allowed coil bypass factor [-] (common practice: 0.03 to 0.3 for cooling coils)."""
         return 0.0, 0.5
 
+    def leaving_dew_point_range(self, index: int | None = None) -> tuple[float, float]:
+        """Allowed leaving dew point of an air handler [°C].
+
+        The model's (:class:`~plantside.air_handler.settings.AirHandlerSettings`): from
+        the coil's lowest apparatus dew point (at least 0 °C) to the supply air
+        temperature set (at most 25 °C).
+        """
+        index = self.inputs.air_handler if index is None else index
+        settings = self.scenario.air_handlers[index].settings
+        supply = self.inputs.units[index].supply_air_temperature
+        return max(0.0, float(settings.apparatus_dew_point_min)), min(25.0, supply)
+
+    def control_range(self, control: str, index: int | None = None) -> tuple[float, float]:
+        """Lowest and highest value of a slider control in SI (what :meth:`validate` accepts)."""
+        if control == "outdoor_air_fraction":
+            return 0.0, 1.0
+        if control == "supply_air_temperature":
+            return self.supply_temperature_range(index)
+        if control == "bypass_factor":
+            return self.bypass_factor_range()
+        if control == "leaving_dew_point":
+            return self.leaving_dew_point_range(index)
+        raise InputRangeError("control", f"{control!r:.40} is not a slider", "a slider control")
+
+    def applies(self, control: str, index: int | None = None) -> str:
+        """ "" when ``control`` applies to the air handler, else why not (shown on the page).
+
+        The outdoor-air fraction and the economizer controls do not apply to a 100 %
+        outdoor-air unit, the bypass factor not to a coil set by its apparatus dew
+        point, the leaving dew point only to a coil that holds one.
+        """
+        index = self.inputs.air_handler if index is None else index
+        unit, name = self.inputs.units[index], self.names[index]
+        if control in ("outdoor_air_fraction", "economizer", "economizer_integrated"):
+            if unit.all_outdoor_air:
+                return f"{name} is a 100 % outdoor-air unit (no return air, no economizer)"
+        if control == "bypass_factor" and unit.coil_model == "apparatus_dew_point":
+            return (
+                f"{name}'s coil is set by its apparatus dew point (scenario file), "
+                "not by a bypass factor"
+            )
+        if control == "leaving_dew_point" and unit.coil_model != "leaving_dew_point":
+            return f"{name}'s coil does not hold a leaving dew point"
+        return ""
+
+    def shown_value(self, control: str, index: int | None = None):
+        """The value of ``control`` the model uses (SI): what the control must show.
+
+        The input, except a leaving dew point carried down with the supply air
+        temperature (the model wants it at most the supply dry bulb).
+        """
+        index = self.inputs.air_handler if index is None else index
+        unit = self.inputs.units[index]
+        if control == "leaving_dew_point" and unit.leaving_dew_point is not None:
+            return min(unit.leaving_dew_point, unit.supply_air_temperature)
+        return getattr(unit, control) if control in UNIT_CONTROLS else getattr(self.inputs, control)
+
+    def _check_scenario_controls(self) -> None:
+        """Refuse a scenario whose control values lie outside the dashboard's controls.
+
+        A slider cannot show a value outside its range; rather than show another
+        value than the one in use, the scenario is refused naming the air handler,
+        the field, its value and the range, in the scenario's units.
+        """
+        system = UnitSystem.parse(self.scenario.unit_system).value
+        for index in range(len(self.inputs.units)):
+            for control, field_name, quantity in (
+                ("supply_air_temperature", "supply_drybulb", "temperature"),
+                ("bypass_factor", "bypass_factor", None),
+                ("leaving_dew_point", "leaving_dew_point", "temperature"),
+            ):
+                if self.applies(control, index):
+                    continue
+                value = self.shown_value(control, index)
+                low, high = self.control_range(control, index)
+                if low - 1e-9 <= value <= high + 1e-9:
+                    continue
+
+                def shown(v, quantity=quantity):
+                    if quantity is None:
+                        return f"{v:.2f}"
+                    number, unit_text = to_display(quantity, v, system)
+                    return f"{float(number):.1f} {unit_text}"
+
+                raise InputRangeError(
+                    field_name,
+                    f"{self.names[index]}: {field_name} = {shown(value)} is outside what the "
+                    f"dashboard's control accepts; allowed: {shown(low)} to {shown(high)}",
+                    f"{shown(low)} to {shown(high)}",
+                )
+
+    def _reachable_message(self, control: str, error) -> str:
+        """The message for a supply temperature or bypass factor the coil cannot reach.
+
+        Says what is wrong at which design condition (as the page shows it) and the
+        limit of the control moved: the lowest reachable supply air temperature, or
+        the highest bypass factor that reaches the supply air temperature set (found
+        by bisection on the model's design points; rounded to the control's
+        resolution on the safe side). "" when the error is not that one.
+        """
+        if getattr(error, "field", "") != "apparatus_dew_point" or control not in (
+            "supply_air_temperature",
+            "bypass_factor",
+        ):
+            return ""
+        index = self.inputs.air_handler
+        unit = self.inputs.units[index]
+        if unit.coil_model == "apparatus_dew_point":
+            return ""
+        scenario_settings = self.scenario.air_handlers[index].settings
+        climate = self._climate_part(self.inputs.climate)
+        zone = design_zone(self._unit_zone_loads(index, climate), "cooling")
+        conditions = [
+            climate.conditions.cooling(kind, self.inputs.design_percent) for kind in DESIGN_KINDS
+        ]
+
+        def failing(value):
+            """The design condition the coil cannot meet with ``control`` = value, or None.
+
+            The model's own design points (as :func:`run_air_handler` computes them).
+            """
+            settings = replace(unit, **{control: value}).apply(scenario_settings)
+            try:
+                cooling_design_points(
+                    settings, zone, climate.conditions.conditions, self.inputs.design_percent
+                )
+            except InputRangeError as problem:
+                if problem.field != "apparatus_dew_point":
+                    raise
+                named = [c for c in conditions if str(getattr(c, "label", "")) in str(problem)]
+                return (named or conditions)[0]
+            return None
+
+        refused = getattr(unit, control)
+        condition = failing(refused)
+        if condition is None:
+            return ""
+        supply = control == "supply_air_temperature"
+        low, high = self.control_range(control, index)
+        bad, good = refused, (high if supply else low)
+        try:
+            if failing(good) is not None:
+                return ""
+            for _ in range(40):
+                middle = 0.5 * (bad + good)
+                if failing(middle) is None:
+                    good = middle
+                else:
+                    bad = middle
+                if abs(good - bad) < 1e-3:
+                    break
+        except PlantsideError:
+            return ""
+        adp_min = float(scenario_settings.apparatus_dew_point_min)
+
+        def text(system):
+            def temperature(value, rounding=round):
+                number = float(to_display("temperature", value, system)[0])
+                unit_text = to_display("temperature", 0.0, system)[1]
+                return f"{rounding(number * 10) / 10:.1f} {unit_text}"
+
+            where = condition_text(condition, system)
+            if supply:
+                limit = temperature(good, math.ceil)
+                return (
+                    f"Supply air temperature {temperature(refused)} is below what the coil "
+                    f"can reach at {where} with bypass factor {unit.bypass_factor:.2f} (the "
+                    f"coil's lowest apparatus dew point is {temperature(adp_min)}). Lowest "
+                    f"reachable supply air temperature: {limit}; allowed: {limit} to "
+                    f"{temperature(high, math.floor)}."
+                )
+            limit = math.floor(good * 100) / 100
+            return (
+                f"Coil bypass factor {refused:.2f} cannot reach the supply air temperature "
+                f"{temperature(unit.supply_air_temperature)} at {where} (the coil's lowest "
+                f"apparatus dew point is {temperature(adp_min)}). Highest bypass factor "
+                f"that reaches it: {limit:.2f}; allowed: 0.00 to {limit:.2f}."
+            )
+
+        return UnitText(text("SI"), text("IP"))
+
     def climate_choices(self) -> tuple[str, ...]:
         """Bundled fictional sites, then uploaded files."""
         return tuple(BUNDLED_CLIMATES) + tuple(self.uploaded)
@@ -490,6 +704,16 @@ class DashboardState:
     # -------------------------------------------------------------- validation
     def validate(self, control: str, value):
         """The value of ``control`` in SI if allowed; raise InputRangeError otherwise."""
+        if control in UNIT_CONTROLS and (reason := self.applies(control)):
+            label = {"leaving_dew_point": "Leaving dew point"}.get(control, control)
+            raise InputRangeError(
+                control,
+                f"{label.replace('_', ' ').capitalize()} does not apply: {reason}",
+                "not adjustable for this air handler",
+            )
+        if control == "leaving_dew_point":
+            low, high = self.leaving_dew_point_range()
+            return _finite_float("Leaving dew point", value, low, high, "°C")
         if control == "outdoor_air_fraction":
             return _finite_float("Outdoor-air fraction", value, 0.0, 1.0, "")
         if control == "supply_air_temperature":
@@ -584,7 +808,10 @@ class DashboardState:
             for name in CONTROLS:
                 self.messages[name] = ""
             text = str(error)
-            if getattr(error, "field", "") in _HIDDEN_FIELDS:
+            reachable = self._reachable_message(control, error)
+            if reachable:
+                blamed, text = control, reachable
+            elif getattr(error, "field", "") in set(_HIDDEN_FIELDS) - {"leaving_dew_point"}:
                 # a scenario setting the page does not show: say which control it concerns
                 text = (
                     f"Supply air temperature: conflicts with a setting of this air handler "
@@ -798,8 +1025,9 @@ class DashboardState:
         cautions = []
         for unit in units:
             for text in (*unit.design.governing.cautions, *unit.hourly.attrs.get("cautions", ())):
-                if text not in cautions:
-                    cautions.append(text)
+                named = f"{unit.name}: {text}"  # which air handler, as the command line says
+                if named not in cautions:
+                    cautions.append(named)
         return DashboardResult(
             inputs=inputs,
             climate=climate,
@@ -815,6 +1043,27 @@ class DashboardState:
         )
 
     # ----------------------------------------------------------------- pinning
+    def pinned_result(self) -> DashboardResult | None:
+        """The pinned "A", seen on the air handler the result on show is of.
+
+        "A" is a whole study: after another air handler is chosen, B is compared with
+        A's same air handler (its figures, loads and charts), never with the one
+        that was shown when A was pinned.
+        """
+        pinned = self.pinned
+        if pinned is None:
+            return None
+        index = self.result.inputs.air_handler
+        if pinned.inputs.air_handler == index:
+            return pinned
+        key = (id(pinned), index)
+        if self._pinned_view is None or self._pinned_view[0] != key:
+            seen = self._assemble(
+                replace(pinned.inputs, air_handler=index), pinned.climate, pinned.units
+            )
+            self._pinned_view = (key, pinned, seen)  # holds ``pinned`` so its id stays its own
+        return self._pinned_view[2]
+
     def pin(self) -> None:
         """Freeze the current result as "A"."""
         self.pinned = self.result
@@ -824,6 +1073,21 @@ class DashboardState:
         """Forget the pinned result."""
         self.pinned = None
         self._record("pin", (), time.perf_counter(), ok=not self._failing())
+
+
+class UnitText(str):
+    """A message written in both unit systems: the SI text, with ``ip`` the I-P one.
+
+    :func:`display_text` picks the one asked for instead of converting figures
+    already rounded in SI (which would not match the figures on screen).
+    """
+
+    ip: str
+
+    def __new__(cls, si: str, ip: str):
+        text = super().__new__(cls, si)
+        text.ip = ip
+        return text
 
 
 _FIGURE = r"-?\d[\d,]*(?:\.\d+)?"
@@ -839,6 +1103,8 @@ def display_text(text: str, system: str) -> str:
     these read in °F and tons (:func:`plantside.units.to_display`), ranges
     ("4 to 23.5 °C") included. Other text is left as it is.
     """
+    if isinstance(text, UnitText):
+        return text.ip if system == "IP" else str(text)
     if system != "IP" or not text:
         return text
     quantities = {"°C": "temperature", "kW": "power"}
