@@ -53,8 +53,9 @@ def model_figures(scenario, index, percent=0.4, climate=None, **changes):
     settings = replace(spec.settings, **changes)
     weather = load_bundled_climate(climate or scenario.climate)
     conditions = design_conditions_from_weather(weather)
-    summary = cooling_design_points(settings, spec.zone, conditions.conditions, percent=percent)
-    year = hourly_year(settings, weather, spec.zone)
+    zone = scenario.zone_loads(index, weather)  # the zone model with the site's sun attached
+    summary = cooling_design_points(settings, zone, conditions.conditions, percent=percent)
+    year = hourly_year(settings, weather, zone)
     return summary, year
 
 
