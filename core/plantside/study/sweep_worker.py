@@ -1,0 +1,232 @@
+"""What a sweep's workers run: one batch of cases, one study each, one row per case.
+
+:func:`run_batch` runs each case with :func:`plantside.study.run.run_study` and keeps
+its headline results (:func:`case_headlines`); a case the model refuses is a row with
+status ``failed`` and the error's field and message. Weather CSVs are read once per
+process (:func:`_weather`). The local pool preloads this module in its forkserver
+(:mod:`plantside.study.sweep_local`), so a worker starts with it imported.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Sequence
+from functools import lru_cache
+from pathlib import Path
+
+import numpy as np
+import pandas as pd
+
+from plantside.climate.weather import Weather
+from plantside.errors import NAME_EXCERPT_CHARS, PlantsideError, excerpt
+from plantside.study.run import GENERAL_CAUTIONS, StudyResult, heating_load_columns, run_study
+from plantside.study.scenario import Scenario
+from plantside.study.sweep_cases import Sweep, SweepCase
+
+__all__ = [
+    "CASE_FAILED",
+    "CASE_OK",
+    "STATUS_COLUMNS",
+    "WORKER_DIED",
+    "case_headlines",
+    "case_row",
+    "failed_rows",
+    "headline_columns",
+    "run_batch",
+    "typed_table",
+]
+
+#: Share of the design capacity above which hours are counted (a plant running near
+#: full load; common practice for a "hours near capacity" figure, no source).
+NEAR_CAPACITY_FRACTION = 0.75
+#: Columns after the results: ``status`` (``ok`` or ``failed``), the failed case's
+#: ``error_field`` and ``error_message`` (empty for a case that ran).
+STATUS_COLUMNS = ("status", "error_field", "error_message")
+CASE_OK = "ok"
+CASE_FAILED = "failed"
+#: Longest error message kept in the table [characters].
+MAX_ERROR_CHARS = 200
+#: ``error_field`` and ``error_message`` of the cases of a batch whose worker died twice.
+WORKER_DIED = (
+    "worker",
+    "worker died: the process running this case's batch was killed twice (out of memory, "
+    "or stopped from outside); rerun with retry of failed cases to try again",
+)
+
+
+# ---------------------------------------------------------------------------------------
+# one case, one batch (what the workers run)
+# ---------------------------------------------------------------------------------------
+def headline_columns(scenario: Scenario) -> list[str]:
+    """Result columns of the sweep table for air handlers named as in ``scenario``."""
+    per_unit = (
+        "design_coil_total_kW",
+        "design_coil_sensible_kW",
+        "design_coil_latent_kW",
+        "governing_condition",
+        "annual_peak_coil_total_kW",
+        "annual_coil_total_kWh",
+        "heating_design_kW",
+    )
+    names = [f"{c}[{spec.settings.name}]" for spec in scenario.air_handlers for c in per_unit]
+    return [
+        *names,
+        "cooling_governing_condition",
+        "cooling_design_load_kW",
+        "cooling_design_capacity_kW",
+        "cooling_annual_peak_kW",
+        "cooling_sum_of_coil_peaks_kW",
+        "cooling_energy_kWh",
+        "cooling_hours_with_load",
+        "cooling_hours_above_75_percent_capacity",
+        "cooling_hours_above_capacity",
+        "heating_design_load_kW",
+        "heating_design_capacity_kW",
+        "heating_annual_peak_kW",
+        "heating_energy_kWh",
+        "caution_count",
+    ]
+
+
+def case_headlines(result: StudyResult) -> dict:
+    """The headline results of one study, SI, keyed as :func:`headline_columns`.
+
+    Parameters
+    ----------
+    result : StudyResult
+        A finished :func:`plantside.study.run.run_study`.
+
+    Returns
+    -------
+    dict
+        Per air handler (``name`` in brackets): design coil total, sensible and latent
+        load [kW] at its governing condition, the governing condition's kind, the
+        year's peak coil load [kW] and coil energy [kWh], the heating design load
+        [kW]. For the plants: governing condition, design load and design capacity
+        (with margin) [kW], the year's peak [kW] and energy [kWh], the sum of the
+        coil peaks [kW], hours with load, hours above 75 % of the design capacity and
+        above it [h]; the number of cautions beyond the general ones.
+    """
+    row = {}
+    for unit in result.air_handlers:
+        design = unit.cooling_design
+        governing = design.points[design.governing]
+        tag = f"[{unit.name}]"
+        row[f"design_coil_total_kW{tag}"] = float(governing.loads["coil_total_kW"])
+        row[f"design_coil_sensible_kW{tag}"] = float(governing.loads["coil_sensible_kW"])
+        row[f"design_coil_latent_kW{tag}"] = float(governing.loads["coil_latent_kW"])
+        row[f"governing_condition{tag}"] = str(design.governing)
+        row[f"annual_peak_coil_total_kW{tag}"] = float(unit.hourly["coil_total_kW"].max())
+        row[f"annual_coil_total_kWh{tag}"] = float(unit.hourly["coil_total_kW"].sum())
+        row[f"heating_design_kW{tag}"] = float(
+            sum(unit.heating_design.loads[c] for c in heating_load_columns)
+        )
+    cooling, heating = result.cooling, result.heating
+    load = cooling.hourly_load
+    capacity = cooling.design_capacity
+    row["cooling_governing_condition"] = str(cooling.governing)
+    row["cooling_design_load_kW"] = float(cooling.design_load)
+    row["cooling_design_capacity_kW"] = float(capacity)
+    row["cooling_annual_peak_kW"] = cooling.annual_peak
+    row["cooling_sum_of_coil_peaks_kW"] = float(
+        sum(u.hourly["coil_total_kW"].max() for u in result.air_handlers)
+    )
+    row["cooling_energy_kWh"] = cooling.annual_energy
+    row["cooling_hours_with_load"] = int(np.count_nonzero(load > 0.0))
+    row["cooling_hours_above_75_percent_capacity"] = int(
+        np.count_nonzero(load > NEAR_CAPACITY_FRACTION * capacity)
+    )
+    row["cooling_hours_above_capacity"] = int(np.count_nonzero(load > capacity))
+    row["heating_design_load_kW"] = float(heating.design_load)
+    row["heating_design_capacity_kW"] = float(heating.design_capacity)
+    row["heating_annual_peak_kW"] = heating.annual_peak
+    row["heating_energy_kWh"] = heating.annual_energy
+    row["caution_count"] = len(result.cautions) - len(GENERAL_CAUTIONS)
+    return row
+
+
+@lru_cache(maxsize=8)
+def _weather(weather_file: str, digest: str, units, altitude, fill_gaps) -> Weather:
+    """A weather CSV read once per process (``digest`` keys an edited file afresh)."""
+    from plantside.climate.weather_csv import read_weather_csv
+
+    return read_weather_csv(weather_file, units=units, altitude=altitude, fill_gaps=fill_gaps)
+
+
+def _weather_for(scenario: Scenario, digest: str) -> Weather:
+    if scenario.climate is not None:
+        return scenario.load_weather()  # bundled: cached per process in plantside.climate.bundled
+    path = Path(scenario.weather_file)
+    if not path.is_absolute():
+        path = Path(scenario.base_dir) / path
+    altitude = scenario.altitude
+    if altitude is not None and str(scenario.unit_system) == "IP":
+        from plantside.units import to_display
+
+        altitude = float(to_display("length", altitude, "IP")[0])
+    return _weather(str(path), digest, scenario.weather_units, altitude, scenario.fill_gaps)
+
+
+def case_row(sweep: Sweep, case: SweepCase) -> dict:
+    row = {"case_index": case.index, "case_id": case.case_id, "climate": case.climate.label}
+    for axis, value in zip(sweep.axes, case.values, strict=True):
+        row[axis.column] = np.nan if value is None else value
+    return row
+
+
+def _failure(error: BaseException) -> dict:
+    """``status``, ``error_field``, ``error_message`` of a case the model refused."""
+    field = getattr(error, "field", None)
+    if field is None:  # a file that cannot be used: the file is the field
+        field = getattr(error, "source", None) or getattr(error, "filename", None) or ""
+    return {
+        "status": CASE_FAILED,
+        "error_field": excerpt(field, NAME_EXCERPT_CHARS),
+        "error_message": excerpt(error, MAX_ERROR_CHARS),
+    }
+
+
+def run_batch(sweep: Sweep, cases: Sequence[SweepCase]) -> pd.DataFrame:
+    """Run a batch of cases one study each; one row per case (what a worker does).
+
+    A case the model refuses (any :class:`plantside.errors.PlantsideError`, or a file
+    it cannot read) is a row with status ``failed``, the error's field and message
+    (at most ``MAX_ERROR_CHARS``) and no results; the batch goes on. Errors cross
+    process and cluster boundaries as these plain values (our exception types take
+    several constructor arguments and do not unpickle).
+    """
+    rows = []
+    ran = {"status": CASE_OK, "error_field": "", "error_message": ""}
+    for case in cases:
+        try:
+            scenario = sweep.scenario_for(case)
+            weather = _weather_for(scenario, case.climate.digest)
+            result = run_study(scenario, weather)
+        except (PlantsideError, OSError) as error:  # a bad file, a refused value
+            rows.append(case_row(sweep, case) | _failure(error))
+            continue
+        rows.append(case_row(sweep, case) | case_headlines(result) | ran)
+    return typed_table(pd.DataFrame(rows), sweep)
+
+
+def failed_rows(sweep: Sweep, cases: Sequence[SweepCase], field: str, message: str):
+    """Rows of ``cases`` recorded failed with one ``field`` and ``message`` (no results)."""
+    failure = {"status": CASE_FAILED, "error_field": field, "error_message": message}
+    return typed_table(pd.DataFrame([case_row(sweep, case) | failure for case in cases]), sweep)
+
+
+def typed_table(frame: pd.DataFrame, sweep: Sweep) -> pd.DataFrame:
+    """Fixed column order and dtypes, so parts from any worker concatenate cleanly."""
+    columns = ["case_index", "case_id", "climate", *[a.column for a in sweep.axes]]
+    results = headline_columns(sweep.base)
+    frame = frame.reindex(columns=[*columns, *results, *STATUS_COLUMNS])
+    for axis in sweep.axes:
+        frame[axis.column] = frame[axis.column].astype(float)
+    for column in results:  # a part of failed cases only has no value to type them by
+        text = column.startswith(("governing_condition", "cooling_governing_condition"))
+        if text:
+            frame[column] = frame[column].astype("str")  # missing stays missing
+        elif frame[column].isna().any():
+            frame[column] = frame[column].astype(float)
+    for column in STATUS_COLUMNS:
+        frame[column] = frame[column].fillna("").astype("str")
+    return frame
