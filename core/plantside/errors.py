@@ -15,6 +15,7 @@ __all__ = [
     "InputRangeError",
     "PlantsideError",
     "ScenarioError",
+    "check_choice",
     "check_range",
     "excerpt",
 ]
@@ -148,3 +149,31 @@ def check_range(
         )
         raise InputRangeError(field, message.strip(), allowed, np.flatnonzero(bad))
     return arr
+
+
+def check_choice(field: str, value, allowed):
+    """Raise :class:`InputRangeError` unless ``value`` is one of ``allowed``.
+
+    Parameters
+    ----------
+    field : str
+        Name of the setting, as the caller calls it (e.g. ``"condenser"``).
+    value
+        The value given.
+    allowed : sequence of str
+        The values accepted, in the order the message lists them.
+
+    Returns
+    -------
+    object
+        ``value``, for chaining.
+
+    Examples
+    --------
+    >>> check_choice("condenser", "water", ("water", "air"))
+    'water'
+    """
+    if value not in allowed:
+        listed = ", ".join(allowed)
+        raise InputRangeError(field, f"{field} = {value!r} is not one of {listed}", listed)
+    return value

@@ -29,7 +29,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from plantside.errors import InputRangeError, check_range
+from plantside.errors import check_choice, check_range
 
 __all__ = [
     "BOILER_TYPES",
@@ -65,13 +65,7 @@ def _out(array):
 
 
 def _check_kind(kind: str) -> str:
-    if kind not in BOILER_TYPES:
-        raise InputRangeError(
-            "boiler_type",
-            f"boiler_type = {kind!r} is not one of {', '.join(BOILER_TYPES)}",
-            ", ".join(BOILER_TYPES),
-        )
-    return kind
+    return check_choice("boiler_type", kind, BOILER_TYPES)
 
 
 def _shape(kind, return_temperature, firing_rate):

@@ -32,8 +32,13 @@ from functools import partial
 import numpy as np
 import pandas as pd
 
-from plantside.errors import InputRangeError, check_range
-from plantside.plant.chillers import ChillerCurves, chiller_hours, condenser_entering_temperature
+from plantside.errors import InputRangeError, check_choice, check_range
+from plantside.plant.chillers import (
+    CONDENSER_TYPES,
+    ChillerCurves,
+    chiller_hours,
+    condenser_entering_temperature,
+)
 from plantside.plant.efficient_staging import EfficientStaging, stage_on_efficiency
 from plantside.plant.heat_rejection import (
     DEFAULT_TOWER_FAN_POWER_PER_HEAT,
@@ -134,12 +139,7 @@ class CondenserSettings:
     exchanger_approach: float = 1.5
 
     def __post_init__(self):
-        if self.condenser not in ("water", "air"):
-            raise InputRangeError(
-                "condenser",
-                f"condenser = {self.condenser!r} is not one of water, air",
-                "water, air",
-            )
+        check_choice("condenser", self.condenser, CONDENSER_TYPES)
         check_range("tower_approach", self.tower_approach, 1.0, 15.0, "K")
         check_range("tower_range", self.tower_range, 1.0, 20.0, "K")
         check_range("condenser_water_floor", self.condenser_water_floor, 5.0, 30.0, "°C")

@@ -73,7 +73,7 @@ from functools import lru_cache
 
 import numpy as np
 
-from plantside.errors import InputRangeError, check_range
+from plantside.errors import InputRangeError, check_choice, check_range
 from plantside.plant.efficiency import (
     IPLV_LOAD_POINTS,
     IPLV_WEIGHTS,
@@ -132,13 +132,7 @@ def _out(array):
 
 
 def _check_condenser(condenser: str) -> str:
-    if condenser not in CONDENSER_TYPES:
-        raise InputRangeError(
-            "condenser",
-            f"condenser = {condenser!r} is not one of {', '.join(CONDENSER_TYPES)}",
-            ", ".join(CONDENSER_TYPES),
-        )
-    return condenser
+    return check_choice("condenser", condenser, CONDENSER_TYPES)
 
 
 def biquadratic(coefficients, x, y):

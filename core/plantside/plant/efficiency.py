@@ -79,7 +79,7 @@ import numpy as np
 import pandas as pd
 
 from plantside.constants import KW_PER_TON, W_PER_BTUH
-from plantside.errors import InputRangeError, check_range
+from plantside.errors import InputRangeError, check_choice, check_range
 
 __all__ = [
     "BELOW_LOWEST_RULES",
@@ -112,13 +112,7 @@ CD_SLOPE = 0.13
 
 
 def _check_metric(metric: str) -> str:
-    if metric not in EFFICIENCY_METRICS:
-        raise InputRangeError(
-            "metric",
-            f"metric = {metric!r} is not one of {', '.join(EFFICIENCY_METRICS)}",
-            ", ".join(EFFICIENCY_METRICS),
-        )
-    return metric
+    return check_choice("metric", metric, EFFICIENCY_METRICS)
 
 
 def _efficiency_unit(metric: str) -> str:
@@ -258,12 +252,7 @@ def input_power_ratio_from_part_load_ratio(
         get input power [kW].
     """
     _check_metric(metric)
-    if below_lowest not in BELOW_LOWEST_RULES:
-        raise InputRangeError(
-            "below_lowest",
-            f"below_lowest = {below_lowest!r} is not one of {', '.join(BELOW_LOWEST_RULES)}",
-            ", ".join(BELOW_LOWEST_RULES),
-        )
+    check_choice("below_lowest", below_lowest, BELOW_LOWEST_RULES)
     cop = np.asarray(cop_from_efficiency(_four_efficiencies(efficiencies, metric), metric))
     x = check_range("part_load_ratio", part_load_ratio, 0.0, None, "")
     points = np.asarray(IPLV_LOAD_POINTS)[::-1]  # ascending 0.25 .. 1.0
@@ -450,12 +439,7 @@ def project_weighted_efficiency(
     (6.46, 6.745)
     """
     _check_metric(metric)
-    if weights_basis not in ("energy", "hours"):
-        raise InputRangeError(
-            "weights_basis",
-            f"weights_basis = {weights_basis!r} is not one of energy, hours",
-            "energy, hours",
-        )
+    check_choice("weights_basis", weights_basis, ("energy", "hours"))
     loads, caps = _machine_load_matrix(machine_loads, capacities)
     values = _four_efficiencies(efficiencies, metric)
     if values.shape != (4,):
