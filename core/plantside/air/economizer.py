@@ -351,21 +351,19 @@ def _damper_control(
     """
     if control is EconomizerControl.NONE:
         return x_min, np.where(heating, MODE_HEATING, MODE_MINIMUM_OUTDOOR_AIR).astype(np.int8)
+    # Modulating: the damper position for the set point, never below the minimum.
+    x_need = _fraction_for_setpoint(ts, w_o, h_o, w_r, h_r)
+    x_mod = np.fmin(np.fmax(x_need, x_min), 1.0)  # fmax: NaN (no solution) -> minimum
     if mode is not None:
-        x_need = _fraction_for_setpoint(ts, w_o, h_o, w_r, h_r)
-        x_mod = np.fmin(np.fmax(x_need, x_min), 1.0)  # fmax: NaN (no solution) -> minimum
         fraction = np.where(
             mode == MODE_FREE_COOLING, x_mod, np.where(mode == MODE_INTEGRATED, 1.0, x_min)
         )
         return fraction, mode
     exceeded = _high_limit_exceeded(control, t_o, h_o, t_r, h_r, t_limit, h_limit)
-    x_need = _fraction_for_setpoint(ts, w_o, h_o, w_r, h_r)
     cold = t_o <= ts
-    # Cold outdoor air: modulate to the set point, never below the minimum.
-    x_cold = np.fmin(np.fmax(x_need, x_min), 1.0)  # fmax: NaN (no solution) -> minimum
-    modulating = cold & (x_cold > x_min)
+    modulating = cold & (x_mod > x_min)
     closed = exceeded | heating
-    fraction = np.where(closed, x_min, np.where(cold, x_cold, 1.0 if integrated else x_min))
+    fraction = np.where(closed, x_min, np.where(cold, x_mod, 1.0 if integrated else x_min))
     mode_open = np.where(
         cold,
         np.where(modulating, MODE_FREE_COOLING, MODE_MINIMUM_OUTDOOR_AIR),

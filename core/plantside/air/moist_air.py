@@ -160,21 +160,11 @@ def _check_not_above(field, value, limit, limit_text, unit):
 # saturation and pressure
 # ---------------------------------------------------------------------------------------
 def _ln_pws_ice(kelvin):
-    return (
-        _C1 / kelvin
-        + _C2
-        + kelvin * (_C3 + kelvin * (_C4 + kelvin * (_C5 + kelvin * _C6)))
-        + _C7 * np.log(kelvin)
-    )
+    return _ln_pws_on_form(kelvin, _ICE_FORM)
 
 
 def _ln_pws_water(kelvin):
-    return (
-        _C8 / kelvin
-        + _C9
-        + kelvin * (_C10 + kelvin * (_C11 + kelvin * _C12))
-        + _C13 * np.log(kelvin)
-    )
+    return _ln_pws_on_form(kelvin, _WATER_FORM)
 
 
 def _piecewise(drybulb, ice_form, water_form):
@@ -194,43 +184,12 @@ def _ln_pws(drybulb):
 
 
 def _ln_pws_with_slope(drybulb):
-    """ln pws [ln Pa] and d(ln pws)/dt [1/K] in one pass (for Newton iterations).
+    """ln pws [ln Pa] and d(ln pws)/dt [1/K] (for Newton iterations).
 
-    Same Eqs. 5 and 6 of [1] as :func:`_ln_pws` with their derivative, sharing ln T
-    and 1/T between the value and the slope.
+    Same Eqs. 5 and 6 of [1] as :func:`_ln_pws` with their derivative: ice at or below
+    the triple point, water above.
     """
-    kelvin = drybulb + ZERO_CELSIUS
-    inverse = 1.0 / kelvin
-    log_kelvin = np.log(kelvin)
-    on_ice = drybulb <= TRIPLE_POINT_C
-    any_ice = bool(np.any(on_ice))
-    all_ice = any_ice and bool(np.all(on_ice))
-    if not all_ice:
-        water = (
-            _C8 * inverse
-            + _C9
-            + kelvin * (_C10 + kelvin * (_C11 + kelvin * _C12))
-            + _C13 * log_kelvin
-        )
-        water_slope = (
-            inverse * (_C13 - _C8 * inverse) + _C10 + kelvin * (2 * _C11 + 3 * _C12 * kelvin)
-        )
-        if not any_ice:
-            return water, water_slope
-    ice = (
-        _C1 * inverse
-        + _C2
-        + kelvin * (_C3 + kelvin * (_C4 + kelvin * (_C5 + kelvin * _C6)))
-        + _C7 * log_kelvin
-    )
-    ice_slope = (
-        inverse * (_C7 - _C1 * inverse)
-        + _C3
-        + kelvin * (2 * _C4 + kelvin * (3 * _C5 + 4 * _C6 * kelvin))
-    )
-    if all_ice:
-        return ice, ice_slope
-    return np.where(on_ice, ice, water), np.where(on_ice, ice_slope, water_slope)
+    return _ln_pws_with_slope_on_form(drybulb, _form_coefficients(drybulb <= TRIPLE_POINT_C))
 
 
 # Eqs. 5 and 6 in one layout, ln pws = k0/T + k1 + k2 T + k3 T^2 + k4 T^3 + k5 T^4 + k6 ln T,
@@ -256,16 +215,21 @@ def _ln_pws_with_slope_on_form(drybulb, k):
     (each form extrapolated past the triple point where an iterate strays there)."""
     kelvin = drybulb + ZERO_CELSIUS
     inverse = 1.0 / kelvin
-    value = (
-        k[0] * inverse
+    slope = (
+        inverse * (k[6] - k[0] * inverse) + k[2] + kelvin * (k[7] + kelvin * (k[8] + kelvin * k[9]))
+    )
+    return _ln_pws_on_form(kelvin, k), slope
+
+
+def _ln_pws_on_form(kelvin, k):
+    """ln(pws / Pa) of Eq. 5 (ice) or 6 (water) of [1], written once for both: ``k`` is
+    :data:`_ICE_FORM`, :data:`_WATER_FORM`, or per element from :func:`_form_coefficients`."""
+    return (
+        k[0] / kelvin
         + k[1]
         + kelvin * (k[2] + kelvin * (k[3] + kelvin * (k[4] + kelvin * k[5])))
         + k[6] * np.log(kelvin)
     )
-    slope = (
-        inverse * (k[6] - k[0] * inverse) + k[2] + kelvin * (k[7] + kelvin * (k[8] + kelvin * k[9]))
-    )
-    return value, slope
 
 
 #: Saturation pressure at 0 °C [Pa] as :func:`saturation_vapor_pressure` gives it (ice form).
@@ -587,6 +551,17 @@ def _check_humidity_ratio(drybulb, humidity_ratio, pressure):
     _check_not_above("humidity_ratio", humidity_ratio, ws, "saturation at the dry bulb", "kg/kg")
 
 
+def _state_inputs(drybulb, humidity_ratio, pressure, check=True):
+    """Dry bulb, humidity ratio and pressure of a moist-air state as float arrays; with
+    ``check``, each in range and the humidity ratio at most saturation at the dry bulb."""
+    t, w, p = _as_float(drybulb), _as_float(humidity_ratio), _as_float(pressure)
+    if check:
+        _check_drybulb("drybulb", t)
+        _check_pressure(p)
+        _check_humidity_ratio(t, w, p)
+    return t, w, p
+
+
 def humidity_ratio_from_relative_humidity(drybulb, relative_humidity, pressure, *, check=True):
     r"""Humidity ratio from dry bulb and relative humidity.
 
@@ -671,11 +646,7 @@ def relative_humidity_from_humidity_ratio(drybulb, humidity_ratio, pressure, *, 
     >>> round(float(relative_humidity_from_humidity_ratio(24.0, 0.0093, 101325.0)), 3)
     0.5
     """
-    t, w, p = _as_float(drybulb), _as_float(humidity_ratio), _as_float(pressure)
-    if check:
-        _check_drybulb("drybulb", t)
-        _check_pressure(p)
-        _check_humidity_ratio(t, w, p)
+    t, w, p = _state_inputs(drybulb, humidity_ratio, pressure, check)
     pw = p * w / (MOLAR_MASS_RATIO + w)
     return _out(np.minimum(pw / np.exp(_ln_pws(t)), 1.0))
 
@@ -725,6 +696,22 @@ def humidity_ratio_from_dew_point(dew_point, pressure, *, check=True):
 def _ln_kpa(vapor_pressure):
     """ln of the vapour pressure in kPa (floored at 1e-9 kPa, far below -100 °C)."""
     return np.log(np.maximum(vapor_pressure, 1e-6) * 1e-3)
+
+
+def _store_step(x, active, x_new, moving):
+    """Write a Newton step into ``x`` and return the elements still to iterate.
+
+    ``active`` is None while every element is iterated (``x_new`` holds them all), else
+    the flat indices iterated (``x_new`` holds those). Returns None (all) while more
+    than half are ``moving``, else the indices of those still moving (empty when done):
+    once most elements are done, the rest are iterated alone (an active set).
+    """
+    if active is None:
+        x[:] = x_new
+        left = np.flatnonzero(moving)
+        return None if left.size > x.size // 2 else left
+    x[active] = x_new
+    return active[moving]
 
 
 def _dew_point_first_guess(alpha):
@@ -801,14 +788,7 @@ def dew_point_from_vapor_pressure(vapor_pressure, *, check=True):
         # ln pws is increasing and concave with |f''/(2 f')| = about 1/T < 0.006 /K, so
         # after a Newton step s the error left is below 0.006 s^2: a step under 1e-3 K
         # leaves less than 1e-8 K.
-        moving = np.abs(step) >= 1e-3
-        if active is None:
-            flat_td[:] = x_new
-            left = np.flatnonzero(moving)
-            active = None if left.size > flat_td.size // 2 else left
-        else:
-            flat_td[active] = x_new
-            active = active[moving]
+        active = _store_step(flat_td, active, x_new, np.abs(step) >= 1e-3)
         if active is not None and active.size == 0:
             break
     return _out(td)
@@ -1011,11 +991,7 @@ def wet_bulb_from_humidity_ratio(drybulb, humidity_ratio, pressure, *, check=Tru
     >>> round(float(wet_bulb_from_humidity_ratio(30.0, 0.0106, 101325.0)), 2)  # psychrolib: 20.06
     20.06
     """
-    t, w, p = _as_float(drybulb), _as_float(humidity_ratio), _as_float(pressure)
-    if check:
-        _check_drybulb("drybulb", t)
-        _check_pressure(p)
-        _check_humidity_ratio(t, w, p)
+    t, w, p = _state_inputs(drybulb, humidity_ratio, pressure, check)
     t, w, p = np.broadcast_arrays(t, w, p)
     shape = t.shape
     t, w, p = (np.array(a, dtype=float).ravel() for a in (t, w, p))
@@ -1078,14 +1054,7 @@ def wet_bulb_from_humidity_ratio(drybulb, humidity_ratio, pressure, *, check=Tru
         # Newton converges quadratically: |F''/(2 F')| stays below 0.11 /K from -100 to
         # 200 °C and 30 to 120 kPa (about 0.03 /K at room conditions), so after a
         # Newton step under 1e-3 K the error left is below 1.1e-7 K: the element is done.
-        moving = np.abs(x_new - xa) >= 1e-3
-        if active is None:
-            x = x_new
-            left = np.flatnonzero(moving)
-            active = None if left.size > x.size // 2 else left
-        else:
-            x[active] = x_new
-            active = active[moving]
+        active = _store_step(x, active, x_new, np.abs(x_new - xa) >= 1e-3)
         if active is not None and active.size == 0:
             break
     return _out(x.reshape(shape))
@@ -1320,11 +1289,7 @@ def degree_of_saturation(drybulb, humidity_ratio, pressure, *, check=True):
     >>> round(float(degree_of_saturation(24.0, 0.0093, 101325.0)), 4)  # psychrolib: 0.4926
     0.4926
     """
-    t, w, p = _as_float(drybulb), _as_float(humidity_ratio), _as_float(pressure)
-    if check:
-        _check_drybulb("drybulb", t)
-        _check_pressure(p)
-        _check_humidity_ratio(t, w, p)
+    t, w, p = _state_inputs(drybulb, humidity_ratio, pressure, check)
     return _out(w / saturation_humidity_ratio(t, p, check=False))
 
 
@@ -1353,10 +1318,7 @@ class AirState:
     pressure: np.ndarray = STANDARD_PRESSURE
 
     def __post_init__(self):
-        t, w, p = (_as_float(v) for v in (self.drybulb, self.humidity_ratio, self.pressure))
-        _check_drybulb("drybulb", t)
-        _check_pressure(p)
-        _check_humidity_ratio(t, w, p)
+        t, w, p = _state_inputs(self.drybulb, self.humidity_ratio, self.pressure)
         object.__setattr__(self, "drybulb", _out(t))
         object.__setattr__(self, "humidity_ratio", _out(w))
         object.__setattr__(self, "pressure", _out(p))
