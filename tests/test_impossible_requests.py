@@ -261,9 +261,9 @@ def test_negative_outdoor_airflow_or_more_than_the_supply_is_refused():
 
 def test_zero_airflow_in_a_scenario_names_the_file_field():
     text = SI_SCENARIO.read_text(encoding="utf-8")
-    assert "supply_airflow = 6000.0" in text
-    for value in ("0", "-6000.0", "nan", "inf"):
-        bad = text.replace("supply_airflow = 6000.0", f"supply_airflow = {value}", 1)
+    assert "supply_airflow = 4200.0" in text
+    for value in ("0", "-4200.0", "nan", "inf"):
+        bad = text.replace("supply_airflow = 4200.0", f"supply_airflow = {value}", 1)
         with pytest.raises(ScenarioError) as caught:
             loads_scenario(bad, "office.toml", SCENARIOS)
         assert caught.value.field == "air_handler[1].supply_airflow", str(caught.value)
@@ -388,7 +388,7 @@ def test_ventilation_need_above_the_supply_airflow_is_refused():
         # cfm (1 cfm = 0.00047194745 m³/s, NIST SP 811); AHU-2 gives 0.2 x 0.3 x 14,000 =
         # 840 cfm at its lowest airflow, above the 500 cfm need
         ("quillon_clinic.toml", 500.0, 500.0 * 0.00047194745),
-        # L/s; AHU-1 gives 0.15 x 0.3 x 6,000 = 270 L/s at its lowest airflow
+        # L/s; AHU-1 gives 0.21 x 0.3 x 4,200 = 265 L/s at its lowest airflow
         ("linden_office_si.toml", 200.0, 0.2),
     ],
 )
