@@ -1,7 +1,7 @@
 """The air handler: design points and the hourly year, against the outside world.
 
 Sources, named beside each check:
-- ASHRAE Handbook Fundamentals 2017 (SI), Ch. 1: Eq. 32 (enthalpy), Eq. 26 (specific
+- ASHRAE Handbook Fundamentals 2017 (SI), Ch. 1: Eq. 30 (enthalpy), Eq. 26 (specific
   volume), mixing and cooling-and-dehumidifying balances, q = m_da [(h1 - h2) - (W1 - W2) h_w].
 - psychrolib 2.5 (independent scalar implementation of Ch. 1) for every state used to
   check a result.

@@ -207,7 +207,7 @@ def test_clinic_outdoor_air_unit_at_design_by_hand():
     h1 = psychrolib.GetMoistAirEnthalpy(t1, w1) / 1000.0
     h2 = psychrolib.GetMoistAirEnthalpy(t2, w2) / 1000.0
     coil = m * ((h1 - h2) - (w1 - w2) * 4.186 * t2)
-    # psychrolib's enthalpy uses the same Eq. 32; 0.1 % covers the dew-point tolerance
+    # psychrolib's enthalpy uses the same Eq. 30; 0.1 % covers the dew-point tolerance
     assert row["coil_total_kW"] == pytest.approx(coil, rel=1e-3)
     # 5: reheat to the coil leaving target
     fan_rise = row["fan_heat_kW"] / (m * (1.006 + 1.86 * w2))
@@ -304,7 +304,7 @@ def test_reheat_source_and_passive_exchanger_close_the_balance(clinic_year, sour
     assert dried.sum() > 1000
     # the exchanger pre-cools the coil's entering air by the heat it gives: mixed air
     # (+ preheat) -> coil entering, and coil leaving -> supply (draw-through fan), each
-    # from the reported states (Eq. 32 enthalpies), match the reported heat to 0.1 %
+    # from the reported states (Eq. 30 enthalpies), match the reported heat to 0.1 %
     f = frame[dried]
     m = f["supply_mass_flow_kgs"]
     precool = m * (f["mixed_enthalpy_kJkg"] - f["coil_entering_enthalpy_kJkg"]) + f["preheat_kW"]

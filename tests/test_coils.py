@@ -196,7 +196,7 @@ def test_runaround_exchanger_meets_its_effectiveness_and_limits():
     t_dp2 = psychrolib.GetTDewPointFromHumRatio(t1, w2, P)
     t_adp = float(dew_point_coil_process(t1, w1, w2, bf, P).apparatus_dew_point)
     free = runaround_exchange(m, t1, w1, t_dp1, w2, t_dp2, t_adp, bf, 40.0, eps)
-    c1, c2 = 1.006 + 1.86 * w1, 1.006 + 1.86 * w2  # Eq. 32 of ASHRAE 2017 Ch. 1
+    c1, c2 = 1.006 + 1.86 * w1, 1.006 + 1.86 * w2  # Eq. 30 of ASHRAE 2017 Ch. 1
     q = float(free.heat)
     assert q == pytest.approx(eps * m * c2 * (t1 - float(free.coil_leaving_drybulb)), rel=1e-9)
     # the same heat leaves the entering air and reaches the leaving air

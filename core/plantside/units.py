@@ -172,7 +172,7 @@ def m3s_from_gpm(gpm):
 # enthalpy and humidity
 #: Offset between the IP enthalpy scale (dry air at 0 °F, liquid water at 32 °F) and the
 #: SI scale (dry air and liquid water at 0 °C) [Btu/lb]: 1.006 kJ/(kg K) x 17.78 K / 2.326.
-#: ASHRAE Handbook Fundamentals 2017 Ch. 1, Eq. 32 in SI and in I-P (h = 0.240 t + W(1061 +
+#: ASHRAE Handbook Fundamentals 2017 Ch. 1, Eq. 30 in SI and in I-P (h = 0.240 t + W(1061 +
 #: 0.444 t)); the vapour terms coincide, the dry-air terms differ by this constant.
 IP_ENTHALPY_OFFSET_BTULB = 1.006 * (32.0 / 1.8) / KJKG_PER_BTULB
 
@@ -180,7 +180,7 @@ IP_ENTHALPY_OFFSET_BTULB = 1.006 * (32.0 / 1.8) / KJKG_PER_BTULB
 def btulb_from_kjkg(kjkg):
     """Moist-air enthalpy [Btu/lb, I-P reference 0 °F] from [kJ/kg, SI reference 0 °C].
 
-    The two scales have different zeros (ASHRAE Handbook Fundamentals 2017 Ch. 1, Eq. 32 in
+    The two scales have different zeros (ASHRAE Handbook Fundamentals 2017 Ch. 1, Eq. 30 in
     SI and I-P), so a state of 47.3 kJ/kg reads 28.0 Btu/lb, as the I-P tables print it. For a
     difference of enthalpies use :func:`delta_btulb_from_kjkg`.
     """

@@ -19,7 +19,7 @@ Per hour, in order:
 2. Airflow: variable volume follows the room sensible load at the supply set point
    (m = q / (c_p (t_z - t_s))), clipped between the minimum and design airflow;
    heating at the lowest airflow that keeps the supply at or below its maximum.
-   c_p = 1.006 + 1.86 W (moist air, Eq. 32 of ASHRAE Handbook Fundamentals 2017 Ch. 1).
+   c_p = 1.006 + 1.86 W (moist air, Eq. 30 of ASHRAE Handbook Fundamentals 2017 Ch. 1).
 3. Supply temperature: the set point (with outdoor reset); below the lowest
    airflow either the supply rises to meet the load or terminal reheat makes up
    the difference (``low_load_response``).
@@ -115,7 +115,7 @@ _PASS_TOLERANCE = 5e-5
 
 
 def _h(t, w):
-    """Enthalpy [kJ/kg dry air], ASHRAE Handbook Fundamentals 2017 Ch. 1 Eq. 32."""
+    """Enthalpy [kJ/kg dry air], ASHRAE Handbook Fundamentals 2017 Ch. 1 Eq. 30."""
     return CP_DRY_AIR * t + w * (LATENT_HEAT_0C + CP_WATER_VAPOR * t)
 
 
@@ -248,7 +248,7 @@ def air_handler_hours(
     reheat_mode = s.low_load_response == "reheat"
     blow_through = s.fan_position == "blow_through"
     has_fan = s.supply_fan_power > 0.0
-    # saturation at the two zone set points (Eq. 23 of ASHRAE Handbook Fundamentals Ch. 1)
+    # saturation at the two zone set points (Eq. 20 at saturation, ASHRAE Fundamentals 2017 Ch. 1)
     pws_cool = float(saturation_vapor_pressure(t_cool, check=False))
     pws_heat = float(saturation_vapor_pressure(t_heat, check=False))
     pws_zone = np.where(heating, pws_heat, pws_cool)
@@ -437,7 +437,7 @@ def air_handler_hours(
 
 
 def _saturation_humidity_ratio(t, p):
-    """Saturation humidity ratio [kg/kg], Eqs. 6 and 23 of ASHRAE Handbook Fundamentals
+    """Saturation humidity ratio [kg/kg], Eqs. 6 and 20 of ASHRAE Handbook Fundamentals
     2017 Ch. 1, evaluated directly over water when every temperature is above the triple
     point (coil temperatures), else by :func:`plantside.air.moist_air.saturation_humidity_ratio`."""
     t = np.asarray(t, dtype=float)

@@ -10,7 +10,7 @@ All states are recomputed from the final zone humidity, so the energy balance
         - economizer_effect - recovery_effect - condensate_heat
 
 holds as an identity of the reported states (ASHRAE Handbook Fundamentals 2017
-Ch. 1: Eq. 32 for enthalpy; mixing, heating and cooling-and-dehumidifying
+Ch. 1: Eq. 30 for enthalpy; mixing, heating and cooling-and-dehumidifying
 balances; q = m_da [(h1 - h2) - (W1 - W2) h_w2] for the cooling coil with the
 condensate leaving at the coil leaving dry bulb).
 
@@ -166,7 +166,7 @@ def zone_load(loads):
 
 
 def _h(t, w):
-    """Enthalpy [kJ/kg dry air], ASHRAE Handbook Fundamentals 2017 Ch. 1 Eq. 32."""
+    """Enthalpy [kJ/kg dry air], ASHRAE Handbook Fundamentals 2017 Ch. 1 Eq. 30."""
     return CP_DRY_AIR * t + w * (LATENT_HEAT_0C + CP_WATER_VAPOR * t)
 
 
