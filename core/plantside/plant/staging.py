@@ -474,6 +474,18 @@ def _check_options(options) -> list[PlantOption]:
     return options
 
 
+def _staged_options(loads, options, no_load_threshold):
+    """(option, its :func:`stage_machines` result) for each option, every option staged
+    on the same hourly loads and no-load threshold."""
+    arr = hourly_loads(loads)
+    options = _check_options(options)
+    threshold = no_load_threshold_from_loads(arr, no_load_threshold)
+    return [
+        (option, stage_machines(arr, option.capacities, option.minimum_turndown, threshold))
+        for option in options
+    ]
+
+
 def compare_plant_options(
     loads, options: Sequence[PlantOption], no_load_threshold: float | None = None
 ) -> pd.DataFrame:
@@ -496,12 +508,8 @@ def compare_plant_options(
         ``machine_count``, ``total_capacity_kW``, ``largest_machine_kW`` and
         every key of :meth:`StagingResult.summary`.
     """
-    arr = hourly_loads(loads)
-    options = _check_options(options)
-    threshold = no_load_threshold_from_loads(arr, no_load_threshold)
     rows = []
-    for option in options:
-        result = stage_machines(arr, option.capacities, option.minimum_turndown, threshold)
+    for option, result in _staged_options(loads, options, no_load_threshold):
         rows.append(
             {
                 "option": option.name,
@@ -526,12 +534,8 @@ def compare_stage_hours(
         ``option``, ``machines_running``, ``hours``, ``percent_of_hours``,
         ``load_energy_kWh``: one row per option and machine count (0..N).
     """
-    arr = hourly_loads(loads)
-    options = _check_options(options)
-    threshold = no_load_threshold_from_loads(arr, no_load_threshold)
     frames = []
-    for option in options:
-        result = stage_machines(arr, option.capacities, option.minimum_turndown, threshold)
+    for option, result in _staged_options(loads, options, no_load_threshold):
         frame = result.hours_by_machines_running()
         frame.insert(0, "option", option.name)
         frames.append(frame)
