@@ -24,7 +24,7 @@ SUBPACKAGES = ("air", "climate", "air_handler", "plant")
 
 
 def _modules():
-    names = ["plantside"]
+    names = ["plantside", "plantside.arrays", "plantside.errors"]
     for sub in SUBPACKAGES:
         package = importlib.import_module(f"plantside.{sub}")
         names.append(package.__name__)

@@ -18,6 +18,7 @@ PACKAGE = Path(plantside.__file__).resolve().parent
 #: Top-level part of the package -> layer (lower imports nothing above it).
 LAYERS = {
     "errors": 0,
+    "arrays": 0,
     "constants": 0,
     "units": 1,
     "hourly_csv": 2,

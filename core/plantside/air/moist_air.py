@@ -40,6 +40,7 @@ from functools import cached_property
 
 import numpy as np
 
+from plantside.arrays import scalar_or_array as _out
 from plantside.constants import (
     CLAUSIUS_CLAPEYRON_ICE_K,
     CLAUSIUS_CLAPEYRON_WATER_K,
@@ -117,12 +118,6 @@ _WET_BULB_ICE = (LATENT_HEAT_ICE_WET_BULB, CP_ICE - CP_WATER_VAPOR, CP_ICE)
 # ---------------------------------------------------------------------------------------
 def _as_float(value):
     return np.asarray(value, dtype=float)
-
-
-def _out(value):
-    """Return a numpy scalar for 0-d results, the array otherwise."""
-    value = np.asarray(value, dtype=float)
-    return value[()] if value.ndim == 0 else value
 
 
 def _check_drybulb(field, value):

@@ -29,6 +29,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from plantside.arrays import scalar_or_array as _out
 from plantside.errors import check_choice, check_range
 
 __all__ = [
@@ -57,11 +58,6 @@ CONDENSING_LOW_FIRE_GAIN = 0.02
 #: Lowest return water of a non-condensing boiler without flue-gas condensation [°C]
 #: (common practice, no source).
 NON_CONDENSING_MINIMUM_RETURN_C = 55.0
-
-
-def _out(array):
-    array = np.asarray(array, dtype=float)
-    return array[()] if array.ndim == 0 else array
 
 
 def _check_kind(kind: str) -> str:

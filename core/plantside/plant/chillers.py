@@ -73,6 +73,7 @@ from functools import lru_cache
 
 import numpy as np
 
+from plantside.arrays import scalar_or_array as _out
 from plantside.errors import InputRangeError, check_choice, check_range
 from plantside.plant.efficiency import (
     IPLV_LOAD_POINTS,
@@ -124,11 +125,6 @@ DEFAULT_EIRFPLR = (0.15, 0.25, 0.6)
 #: Fitting ranges of the default EIRFT [°C]: chilled water, condenser by type.
 _FIT_CHW = (4.0, 16.0)
 _FIT_CONDENSER = {"water": (12.0, 35.0), "air": (-5.0, 46.0)}
-
-
-def _out(array):
-    array = np.asarray(array, dtype=float)
-    return array[()] if array.ndim == 0 else array
 
 
 def _check_condenser(condenser: str) -> str:

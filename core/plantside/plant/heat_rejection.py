@@ -31,6 +31,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from plantside.arrays import scalar_or_array as _out
 from plantside.constants import W_PER_BTUH
 from plantside.errors import check_range
 from plantside.plant.water import water_flow_from_load
@@ -52,11 +53,6 @@ KW_PER_TOWER_TON = 15000.0 * W_PER_BTUH / 1000.0
 #: Tower fan power per heat rejected at design [kW/kW]: 40.2 gpm/hp at a 10 °F range
 #: (ASHRAE 90.1-2019 Table 6.8.1-7, axial-fan open towers; from memory).
 DEFAULT_TOWER_FAN_POWER_PER_HEAT = 0.7457 / (40.2 * 500.0 * 10.0 * W_PER_BTUH / 1000.0)
-
-
-def _out(array):
-    array = np.asarray(array, dtype=float)
-    return array[()] if array.ndim == 0 else array
 
 
 def condenser_heat(cooling_load, input_power):

@@ -31,6 +31,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from plantside.arrays import scalar_or_array as _out
 from plantside.constants import STANDARD_GRAVITY
 from plantside.errors import check_range
 from plantside.plant.water import water_density
@@ -48,11 +49,6 @@ __all__ = [
 DEFAULT_CONTROL_HEAD_SHARE = 0.25
 #: Lowest pump speed over design speed [-] (common practice, no source).
 DEFAULT_MINIMUM_SPEED = 0.3
-
-
-def _out(array):
-    array = np.asarray(array, dtype=float)
-    return array[()] if array.ndim == 0 else array
 
 
 def pump_power(flow, head, pump_efficiency, motor_efficiency=1.0, temperature=10.0):

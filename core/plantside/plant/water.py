@@ -35,6 +35,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from plantside.arrays import scalar_or_array as _out
 from plantside.constants import (
     CP_LIQUID_WATER,
     KELL_DENSITY_DENOMINATOR,
@@ -54,11 +55,6 @@ __all__ = [
     "water_density",
     "water_flow_from_load",
 ]
-
-
-def _out(array):
-    array = np.asarray(array, dtype=float)
-    return array[()] if array.ndim == 0 else array
 
 
 def water_density(temperature):
