@@ -134,12 +134,13 @@ def scenario_dash(frame: pd.DataFrame):
     )
 
 
-def scenario_opacity(frame: pd.DataFrame, legend: bool = True):
-    """``opacity`` encoding: A light, B strong (for bars and areas)."""
+def scenario_opacity(frame: pd.DataFrame, legend: bool = True, **legend_options):
+    """``opacity`` encoding: A light, B strong (for bars and areas); ``legend_options``
+    (e.g. ``orient="bottom"``) go to its legend."""
     return alt.Opacity(
         f"{SCENARIO_COLUMN}:N",
         scale=_legend_scale(_OPACITY, frame),
-        legend=_legend() if legend else None,
+        legend=_legend(**legend_options) if legend else None,
     )
 
 

@@ -17,7 +17,18 @@ import pandas as pd
 
 from plantside.charts.compare import SCENARIO_COLUMN, has_scenarios, scenario_opacity, scenarios_in
 from plantside.charts.frames import axis_title, frame_system, value_format
-from plantside.charts.palette import COMPONENT_COLOURS, INK, STAGE, chart_builder, layered, themed
+from plantside.charts.palette import (
+    COMPONENT_COLOURS,
+    INK,
+    STAGE,
+    chart_builder,
+    layered,
+    plot_width,
+    themed,
+)
+
+#: Plot width of the exported breakdown [px] (bars need less room than the curves).
+_WIDTH = 720
 
 __all__ = ["design_breakdown_chart"]
 
@@ -45,7 +56,9 @@ def _ratio_text(frame: pd.DataFrame) -> list[str]:
 
 
 @chart_builder
-def design_breakdown_chart(frame: pd.DataFrame, system=None, title: str | None = None):
+def design_breakdown_chart(
+    frame: pd.DataFrame, system=None, title: str | None = None, width: int | None = None
+):
     """Waterfall of the design coil load, from zone load to coil load.
 
     Parameters
@@ -57,6 +70,9 @@ def design_breakdown_chart(frame: pd.DataFrame, system=None, title: str | None =
         Unit system of the frame (default: the frame's own).
     title : str, optional
         Chart title (default "Design coil load, from zone to coil").
+    width : int, optional
+        Plot width [px], 240 to 1600; default 720 (the exports' width). The dashboard passes the
+        width that fits its panel.
 
     Returns
     -------
@@ -108,7 +124,7 @@ def design_breakdown_chart(frame: pd.DataFrame, system=None, title: str | None =
         [bars, totals, labels],
         data=alt.NamedData(name="breakdown"),
         height=alt.Step(step),
-        width=720,
+        width=plot_width(width, _WIDTH),
     )
     return themed(
         chart,

@@ -41,11 +41,11 @@ from plantside.charts.palette import (
     REFERENCE,
     STAGE,
     STANDARD,
-    WIDTH,
     ZONE,
     chart_builder,
     concatenated,
     layered,
+    plot_width,
     themed,
 )
 from plantside.errors import InputRangeError
@@ -76,7 +76,8 @@ def _curves_layer(curves: pd.DataFrame, lines: pd.DataFrame | None, system, widt
             "hours_at_or_above:Q",
             title="Hours at or above load [h]",
             scale=alt.Scale(domain=[0, hours_max], nice=False),
-            axis=alt.Axis(format=",d"),
+            # about one label per 110 px: "8,000" in 15 px type is ~40 px wide
+            axis=alt.Axis(format=",d", tickCount=max(2, width // 110)),
         ),
         # a fixed zero-based domain, so the capacity labels can be spaced in pixels
         "y": alt.Y(
@@ -196,7 +197,8 @@ def _histogram_layer(shown: pd.DataFrame, measure: str, width, height):
         encoding["xOffset"] = alt.XOffset(
             f"{SCENARIO_COLUMN}:N", sort=scenarios_in(shown), scale=alt.Scale(paddingInner=0.05)
         )
-        encoding["opacity"] = scenario_opacity(shown)
+        # below the bars, as the weights' legend: the row stays no wider than the curves
+        encoding["opacity"] = scenario_opacity(shown, orient="bottom")
         encoding["tooltip"].insert(0, alt.Tooltip(f"{SCENARIO_COLUMN}:N", title="Scenario"))
     return (
         alt.Chart(
@@ -225,18 +227,26 @@ def _weights_data(weights: pd.DataFrame) -> pd.DataFrame:
     return data
 
 
+#: Opacity of A's and B's building weights, as the histogram draws A and B (compare.py).
+_BUILDING_OPACITY = {"A": 0.45, "B": 0.95}
+
+
+def _over_white(colour: str, opacity: float) -> str:
+    """``colour`` (#rrggbb) drawn at ``opacity`` on white, as an opaque #rrggbb."""
+    rgb = [int(colour[i : i + 2], 16) for i in (1, 3, 5)]
+    return "#" + "".join(f"{round(255 - opacity * (255 - c)):02x}" for c in rgb)
+
+
 def _weights_layer(data: pd.DataFrame, basis: str, width, height):
     sources = list(dict.fromkeys(data["source"]))
-    # the standard in its own colour; the building in coil blue, or A and B in two colours
-    building_colours = [COIL, ZONE]
-    colours = []
-    k = 0
-    for s in sources:
-        if s == "AHRI 550/590":
-            colours.append(STANDARD)
-        else:
-            colours.append(building_colours[k % 2] if len(sources) > 2 else COIL)
-            k += 1
+    # the standard in its own colour; the building in coil blue (its weights come from the
+    # coil load), A light and B strong as on the histogram beside it: orange means zone load
+    colours = [
+        STANDARD
+        if s == "AHRI 550/590"
+        else _over_white(COIL, _BUILDING_OPACITY.get(s.removeprefix("This building ")[1:2], 1.0))
+        for s in sources
+    ]
     points = ["100 %", "75 %", "50 %", "25 %"]
     encoding = {
         "x": alt.X(
@@ -302,6 +312,7 @@ def load_duration_chart(
     lines: pd.DataFrame | None = None,
     system=None,
     title: str | None = None,
+    width: int | None = None,
 ):
     """Load-duration curves with plant capacity and stage lines.
 
@@ -315,13 +326,16 @@ def load_duration_chart(
     system : {"SI", "IP"}, optional
         Unit system (default: the frame's own).
     title : str, optional
+    width : int, optional
+        Plot width [px], 240 to 1600; default 760 (the exports' width). The dashboard passes the
+        width that fits its panel.
 
     Returns
     -------
     altair.LayerChart
     """
     system = frame_system(curves, system)
-    chart = _curves_layer(curves, lines, system, WIDTH, 400)
+    chart = _curves_layer(curves, lines, system, plot_width(width), 400)
     return themed(
         chart,
         title=title or "Load-duration curves",
@@ -341,6 +355,7 @@ def part_load_chart(
     weights: pd.DataFrame | None = None,
     measure: str = "hours",
     title: str | None = None,
+    width: int | None = None,
 ):
     """Part-load histogram (10 % bands), with the IPLV weights beside it.
 
@@ -353,13 +368,16 @@ def part_load_chart(
     measure : {"hours", "energy"}
         Bar height: hours in the band, or the band's share of cooling energy.
     title : str, optional
+    width : int, optional
+        Plot width [px], 240 to 1600 (histogram and weights together); default 760 (the exports'
+        width). The dashboard passes the width that fits its panel.
 
     Returns
     -------
     altair.Chart or altair.HConcatChart
     """
     _check_measure(measure)
-    chart = _part_load_panels(bins, weights, measure, WIDTH)
+    chart = _part_load_panels(bins, weights, measure, plot_width(width))
     return themed(
         chart,
         title=title or "Part-load hours and rating weights",
@@ -373,11 +391,27 @@ def _check_measure(measure: str):
         raise InputRangeError("measure", f"measure = {measure!r}", "'hours' or 'energy'")
 
 
+#: Least plot width [px] that keeps the histogram and the weights side by side, each with
+#: its legend (measured with vl-convert: below it they need more than the panel).
+_SIDE_BY_SIDE_PX = 620
+
+
 def _part_load_panels(bins, weights, measure, total_width):
     shown = _band_labels(bins)
     if weights is None or not len(weights):
         return _histogram_layer(shown, measure, total_width, 300)
     basis = weights.attrs.get("basis", "energy")
+    if total_width < _SIDE_BY_SIDE_PX:  # a narrow panel: the weights under the histogram
+        return concatenated(
+            "v",
+            [
+                _histogram_layer(shown, measure, total_width, 260),
+                _weights_layer(_weights_data(weights), basis, total_width, 260),
+            ],
+            resolve=alt.Resolve(
+                scale={"color": "independent", "opacity": "independent", "xOffset": "independent"}
+            ),
+        )
     return concatenated(
         "h",
         [
@@ -411,10 +445,12 @@ def load_distribution_chart(
     measure: str = "hours",
     system=None,
     title: str | None = None,
+    width: int | None = None,
 ):
     """Chart 3 in one piece: load-duration curves above, part-load histogram and weights below.
 
-    Parameters are those of :func:`load_duration_chart` and :func:`part_load_chart`.
+    Parameters are those of :func:`load_duration_chart` and :func:`part_load_chart`;
+    ``width`` [px] is the curves' plot width, shared below by the histogram and the weights.
 
     Returns
     -------
@@ -422,14 +458,14 @@ def load_distribution_chart(
     """
     system = frame_system(curves, system)
     _check_measure(measure)
-    top = _curves_layer(curves, lines, system, WIDTH, 360)
+    top = _curves_layer(curves, lines, system, plot_width(width), 360)
     subtitle = [_curve_subtitle(curves)]
     if bins is None:
         chart = top
     else:
         chart = concatenated(
             "v",
-            [top, _part_load_panels(bins, weights, measure, WIDTH)],
+            [top, _part_load_panels(bins, weights, measure, plot_width(width))],
             resolve=alt.Resolve(
                 scale={
                     "color": "independent",

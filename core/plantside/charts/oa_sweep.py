@@ -31,10 +31,10 @@ from plantside.charts.palette import (
     INK,
     PLANT,
     REFERENCE,
-    WIDTH,
     ZONE,
     chart_builder,
     layered,
+    plot_width,
     themed,
 )
 
@@ -67,6 +67,7 @@ def oa_sweep_chart(
     marker: pd.DataFrame | None = None,
     system=None,
     title: str | None = None,
+    width: int | None = None,
 ):
     """Coil design load over outdoor-air fraction 0-100 %, current setting marked.
 
@@ -81,6 +82,9 @@ def oa_sweep_chart(
     system : {"SI", "IP"}, optional
         Unit system (default: the frame's own).
     title : str, optional
+    width : int, optional
+        Plot width [px], 240 to 1600; default 760 (the exports' width). The dashboard passes the
+        width that fits its panel.
 
     Returns
     -------
@@ -167,7 +171,7 @@ def oa_sweep_chart(
                     .encode(x=x, y=label_y, text=alt.Text("text:N"))
                 )
         subtitle = _marker_text(marker)
-    chart = layered(layers, width=WIDTH, height=_HEIGHT)
+    chart = layered(layers, width=plot_width(width), height=_HEIGHT)
     return themed(
         chart,
         title=title or "Coil design load against outdoor air",

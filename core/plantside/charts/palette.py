@@ -32,11 +32,13 @@ vl-convert. Type is sized for a meeting-room projector: 15 px tick labels,
 from __future__ import annotations
 
 import functools
+import textwrap
 
 import altair as alt
 
 from plantside.charts.altair_internals import debug_mode
 from plantside.charts.frames import records
+from plantside.errors import InputRangeError
 
 __all__ = [
     "BACKGROUND",
@@ -49,6 +51,8 @@ __all__ = [
     "HEIGHT",
     "INK",
     "INK_SOFT",
+    "MAX_WIDTH",
+    "MIN_WIDTH",
     "MODE_COLOURS",
     "PLANT",
     "PROCESS",
@@ -62,6 +66,7 @@ __all__ = [
     "concatenated",
     "layered",
     "mode_colours",
+    "plot_width",
     "theme_config",
     "themed",
 ]
@@ -102,7 +107,8 @@ COMPONENT_COLOURS = {
     "Ventilation latent": "#44AA99",  # teal
     "Fan heat": "#DDCC77",  # sand
     "Economizer / recovery": "#88CCEE",  # cyan: a load taken away
-    "Reheat": "#332288",  # indigo
+    "Terminal reheat": "#332288",  # indigo
+    "Dehumidification reheat": "#663333",  # dark red (Tol dark): reheat after the coil
     "Preheat and heating coil": "#999933",  # olive
     "Condensate heat": "#DDDDDD",  # pale grey: a small correction
     "Distribution gain": "#661100",  # dark brown (Tol dark): pumps and pipes, plant view
@@ -163,6 +169,24 @@ WIDTH = 760
 HEIGHT = 400
 #: Space around the chart [px].
 _PADDING = 16
+#: Narrowest and widest plot a builder draws [px] (a 1024 px page leaves ~300 px of plot
+#: beside the controls; a 1920 px page ~1,300).
+MIN_WIDTH = 240
+MAX_WIDTH = 1600
+
+
+def plot_width(width: int | float | None, default: int = WIDTH) -> int:
+    """The plot width a builder draws [px]: ``width`` within MIN_WIDTH..MAX_WIDTH, or
+    ``default`` when None (the exports' fixed width)."""
+    if width is None:
+        return int(default)
+    if not MIN_WIDTH <= float(width) <= MAX_WIDTH:
+        raise InputRangeError(
+            "width",
+            f"chart width = {width} px; allowed {MIN_WIDTH} to {MAX_WIDTH} px",
+            f"{MIN_WIDTH} to {MAX_WIDTH} px",
+        )
+    return int(width)
 
 
 def mode_colours(modes) -> dict[str, str]:
@@ -239,7 +263,7 @@ def theme_config() -> dict:
             "point": {"size": 90, "filled": True},
             "bar": {"stroke": BACKGROUND, "strokeWidth": 0.5},
             "range": {"category": list(CATEGORY_COLOURS), "ramp": list(DENSITY_SCHEME)},
-            "concat": {"spacing": 40},
+            "concat": {"spacing": _CONCAT_SPACING},
         },
     }
 
@@ -247,6 +271,50 @@ def theme_config() -> dict:
 @alt.theme.register(THEME_NAME, enable=False)
 def _plantside_theme() -> alt.theme.ThemeConfig:
     return alt.theme.ThemeConfig(**theme_config())
+
+
+#: Width of an average character as a share of the font size [-] (Liberation Sans: text
+#: 0.5-0.55, bold 0.56-0.6; rounded up, so a wrapped line is never wider than its span).
+_CHARACTER_WIDTH = 0.56
+_BOLD_CHARACTER_WIDTH = 0.62
+#: Room beside the plot a title may use besides the plot's width [px] (the y axis).
+_TITLE_MARGIN = 110
+#: Space between concatenated panels [px] (the theme's ``concat.spacing``).
+_CONCAT_SPACING = 40
+
+
+def _plots_width(chart) -> float | None:
+    """Width of a chart's plots [px]: side by side they add up (with the concat spacing),
+    stacked the widest counts; None when a plot's width is not a number."""
+    width = getattr(chart, "width", None)
+    if isinstance(width, int | float):
+        return float(width)
+    for attribute, combine in (("hconcat", sum), ("vconcat", max)):
+        parts = getattr(chart, attribute, None)
+        if isinstance(parts, list) and parts:
+            widths = [_plots_width(part) for part in parts]
+            if any(w is None for w in widths):
+                return None
+            spacing = _CONCAT_SPACING * (len(parts) - 1) if attribute == "hconcat" else 0
+            return combine(widths) + spacing
+    return None
+
+
+def _title_span(chart) -> float | None:
+    """Width a title may take [px]: the plots' and a y axis' (None: not known)."""
+    width = _plots_width(chart)
+    return None if width is None else width + _TITLE_MARGIN
+
+
+def _as_lines(text: str | list[str]) -> list[str]:
+    return [text] if isinstance(text, str) else text
+
+
+def _wrapped(text: str, span: float | None, character_px: float) -> str | list[str]:
+    """``text`` as lines no wider than ``span`` [px], or unchanged when it fits."""
+    if span is None or len(text) * character_px <= span:
+        return text
+    return textwrap.wrap(text, max(12, int(span // character_px))) or text
 
 
 def themed(
@@ -279,9 +347,17 @@ def themed(
         It can no longer be layered or concatenated (Altair's rule for
         configured charts), so build compositions before calling this.
     """
-    params = {"text": title, "anchor": "start"}
+    span = _title_span(chart)
+    params = {"text": _wrapped(title, span, 22 * _BOLD_CHARACTER_WIDTH), "anchor": "start"}
     if subtitle:
-        params["subtitle"] = subtitle
+        lines = [subtitle] if isinstance(subtitle, str) else list(subtitle)
+        params["subtitle"] = [
+            part
+            for line in lines
+            for part in _as_lines(_wrapped(line, span, 15 * _CHARACTER_WIDTH))
+        ]
+        if isinstance(subtitle, str) and len(params["subtitle"]) == 1:
+            params["subtitle"] = subtitle
     # Set the top-level properties on the chart itself: ``chart.properties()`` and
     # ``chart.copy()`` would validate the config or deep-copy every panel (tens of
     # milliseconds each). Builders pass a chart they have just composed, so nothing

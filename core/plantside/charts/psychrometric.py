@@ -30,9 +30,9 @@ from plantside.charts.palette import (
     INK,
     INK_SOFT,
     PROCESS,
-    WIDTH,
     chart_builder,
     layered,
+    plot_width,
     themed,
 )
 from plantside.units import to_display
@@ -82,6 +82,98 @@ def _grid_layers(x, y):
         .encode(x=x, y=y, text=alt.Text("line:N"))
     )
     return [rh, enthalpy, saturation, rh_labels, enthalpy_labels]
+
+
+#: Plot height [px]; least spacing of the dry-bulb tick labels [px].
+_HEIGHT = 460
+_TICK_SPACING_PX = 45
+#: The grid labels' type: (font size [px], dx [px], dy [px]) of the relative-humidity and
+#: enthalpy labels (right-aligned, baseline at the bottom: the box is up and left of dx, dy).
+_GRID_LABEL_STYLE = {"relative humidity": (13, -2, -2), "enthalpy": (12, -3, -3)}
+#: Width of a character as a share of the font size (Liberation Sans digits and "%": 0.556;
+#: 0.6 leaves a margin for other glyphs) and the least gap between two labels [px].
+_CHARACTER_WIDTH = 0.6
+_LABEL_GAP_PX = 2
+
+
+def _label_boxes(labels: pd.DataFrame, x_domain, y_domain, width, height) -> np.ndarray:
+    """Pixel boxes (left, top, right, bottom) of grid labels as the text marks place them."""
+    x = (labels["drybulb"].to_numpy(float) - x_domain[0]) / (x_domain[1] - x_domain[0]) * width
+    y = (
+        height
+        - (labels["humidity_ratio"].to_numpy(float) - y_domain[0])
+        / (y_domain[1] - y_domain[0])
+        * height
+    )
+    style = np.array([_GRID_LABEL_STYLE[f] for f in labels["family"]], dtype=float)
+    size, dx, dy = style.T
+    text_width = np.array([len(str(t)) for t in labels["line"]]) * size * _CHARACTER_WIDTH
+    right, bottom = x + dx, y + dy
+    return np.column_stack([right - text_width, bottom - size, right, bottom])
+
+
+def _process_label_boxes(process, x_domain, y_domain, width, height) -> list[np.ndarray]:
+    """Pixel boxes of the process's state labels (``_with_label_positions`` rows; only the
+    labelled scenario), bold 15 px type."""
+    if process is None or not len(process):
+        return []
+    keys = scenarios_in(process)
+    if keys:
+        process = process[process[SCENARIO_COLUMN] == keys[-1]]
+    x = (process["drybulb"].to_numpy(float) - x_domain[0]) / (x_domain[1] - x_domain[0]) * width
+    y = (
+        height
+        - (process["humidity_ratio"].to_numpy(float) - y_domain[0])
+        / (y_domain[1] - y_domain[0])
+        * height
+    )
+    boxes = []
+    for x0, y0, text, position in zip(
+        x, y, process["point"], process["label_position"], strict=True
+    ):
+        align, baseline, dx, dy = _LABEL_POSITIONS[position]
+        size = 15
+        text_width = len(str(text)) * size * _CHARACTER_WIDTH * 1.1  # bold is wider
+        left = x0 + dx if align == "left" else x0 + dx - text_width
+        top = y0 + dy - size if baseline == "bottom" else y0 + dy
+        boxes.append(np.array([left, top, left + text_width, top + size]))
+    return boxes
+
+
+def _labels_apart(grid: pd.DataFrame, x_domain, y_domain, width, height, taken=()) -> pd.DataFrame:
+    """``grid`` with the ``label`` flag cleared on labels that would print over another.
+
+    The boxes in ``taken`` (the process's state labels) are placed first, then the enthalpy
+    labels (along the saturation curve), then the relative humidity labels (along the top
+    edge); a label whose box comes within ``_LABEL_GAP_PX`` of one already placed, or runs
+    off the plot's left edge, is not drawn (its line stays). A copy: the caller's frame is
+    not changed.
+    """
+    if "label" not in grid or not grid["label"].any():
+        return grid
+    order = {"enthalpy": 0, "relative humidity": 1}
+    wanted = grid[grid["label"] & grid["family"].isin(list(order))]
+    wanted = wanted.iloc[np.argsort(wanted["family"].map(order).to_numpy(), kind="stable")]
+    boxes = _label_boxes(wanted, x_domain, y_domain, width, height)
+    kept: list[np.ndarray] = list(taken)
+    dropped = []
+    for index, box in zip(wanted.index, boxes, strict=True):
+        clear = box[0] >= 0 and all(
+            box[0] > k[2] + _LABEL_GAP_PX
+            or box[2] < k[0] - _LABEL_GAP_PX
+            or box[1] > k[3] + _LABEL_GAP_PX
+            or box[3] < k[1] - _LABEL_GAP_PX
+            for k in kept
+        )
+        if clear:
+            kept.append(box)
+        else:
+            dropped.append(index)
+    if not dropped:
+        return grid
+    placed = grid.copy()
+    placed.loc[dropped, "label"] = False
+    return placed
 
 
 def _density_layer(x_domain, y_domain, system, scenario):
@@ -238,6 +330,7 @@ def psychrometric_chart(
     density: pd.DataFrame | None = None,
     system=None,
     title: str | None = None,
+    width: int | None = None,
 ):
     """Psychrometric chart with the design process and the outdoor hours.
 
@@ -255,6 +348,9 @@ def psychrometric_chart(
     system : {"SI", "IP"}, optional
         Unit system (default: the grid frame's own).
     title : str, optional
+    width : int, optional
+        Plot width [px], 240 to 1600; default 760 (the exports' width). The dashboard passes the
+        width that fits its panel.
 
     Returns
     -------
@@ -262,7 +358,10 @@ def psychrometric_chart(
     """
     system = frame_system(grid, system)
     x_domain, y_domain = _extent(grid)
+    plot = plot_width(width)
     step = 5.0 if system.value == "SI" else 10.0  # round dry bulbs: 5 °C or 10 °F
+    while plot / ((x_domain[1] - x_domain[0]) / step) < _TICK_SPACING_PX:
+        step *= 2  # a narrow plot: every other label, so "100" and "110" never touch
     ticks = np.arange(np.ceil(x_domain[0] / step) * step, x_domain[1] + 1e-9, step)
     x = alt.X(
         "drybulb:Q",
@@ -277,7 +376,10 @@ def psychrometric_chart(
         axis=alt.Axis(orient="right"),
     )
     layers = []
-    datasets = {"grid": grid}
+    if process is not None and len(process):
+        process = _with_label_positions(process, x_domain)
+    states = _process_label_boxes(process, x_domain, y_domain, plot, _HEIGHT)
+    datasets = {"grid": _labels_apart(grid, x_domain, y_domain, plot, _HEIGHT, states)}
     if density is not None and len(density):
         keys = scenarios_in(density)
         layers.append(_density_layer(x_domain, y_domain, system, keys[-1] if keys else None))
@@ -285,8 +387,8 @@ def psychrometric_chart(
     layers.extend(_grid_layers(x, y))
     if process is not None and len(process):
         layers.extend(_process_layers(process, x, y, system))
-        datasets["process"] = _with_label_positions(process, x_domain)
-    chart = layered(layers, width=WIDTH, height=460)
+        datasets["process"] = process
+    chart = layered(layers, width=plot, height=_HEIGHT)
     return themed(
         chart,
         title=title or "Psychrometric chart: design process and the year's outdoor air",

@@ -178,19 +178,24 @@ def chart_frames(
     raise KeyError(f"unknown chart {name!r}; one of {', '.join(CHARTS)}")
 
 
-def study_chart(name: str, frames: dict, system: str, view: ChartView):
-    """Chart ``name`` drawn from ``frames`` (:func:`chart_frames`, maybe A/B combined)."""
+def study_chart(name: str, frames: dict, system: str, view: ChartView, width: int | None = None):
+    """Chart ``name`` drawn from ``frames`` (:func:`chart_frames`, maybe A/B combined),
+    ``width`` [px] its plot width (default: the builders' own, the width of the exports)."""
     unit = view.unit.name
     who = "the plant" if view.plant else unit
     if name == "design":
         return design_breakdown_chart(
-            frames["frame"], system, title=f"Design coil load of {who}, from zone to coil"
+            frames["frame"],
+            system,
+            title=f"Design coil load of {who}, from zone to coil",
+            width=width,
         )
     if name == "year":
         return year_scatter_chart(
             frames["frame"],
             system,
             title=f"The year hour by hour: coil load against zone load, {who}",
+            width=width,
         )
     if name == "distribution":
         return load_distribution_chart(
@@ -200,6 +205,7 @@ def study_chart(name: str, frames: dict, system: str, view: ChartView):
             frames["weights"],
             system=system,
             title=f"How the year's load spreads over the capacity, {who}",
+            width=width,
         )
     if name == "psychrometric":
         return psychrometric_chart(
@@ -208,12 +214,14 @@ def study_chart(name: str, frames: dict, system: str, view: ChartView):
             frames["density"],
             system=system,
             title=f"Design process of {unit} on the psychrometric chart",
+            width=width,
         )
     return oa_sweep_chart(
         frames["sweep"],
         frames["marker"],
         system=system,
         title=f"Design coil load of {unit} against outdoor-air fraction",
+        width=width,
     )
 
 

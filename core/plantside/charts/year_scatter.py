@@ -25,6 +25,7 @@ from plantside.charts.palette import (
     concatenated,
     layered,
     mode_colours,
+    plot_width,
     themed,
 )
 
@@ -105,7 +106,10 @@ def _panel(scenario, system, domains, modes, colours, size_max, fmt, width, heig
         color=alt.Color(
             "mode_label:N",
             title="Economizer mode",
-            legend=alt.Legend(orient=legend),
+            # below the panels: two columns, so the row is no wider than A and B
+            legend=alt.Legend(orient=legend, columns=2)
+            if legend == "bottom"
+            else alt.Legend(orient=legend),
             scale=alt.Scale(
                 domain=[MODE_LABELS.get(m, m) for m in modes],
                 range=[colours[m] for m in modes],
@@ -140,7 +144,9 @@ def _legend_hours(size_max: int) -> list[int]:
 
 
 @chart_builder
-def year_scatter_chart(frame: pd.DataFrame, system=None, title: str | None = None):
+def year_scatter_chart(
+    frame: pd.DataFrame, system=None, title: str | None = None, width: int | None = None
+):
     """Binned scatter of the year's hours: coil load against zone load, by economizer mode.
 
     Parameters
@@ -153,6 +159,9 @@ def year_scatter_chart(frame: pd.DataFrame, system=None, title: str | None = Non
         Unit system of the frame (default: the frame's own).
     title : str, optional
         Chart title (default "The year hour by hour: coil load against zone load").
+    width : int, optional
+        Plot width [px], 240 to 1600 (A and B share it side by side); default 760 (the exports'
+        width). The dashboard passes the width that fits its panel.
 
     Returns
     -------
@@ -166,7 +175,10 @@ def year_scatter_chart(frame: pd.DataFrame, system=None, title: str | None = Non
     size_max = int(frame["hours"].max()) if len(frame) else 1
     fmt = value_format(domains[0] + domains[1])
     keys = scenarios_in(frame)
-    side = WIDTH if not keys else int(WIDTH * 0.5)
+    total = plot_width(width)
+    side = total if not keys else int(total * 0.5)
+    # heights follow the default width, so a wide panel does not make a tall chart
+    height = min(side * 0.6, WIDTH * 0.6) if not keys else min(side * 0.8, WIDTH * 0.4)
     subtitle = []
     if len(frame):
         step = float((frame["zone_high"] - frame["zone_low"]).iloc[0])
@@ -178,11 +190,11 @@ def year_scatter_chart(frame: pd.DataFrame, system=None, title: str | None = Non
     if off:
         subtitle.append(f"Not shown: hours with the fan off ({off})")
     if not keys:
-        chart = _panel(None, system, domains, modes, colours, size_max, fmt, side, side * 0.6)
+        chart = _panel(None, system, domains, modes, colours, size_max, fmt, side, height)
     else:
         panels = [
             # legends below the two panels: A and B side by side fit a 1600 px window
-            _panel(key, system, domains, modes, colours, size_max, fmt, side, side * 0.8, "bottom")
+            _panel(key, system, domains, modes, colours, size_max, fmt, side, height, "bottom")
             for key in keys
         ]
         chart = concatenated(

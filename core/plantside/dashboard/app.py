@@ -30,14 +30,15 @@ from pathlib import Path
 import altair as alt
 import ipywidgets as widgets
 import pandas as pd
-
 from plantside import __version__
 from plantside.charts.compare import combine_scenarios
 from plantside.charts.export import chart_bytes, safe_filename
 from plantside.charts.labels import export_stamp
+from plantside.charts.palette import WIDTH
 from plantside.charts.study_frames import CHARTS, ChartView, chart_frames, study_chart
 from plantside.dashboard.controls import Controls, GuardedDropdown
 from plantside.dashboard.download import BrowserDownload
+from plantside.dashboard.panel_width import PanelWidth, fitted_plot_width
 from plantside.dashboard.serve import SCENARIO_ENVIRONMENT_VARIABLE
 from plantside.dashboard.spec import SpecWriter
 from plantside.dashboard.state import (
@@ -131,6 +132,11 @@ class Dashboard:
         self.controls = Controls(self.state)
         self.controls.on_scenario_upload = self.load_scenario_file
         self.download = BrowserDownload()
+        # plot width of each chart on screen [px]: the builders' width until the page
+        # reports its panels (exports keep the builders' fixed width)
+        self.widths: dict[str, int] = dict.fromkeys(CHARTS, WIDTH)
+        self.panel_width = PanelWidth(names=list(CHARTS))
+        self.panel_width.observe(self._on_panel_width, names="report")
         self.timings: dict[str, float] = {"model": 0.0, "charts": 0.0}
         self._chart_keys: dict[str, tuple] = {}
         self.chart_specs: dict[str, object] = {}
@@ -151,14 +157,14 @@ class Dashboard:
         self.model_cautions.add_class("plantside-cautions")
         self.charts: dict[str, alt.JupyterChart] = {}
         for name in CHARTS:
-            chart = self._build_chart(name)
+            chart = self._build_chart(name, self.widths[name])
             self.chart_specs[name] = chart
             # validated once against the schema; no vega-embed menu (it links to web editors)
             self.charts[name] = alt.JupyterChart(
                 chart, embed_options={"actions": False, "renderer": "canvas"}
             )
             self.charts[name].add_class(f"plantside-chart-{name}")
-            self._chart_keys[name] = self._chart_key(name)
+            self._chart_keys[name] = self._drawn_key(name)
             self.spec_writer.seed(name, chart, self._structure(name), self.charts[name].spec)
         self.export_buttons = self._export_buttons()
         self.widget = self._layout()
@@ -235,6 +241,7 @@ class Dashboard:
                 body,
                 self.model_cautions,
                 self.download,
+                self.panel_width,
             ]
         )
         app.add_class("plantside-app")
@@ -293,14 +300,25 @@ class Dashboard:
         self._show_text()
         self.timings["charts"] = time.perf_counter() - start
 
+    def _on_panel_width(self, change):
+        """The page measured its chart panels: redraw the charts that do not fit theirs."""
+        resized = False
+        for name, (offered, drawn) in change["new"].items():
+            width = fitted_plot_width(self.widths[name], offered, drawn)
+            if width is not None:
+                self.widths[name] = width
+                resized = True
+        if resized:
+            self.update_charts()
+
     def update_charts(self) -> list[str]:
-        """Rebuild the charts whose data changed; return their names."""
+        """Rebuild the charts whose data or width changed; return their names."""
         changed = []
         for name in CHARTS:
-            key = self._chart_key(name)
+            key = self._drawn_key(name)
             if self._chart_keys.get(name) == key:
                 continue
-            chart = self._build_chart(name)
+            chart = self._build_chart(name, self.widths[name])
             self.chart_specs[name] = chart
             self.charts[name].spec = self.spec_writer.spec(name, chart, self._structure(name))
             self._chart_keys[name] = key
@@ -311,7 +329,17 @@ class Dashboard:
     def _structure(self, name: str) -> tuple:
         """What may change a chart's shape (not only its data): checked against Altair."""
         state = self.state
-        return (name, state.inputs.unit_system, state.pinned is not None, state.inputs.air_handler)
+        return (
+            name,
+            state.inputs.unit_system,
+            state.pinned is not None,
+            state.inputs.air_handler,
+            self.widths[name],
+        )
+
+    def _drawn_key(self, name: str) -> tuple:
+        """What the chart on screen was drawn from: its inputs and its plot width."""
+        return (self._chart_key(name), self.widths[name])
 
     def _chart_key(self, name: str) -> tuple:
         result, pinned = self.state.result, self.state.pinned_result()
@@ -372,10 +400,12 @@ class Dashboard:
                 combined[key] = combine_scenarios({"A": before[key], "B": frame})
         return combined
 
-    def _build_chart(self, name: str):
+    def _build_chart(self, name: str, width: int | None = None):
+        """Chart ``name`` of the current (and pinned) result, ``width`` [px] its plot width
+        (None: the builders' fixed width, as exported)."""
         system = self.state.inputs.unit_system
         return study_chart(
-            name, self._combined(name, system), system, self._view(self.state.result)
+            name, self._combined(name, system), system, self._view(self.state.result), width
         )
 
     # ------------------------------------------------------------------ text
@@ -533,7 +563,9 @@ class Dashboard:
             self._show_text()
             return ""
         try:
-            data = chart_bytes(self.chart_specs[name], fmt, stamp=self.stamp(), scale=_PNG_SCALE)
+            # the builders' fixed width, whatever the width of the screen it was asked from
+            chart = self._build_chart(name)
+            data = chart_bytes(chart, fmt, stamp=self.stamp(), scale=_PNG_SCALE)
         except PlantsideError as error:
             self.state.messages["export"] = str(error)
             self._show_text()
