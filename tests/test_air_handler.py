@@ -61,7 +61,7 @@ coil_total_kW coil_sensible_kW coil_latent_kW condensate_kgs condensate_heat_kW 
 heating_coil_kW reheat_kW zone_sensible_kW zone_latent_kW zone_sensible_unmet_kW
 zone_latent_unmet_kW plenum_gain_kW ventilation_sensible_kW ventilation_latent_kW fan_power_kW
 fan_heat_kW economizer_effect_kW recovery_effect_kW dehumidification_reheat_kW
-condenser_heat_recovered_kW coil_runaround_heat_kW
+condenser_heat_recovered_kW coil_runaround_heat_kW humidity_control_reheat_kW
 """.split()
 
 CONFIGURATION_NAMES = [
@@ -127,6 +127,7 @@ def _balance_residual(frame):
         + frame["preheat_kW"]
         + frame["dehumidification_reheat_kW"]
         + frame["condenser_heat_recovered_kW"]
+        + frame["humidity_control_reheat_kW"]
     )
     net_coil = frame["coil_total_kW"] - added
     parts = (
@@ -152,7 +153,11 @@ def test_hourly_frame_matches_contract(years, weather):
     frame = years["vav_economizer_draw_through"]
     # columns may be added after the contract's, never renamed or removed: the heat of the
     # hours the fan is off (plantside.air_handler.unoccupied) follows them
-    assert list(frame.columns) == [*CONTRACT_COLUMNS, *UNOCCUPIED_COLUMNS]
+    assert list(frame.columns) == [
+        *CONTRACT_COLUMNS,
+        *UNOCCUPIED_COLUMNS,
+        "zone_relative_humidity_without_control",
+    ]
     assert tuple(CONTRACT_COLUMNS[1:]) == HOURLY_COLUMNS
     assert len(frame) == 8760 and frame.index.name == "hour"
     assert list(frame["economizer_mode"].cat.categories) == list(ECONOMIZER_MODES)

@@ -165,7 +165,7 @@ def _design_inputs(design, k):
 def _energy_balance_residual(r):
     """Contract balance: left - right, and the gross flow it is compared with [kW]."""
     added = ("heating_coil_kW", "preheat_kW", "dehumidification_reheat_kW",
-             "condenser_heat_recovered_kW")  # fmt: skip
+             "condenser_heat_recovered_kW", "humidity_control_reheat_kW")  # fmt: skip
     left = r["coil_total_kW"] - sum(r[key] for key in added)
     terms = {
         "zone_sensible_kW": 1,

@@ -94,7 +94,9 @@ def _row(name, settings, kind, point, governing, coil):
             loads.get("dehumidification_reheat_kW", 0.0)
             + loads.get("condenser_heat_recovered_kW", 0.0)
         ),
-        "terminal_reheat_kW": float(loads["reheat_kW"]),
+        "terminal_reheat_kW": float(
+            loads["reheat_kW"] + loads.get("humidity_control_reheat_kW", 0.0)
+        ),
     }
 
 

@@ -22,7 +22,8 @@ Per hour, in order:
    c_p = 1.006 + 1.86 W (moist air, Eq. 30 of ASHRAE Handbook Fundamentals 2017 Ch. 1).
 3. Supply temperature: the set point (with outdoor reset); below the lowest
    airflow either the supply rises to meet the load or terminal reheat makes up
-   the difference (``low_load_response``).
+   the difference (``low_load_response``). With VAV terminal reheat the unit
+   supplies the set point in heating hours too and the terminal heats.
 4. Coil leaving target = supply - fan rise (draw-through), mixed-air set point =
    supply - fan rise (both fan positions).
 5. Outdoor air: minimum fraction (or fixed airflow / hour's airflow), then the
@@ -46,8 +47,10 @@ leaving humidity is concave and piecewise linear in W_e::
 (dry coil; wet coil line with a = BF, b = (1 - BF) W_adp; saturation at the leaving
 dry bulb). A coil holding a leaving dew point adds the branch W_t (a = 0, b = W_t) in
 every hour, cooling or not: where it governs the coil leaves on its own process line
-below the leaving target and is reheated (:mod:`plantside.air_handler.results`). Each branch gives a
-linear equation for W_z::
+below the leaving target and is reheated (:mod:`plantside.air_handler.results`). Zone
+humidity control adds the branch W_max - mu (a = 0), W_max the humidity ratio of
+``zone_relative_humidity_max`` at the zone dry bulb, so W_z <= W_max; the coil then leaves
+on its process line the same way. Each branch gives a linear equation for W_z::
 
     dry:        W_z = W_o + mu / alpha
     wet:        W_z = (a alpha W_o + b + mu) / (1 - a (1 - alpha))
@@ -69,7 +72,8 @@ Energy balance (an identity of the reported states, see
 :mod:`plantside.air_handler.results`)::
 
     coil_total - heating_coil - preheat - dehumidification_reheat
-        - condenser_heat_recovered = zone_sensible + zone_latent + reheat
+        - condenser_heat_recovered - humidity_control_reheat
+        = zone_sensible + zone_latent + reheat
         + ventilation_sensible + ventilation_latent + fan_heat
         - economizer_effect - recovery_effect - condensate_heat
 
@@ -246,6 +250,10 @@ def air_handler_hours(
         # airflow x c_p that meets the room load at the supply set point [kW/K]
         load_per_kelvin = np.where(heating, -q_room / (t_hmax - t_z), q_room / (t_z - t_ss))
     reheat_mode = s.low_load_response == "reheat"
+    # VAV terminal reheat: the unit's supply stays at its set point in heating hours too
+    # (the terminal heats), so only the other response heats at the unit
+    central_heating = np.zeros_like(heating) if reheat_mode else heating
+    m_lowest = m_low if s.variable_volume else m_design
     blow_through = s.fan_position == "blow_through"
     has_fan = s.supply_fan_power > 0.0
     # saturation at the two zone set points (Eq. 20 at saturation, ASHRAE Fundamentals 2017 Ch. 1)
@@ -253,6 +261,12 @@ def air_handler_hours(
     pws_heat = float(saturation_vapor_pressure(t_heat, check=False))
     pws_zone = np.where(heating, pws_heat, pws_cool)
     ws_zone = MOLAR_MASS_RATIO * pws_zone / (p - pws_zone)
+    # zone humidity control: the humidity ratio of the set point's relative humidity at
+    # the zone dry bulb (ASHRAE Handbook Fundamentals 2017 Ch. 1, Eqs. 20 and 22)
+    humidity_control = s.zone_relative_humidity_max is not None
+    if humidity_control:
+        pw_max = float(s.zone_relative_humidity_max) * pws_zone
+        w_zone_max = MOLAR_MASS_RATIO * pw_max / (p - pw_max)
     h_o = _h(t_o, w_o)
 
     # --- outdoor air ---------------------------------------------------------------------
@@ -322,7 +336,7 @@ def air_handler_hours(
         # supply temperature
         t_need = t_z - q_room / mc_s
         t_s_cool = t_ss if reheat_mode else np.maximum(t_ss, t_need)
-        t_s = np.where(heating, np.minimum(t_need, t_hmax), t_s_cool)
+        t_s = np.where(central_heating, np.minimum(t_need, t_hmax), t_s_cool)
         t_r = t_z + q_plenum / (m * (CP_DRY_AIR + CP_WATER_VAPOR * w_z)) if has_plenum else t_z
         # fan
         airflow_fraction = m / m_design
@@ -341,7 +355,7 @@ def air_handler_hours(
         h_r = _h(t_r, w_z)
         if s.all_outdoor_air:
             x = np.ones(np.broadcast_shapes(np.shape(t_ma), np.shape(x_min)))
-            mode = np.where(heating, MODE_HEATING, MODE_ALL_OUTDOOR_AIR).astype(np.int8)
+            mode = np.where(central_heating, MODE_HEATING, MODE_ALL_OUTDOOR_AIR).astype(np.int8)
         else:
             x, mode = _damper_control(
                 control,
@@ -356,7 +370,7 @@ def air_handler_hours(
                 h_r,
                 s.economizer_drybulb_limit,
                 s.economizer_enthalpy_limit,
-                heating,
+                central_heating,
                 frozen_mode,
             )
         # energy recovery (exhaust = return air), at the minimum outdoor air only
@@ -414,6 +428,12 @@ def air_handler_hours(
             dew_active = t_e > t_dew_target + COIL_IDLE_K
             z = np.where(dew_active, np.minimum(z, w_target + mu), z)
             undetermined = np.where(dew_active, np.minimum(w_z, w_target + mu), w_z)
+        elif humidity_control:
+            # the coil is driven colder until the supply holds the zone at the set point
+            # (a = 0, b = W_max - mu), in any hour the zone would be more humid
+            w_cap = np.maximum(w_zone_max - mu, _W_FLOOR)
+            z = np.minimum(z, w_cap + mu)
+            undetermined = np.minimum(w_z, w_cap + mu)
         w_z_new = np.minimum(np.maximum(np.where(np.isnan(z), undetermined, z), _W_FLOOR), ws_zone)
         change = float(np.max(np.abs(w_z_new - w_z)))
         w_z = w_z_new
@@ -422,6 +442,9 @@ def air_handler_hours(
         if dew_point_coil:
             w_s_by_drybulb = w_s
             w_s = np.where(dew_active, np.minimum(w_s, w_target), w_s)
+        elif humidity_control:
+            w_s_by_drybulb = w_s
+            w_s = np.minimum(w_s, w_cap)
         if pass_number == 1:
             frozen_mode = None if s.all_outdoor_air else mode
             frozen_recovery = (heat_branch, cool_branch) if recovery else None
@@ -431,8 +454,9 @@ def air_handler_hours(
         if pass_number >= 1 and change < _PASS_TOLERANCE:
             break
 
-    # hours where the leaving dew point, not the leaving dry bulb, sets the coil
-    dew_point_governs = (w_s < w_s_by_drybulb) if dew_point_coil else False
+    # hours where the leaving dew point or the zone humidity set point, not the leaving
+    # dry bulb, sets the coil
+    dew_point_governs = (w_s < w_s_by_drybulb) if dew_point_coil or humidity_control else False
     return hourly_results(SimpleNamespace(**locals()))
 
 

@@ -5,7 +5,8 @@
 All states are recomputed from the final zone humidity, so the energy balance
 
     coil_total - heating_coil - preheat - dehumidification_reheat
-        - condenser_heat_recovered = zone_sensible + zone_latent + reheat
+        - condenser_heat_recovered - humidity_control_reheat
+        = zone_sensible + zone_latent + reheat
         + ventilation_sensible + ventilation_latent + fan_heat
         - economizer_effect - recovery_effect - condensate_heat
 
@@ -37,6 +38,12 @@ balance), then by the unit's reheat source (``dehumidification_reheat_kW`` from 
 or ``condenser_heat_recovered_kW``). Reheat above the entering dry bulb (a zone that needs
 heat) is the heating coil's, as without dehumidification. The coil entering state is the
 air entering the coil itself, after the exchanger's pre-cooling.
+
+Zone humidity control (``zone_relative_humidity_max``) takes the same path in the hours it
+governs; its reheat is terminal reheat on hot water, ``humidity_control_reheat_kW``.
+VAV terminal reheat (``low_load_response="reheat"``) is ``reheat_kW`` = m c_p(W_s)
+(t_term - t_s), t_term = min(t_z - q_room / (m c_p), heating_supply_drybulb_max), at the
+lowest airflow and in heating hours.
 """
 
 from __future__ import annotations
@@ -129,6 +136,7 @@ HOURLY_COLUMNS = (
     "dehumidification_reheat_kW",
     "condenser_heat_recovered_kW",
     "coil_runaround_heat_kW",
+    "humidity_control_reheat_kW",
 )
 
 _STATE_COLUMNS = tuple(
@@ -168,6 +176,21 @@ def zone_load(loads):
 def _h(t, w):
     """Enthalpy [kJ/kg dry air], ASHRAE Handbook Fundamentals 2017 Ch. 1 Eq. 30."""
     return CP_DRY_AIR * t + w * (LATENT_HEAT_0C + CP_WATER_VAPOR * t)
+
+
+def _dew_point(w, p):
+    """Dew point [°C] of a humidity ratio [kg/kg] at a pressure [Pa] (Ch. 1 Eq. 36)."""
+    return dew_point_from_humidity_ratio(w, p, check=False)
+
+
+def _only_where(mask, fill, function, *arrays):
+    """``function(*arrays)`` evaluated only where ``mask`` (broadcast), ``fill`` elsewhere."""
+    shape = np.broadcast_shapes(np.shape(mask), *(np.shape(a) for a in arrays))
+    where = np.broadcast_to(mask, shape)
+    out = np.full(shape, fill, dtype=float)
+    if np.any(where):
+        out[where] = function(*(np.broadcast_to(a, shape)[where] for a in arrays))
+    return out
 
 
 def hourly_results(v: SimpleNamespace) -> dict:
@@ -295,23 +318,38 @@ def hourly_results(v: SimpleNamespace) -> dict:
     heating_coil = np.where(heat_coil, m * c_m * (t_leave - t_e), 0.0)
     t_coil_in, t_after, adp_required = t_e, t_leave, t_adp
     runaround = reheat_active = 0.0
-    if v.dew_point_coil:
+    if v.dew_point_coil or v.humidity_control:
         settings = v.s
-        process = dew_point_coil_process(t_e, w_e, w_cl, v.bf_setting, p)
+        # the dew point solves run only in the hours where the humidity sets the coil
+        process_adp = _only_where(
+            dew,
+            0.0,
+            lambda t1, w1, w2, pressure: (
+                dew_point_coil_process(t1, w1, w2, v.bf_setting, pressure).apparatus_dew_point
+            ),
+            t_e,
+            w_e,
+            w_cl,
+            p,
+        )
         effectiveness = float(settings.coil_runaround_effectiveness)
         t_dew_e = (
-            dew_point_from_humidity_ratio(np.maximum(w_e, 1e-9), p, check=False)
+            _only_where(dew, 0.0, _dew_point, np.maximum(w_e, 1e-9), p)
             if effectiveness > 0.0
             else t_e
         )
+        if v.dew_point_coil:
+            t_dew_leaving = float(settings.leaving_dew_point)
+        else:
+            t_dew_leaving = _only_where(dew, 0.0, _dew_point, w_cl, p)
         exchange = runaround_exchange(
             m,
             t_e,
             w_e,
             t_dew_e,
             w_cl,
-            float(settings.leaving_dew_point),
-            process.apparatus_dew_point,
+            t_dew_leaving,
+            process_adp,
             v.bf_setting,
             t_cl,
             effectiveness,
@@ -327,7 +365,7 @@ def hourly_results(v: SimpleNamespace) -> dict:
         )
         reheat_active = np.where(dew, m * c_cl * (t_after - t_reheated), 0.0) - above_entering
         heating_coil = heating_coil + above_entering
-        t_adp = np.where(dew, process.apparatus_dew_point, t_adp)
+        t_adp = np.where(dew, process_adp, t_adp)
         adp_required = t_adp
         cooling = cooling | dew
     wet = cooling & (w_cl < w_e)
@@ -339,13 +377,20 @@ def hourly_results(v: SimpleNamespace) -> dict:
     h_after = _h(t_after, w_cl)
     h_supply = h_after if blow_through else h_after + fan_heat / m
     from_condenser = v.dew_point_coil and v.s.reheat_source == "condenser_heat"
+    humidity_reheat = reheat_active if v.humidity_control else 0.0
+    if v.humidity_control:
+        reheat_active = 0.0
     t_supply = (h_supply - LATENT_HEAT_0C * w_cl) / c_cl
     # zone: what the supply air takes up in the room and the plenum, from the states
     zone_latent = m * (w_z - w_cl) * h_g_zone
     to_room = m * c_cl * (t_z - t_supply)
     plenum = m * (CP_DRY_AIR + CP_WATER_VAPOR * w_z) * (t_r - t_z)
     if reheat_mode:
-        reheat = np.where(heating, 0.0, np.maximum(to_room - q_room, 0.0))
+        # VAV terminal reheat: from the unit's supply to the dry bulb the zone needs (at most
+        # the heating supply limit), in heating hours and at the lowest airflow
+        t_terminal = np.minimum(t_z - q_room / (m * c_cl), t_hmax)
+        at_lowest = heating | (m <= v.m_lowest * (1.0 + 1e-9))
+        reheat = np.where(at_lowest, m * c_cl * np.maximum(t_terminal - t_supply, 0.0), 0.0)
     else:
         reheat = np.zeros(np.shape(to_room))
     zone_sensible = to_room - reheat + plenum
@@ -428,6 +473,7 @@ def hourly_results(v: SimpleNamespace) -> dict:
         "dehumidification_reheat_kW": 0.0 if from_condenser else reheat_active,
         "condenser_heat_recovered_kW": reheat_active if from_condenser else 0.0,
         "coil_runaround_heat_kW": runaround,
+        "humidity_control_reheat_kW": humidity_reheat,
     }
     shape = np.broadcast_shapes(*(np.shape(v) for v in out.values()))
     for key, value in out.items():

@@ -168,6 +168,17 @@ class AirHandlerSettings:
     zone_relative_humidity_limit : float
         Zone relative humidity above which an hour is flagged [-], 0.3 to 1 (caution only;
         the zone humidity floats with the latent load and the supply air).
+    zone_relative_humidity_max : float or None
+        Zone humidity control [-], 0.3 to ``zone_relative_humidity_limit``; None (the
+        default) for none. In every operating hour where the zone would be more humid, the
+        cooling coil is driven colder on its own process line (its ``bypass_factor``, a
+        lower apparatus dew point) until the supply air holds the zone at this relative
+        humidity, and terminal reheat on the heating plant (``humidity_control_reheat_kW``)
+        lifts the air back to the temperature the zone needs. It is a control set point;
+        ``zone_relative_humidity_limit`` stays the caution threshold, so the set point may
+        not be above it. Only with ``coil_model="bypass_factor"`` (a leaving-dew-point coil
+        already holds the humidity: lower its ``leaving_dew_point``; a fixed apparatus dew
+        point cannot be driven colder).
     supply_drybulb : float
         Supply air dry-bulb set point [°C], 4 to ``zone_cooling_drybulb`` - 0.5.
     supply_reset_drybulb : float or None
@@ -233,8 +244,11 @@ class AirHandlerSettings:
         ``"always"`` or ``"occupied"`` (fan off in unoccupied hours).
     low_load_response : str
         When the zone needs less cooling than the supply set point gives at the
-        lowest airflow: ``"raise_supply_temperature"`` (the coil leaves warmer air) or
-        ``"reheat"`` (supply held at the set point, terminal reheat makes up the rest).
+        lowest airflow: ``"raise_supply_temperature"`` (the coil leaves warmer air; in
+        heating hours the unit's heating coil heats the supply air) or ``"reheat"`` (VAV
+        terminal reheat: the unit's supply held at its set point in every hour, heating
+        hours too, and the terminal reheats what the zone does not need, ``reheat_kW`` on
+        the heating plant, at design and hour by hour).
     design_airflow : str
         Airflow of the cooling design points: ``"scheduled"`` (default; the unit's
         ``supply_airflow`` with the coil leaving at the supply set point, the coil
@@ -263,6 +277,7 @@ class AirHandlerSettings:
     zone_cooling_drybulb: float = 24.0
     zone_heating_drybulb: float = 21.0
     zone_relative_humidity_limit: float = 0.60
+    zone_relative_humidity_max: float | None = None
     supply_drybulb: float = 13.0
     supply_reset_drybulb: float | None = None
     supply_reset_outdoor_low: float = 10.0
@@ -415,6 +430,7 @@ class AirHandlerSettings:
             0.9,
             "(fraction)",
         )
+        self._check_humidity_control()
         self._check_unoccupied_and_design_airflow()
         _optional(
             "ventilation_airflow_required",
@@ -424,6 +440,27 @@ class AirHandlerSettings:
             "m³/s",
         )
         self._check_ventilation_floor()
+
+    def _check_humidity_control(self):
+        if self.zone_relative_humidity_max is None:
+            return
+        check_range(
+            "zone_relative_humidity_max",
+            self.zone_relative_humidity_max,
+            0.3,
+            float(self.zone_relative_humidity_limit),
+            "(fraction)",
+        )
+        if self.coil_model != "bypass_factor":
+            raise InputRangeError(
+                "zone_relative_humidity_max",
+                f"zone_relative_humidity_max drives a bypass-factor coil colder; with "
+                f"coil_model = {self.coil_model!r} it cannot (a leaving-dew-point coil holds "
+                "the humidity: lower its leaving_dew_point; a fixed apparatus dew point cannot "
+                "go colder); allowed: coil_model 'bypass_factor', or no "
+                "zone_relative_humidity_max",
+                "coil_model 'bypass_factor'",
+            )
 
     def _check_unoccupied_and_design_airflow(self):
         _choice("design_airflow", self.design_airflow, DESIGN_AIRFLOWS)

@@ -114,7 +114,10 @@ def night_cycle_settings(settings: AirHandlerSettings) -> AirHandlerSettings:
 
     No outdoor air (so no economizer and no recovery), the heating set point at
     ``night_setback_drybulb`` (the heating set point when None); airflow, fan, coils
-    and supply limits as the unit's own.
+    and supply limits as the unit's own. The unit heats the recirculated air itself (no
+    cooling coil run to the supply set point for terminal reheat, no zone humidity
+    control: the damper is closed and the zone's unoccupied latent gain is not the
+    unit's, as :func:`plantside.air_handler.year.hourly_cautions` says).
     """
     setback = settings.night_setback_drybulb
     return replace(
@@ -127,6 +130,8 @@ def night_cycle_settings(settings: AirHandlerSettings) -> AirHandlerSettings:
         recovery_sensible_effectiveness=0.0,
         recovery_latent_effectiveness=0.0,
         zone_heating_drybulb=settings.zone_heating_drybulb if setback is None else setback,
+        low_load_response="raise_supply_temperature",
+        zone_relative_humidity_max=None,
     )
 
 

@@ -18,6 +18,9 @@ at the hour's supply state and site pressure.
 
 from __future__ import annotations
 
+from dataclasses import replace
+from typing import NamedTuple
+
 import numpy as np
 import pandas as pd
 
@@ -50,6 +53,7 @@ __all__ = [
     "AirHandlerSettings",
     "CoolingDesignSummary",
     "DesignPoint",
+    "HumidityHours",
     "air_handler_hours",
     "cooling_design_points",
     "design_point",
@@ -57,6 +61,7 @@ __all__ = [
     "heating_design_point",
     "hourly_cautions",
     "hourly_year",
+    "humidity_hours_above_limit",
     "outdoor_air_sweep",
 ]
 
@@ -94,6 +99,56 @@ def _hourly_zone_loads(zone_loads, weather) -> HourlyZoneLoads:
     )
 
 
+#: Relative humidity counted as at (not above) a limit [-]: a zone held at the humidity
+#: set point sits on it to the last bit of rounding.
+_RH_TOLERANCE = 1e-9
+
+
+class HumidityHours(NamedTuple):
+    """Conditioning hours above ``zone_relative_humidity_limit``, with and without control."""
+
+    above_limit: int  #: hours above the limit as the unit runs [h]
+    above_limit_without_control: int  #: the same hours without zone humidity control [h]
+
+
+def humidity_hours_above_limit(settings: AirHandlerSettings, result) -> HumidityHours:
+    """Hours the unit conditions the zone above its humidity limit, with and without control.
+
+    Counted over the operating hours that are not night cycling (the unit's outdoor air
+    conditions the zone), against ``zone_relative_humidity_limit``; a zone held exactly at
+    the limit is not above it. Without ``zone_relative_humidity_max`` the two are equal.
+
+    Parameters
+    ----------
+    settings : AirHandlerSettings
+        The air handler.
+    result : mapping or pandas.DataFrame
+        Hourly results with ``operating``, ``zone_relative_humidity`` and (for the count
+        without control) ``zone_relative_humidity_without_control``; ``night_cycle``
+        optional.
+
+    Returns
+    -------
+    HumidityHours
+    """
+    operating = np.asarray(result["operating"], dtype=bool)
+    if "night_cycle" in result:
+        operating = operating & ~np.asarray(result["night_cycle"], dtype=bool)
+    limit = settings.zone_relative_humidity_limit + _RH_TOLERANCE
+
+    def count(column):
+        rh = np.asarray(result[column], dtype=float)
+        return int((operating & (rh > limit)).sum())
+
+    with_control = count("zone_relative_humidity")
+    without = (
+        count("zone_relative_humidity_without_control")
+        if "zone_relative_humidity_without_control" in result
+        else with_control
+    )
+    return HumidityHours(with_control, without)
+
+
 def hourly_cautions(settings: AirHandlerSettings, result) -> list[str]:
     """Plain-language cautions from the hourly results (dict or DataFrame).
 
@@ -119,13 +174,24 @@ def hourly_cautions(settings: AirHandlerSettings, result) -> list[str]:
     limit = settings.zone_relative_humidity_limit
     cautions = []
     rh = np.asarray(result["zone_relative_humidity"], dtype=float)
-    high = conditioning & (rh > limit)
+    high = conditioning & (rh > limit + _RH_TOLERANCE)
     if np.any(high):
         cautions.append(
             f"Zone relative humidity is above {100 * limit:.0f} % "
             f"in {int(high.sum())} operating hours (highest {100 * np.max(rh[high]):.0f} %): risk "
             "of discomfort and mould. Check the coil leaving dew point, latent loads and outdoor "
             "air."
+        )
+    if settings.zone_relative_humidity_max is not None:
+        hours = humidity_hours_above_limit(settings, result)
+        reheat = np.asarray(result["humidity_control_reheat_kW"], dtype=float)
+        cautions.append(
+            f"Zone humidity control at {100 * settings.zone_relative_humidity_max:.0f} % "
+            f"relative humidity: {hours.above_limit_without_control} operating hours above "
+            f"{100 * limit:.0f} % without it, {hours.above_limit} with it; the coil runs "
+            f"colder and terminal reheat holds the zone dry bulb ("
+            f"{np.sum(reheat) / 1000.0:.1f} MWh over the record, peak {np.max(reheat):.1f} kW, "
+            "on the heating plant)."
         )
     unmet = np.asarray(result["zone_sensible_unmet_kW"], dtype=float)
     # shortfalls under 0.05 kW (a fraction of a percent of any zone load) are not flagged
@@ -148,7 +214,7 @@ def hourly_cautions(settings: AirHandlerSettings, result) -> list[str]:
             f"In {int(moist.sum())} operating hours part of the zone latent load cannot be removed "
             "(dry coil and no outdoor air, or a negative latent load)."
         )
-    humid_night = night & (rh > limit)
+    humid_night = night & (rh > limit + _RH_TOLERANCE)
     if np.any(humid_night):
         setback = settings.night_setback_drybulb
         setback = settings.zone_heating_drybulb if setback is None else setback
@@ -191,7 +257,10 @@ def hourly_year(settings: AirHandlerSettings, weather, zone_loads) -> pd.DataFra
         Index ``hour`` (hour of year); columns ``month``, :data:`HOURLY_COLUMNS`
         (``economizer_mode`` categorical with :data:`ECONOMIZER_MODES`) and the heat of
         the hours the fan is off, :data:`plantside.air_handler.unoccupied.
-        UNOCCUPIED_COLUMNS` (terminal heating or night cycling). ``attrs``:
+        UNOCCUPIED_COLUMNS` (terminal heating or night cycling), and
+        ``zone_relative_humidity_without_control`` [-] (the same year without
+        ``zone_relative_humidity_max``; equal to ``zone_relative_humidity`` for a unit
+        without it). ``attrs``:
         ``air_handler``, ``site``, ``airflow_basis``, ``cautions`` (list of str),
         ``humidity_iteration_change`` [kg/kg].
     """
@@ -202,12 +271,37 @@ def hourly_year(settings: AirHandlerSettings, weather, zone_loads) -> pd.DataFra
     result = serve_unoccupied_heating(
         settings, weather.drybulb, weather.humidity_ratio, weather.pressure, loads, result
     )
+    result["zone_relative_humidity_without_control"] = _humidity_without_control(
+        settings, weather, loads, result
+    )
     return _frame(settings, weather, result)
+
+
+def _humidity_without_control(settings, weather, loads, result):
+    """The zone relative humidity of the same year without zone humidity control [-].
+
+    The unit run again with ``zone_relative_humidity_max`` None (only for a unit that
+    has it); hours the first run replaced (night cycling, which has no humidity control)
+    keep their value.
+    """
+    rh = np.asarray(result["zone_relative_humidity"], dtype=float)
+    if settings.zone_relative_humidity_max is None:
+        return rh
+    free = air_handler_hours(
+        replace(settings, zone_relative_humidity_max=None),
+        weather.drybulb,
+        weather.humidity_ratio,
+        weather.pressure,
+        loads,
+        check=False,
+    )["zone_relative_humidity"]
+    night = np.asarray(result.get("night_cycle", np.zeros(rh.shape, bool)), dtype=bool)
+    return np.where(night, rh, free)
 
 
 def _frame(settings, weather, result) -> pd.DataFrame:
     data = {"month": np.asarray(weather.month)}
-    for key in (*HOURLY_COLUMNS, *UNOCCUPIED_COLUMNS):
+    for key in (*HOURLY_COLUMNS, *UNOCCUPIED_COLUMNS, "zone_relative_humidity_without_control"):
         if key in result:
             data[key] = result[key]
     data["economizer_mode"] = pd.Categorical.from_codes(
@@ -277,6 +371,7 @@ def outdoor_air_sweep(
             + r["preheat_kW"]
             + r["reheat_kW"]
             + r["dehumidification_reheat_kW"]
+            + r["humidity_control_reheat_kW"]
         )
         mode = r["economizer_mode"]
         rows.append(
@@ -294,7 +389,10 @@ def outdoor_air_sweep(
                     ((mode == MODE_FREE_COOLING) | (mode == MODE_INTEGRATED)).sum(axis=1),
                     (
                         operating
-                        & (r["zone_relative_humidity"] > settings.zone_relative_humidity_limit)
+                        & (
+                            r["zone_relative_humidity"]
+                            > settings.zone_relative_humidity_limit + _RH_TOLERANCE
+                        )
                     ).sum(axis=1),
                 ]
             )

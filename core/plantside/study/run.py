@@ -29,6 +29,7 @@ from plantside.air_handler.year import (
     cooling_design_points,
     heating_design_point,
     hourly_year,
+    humidity_hours_above_limit,
 )
 from plantside.air_handler.zone_loads import HourlyZoneLoads
 from plantside.climate.design_conditions import DesignConditions, design_conditions_from_weather
@@ -68,8 +69,15 @@ __all__ = [
 
 #: Hourly columns whose sum is an air handler's heating coil load [kW] (reheat after a
 #: dew-point coil counts only when its source is hot water; recovered condenser heat is
-#: ``condenser_heat_recovered_kW``, not a heating-plant load).
-heating_load_columns = ("preheat_kW", "heating_coil_kW", "reheat_kW", "dehumidification_reheat_kW")
+#: ``condenser_heat_recovered_kW``, not a heating-plant load; the terminal reheat of zone
+#: humidity control is hot water).
+heating_load_columns = (
+    "preheat_kW",
+    "heating_coil_kW",
+    "reheat_kW",
+    "dehumidification_reheat_kW",
+    "humidity_control_reheat_kW",
+)
 
 #: The cautions every study carries, whatever its numbers.
 GENERAL_CAUTIONS = (
@@ -427,6 +435,7 @@ def study_summary(result: StudyResult) -> dict:
         figures = headline_figures(
             scenario, result.air_handlers, result.conditions, air_handler=index
         )
+        humidity = humidity_hours_above_limit(unit.settings, hourly)
         units.append(
             {
                 "name": unit.name,
@@ -453,6 +462,17 @@ def study_summary(result: StudyResult) -> dict:
                 if "night_cycle" in hourly.columns
                 else 0,
                 "design_airflow": unit.settings.design_airflow,
+                "low_load_response": unit.settings.low_load_response,
+                "annual_terminal_reheat_kWh": load_energy(hourly["reheat_kW"].to_numpy()),
+                "zone_relative_humidity_max": unit.settings.zone_relative_humidity_max,
+                "zone_relative_humidity_limit": unit.settings.zone_relative_humidity_limit,
+                "hours_above_humidity_limit": humidity.above_limit,
+                "hours_above_humidity_limit_without_control": (
+                    humidity.above_limit_without_control
+                ),
+                "annual_humidity_control_reheat_kWh": load_energy(
+                    hourly["humidity_control_reheat_kW"].to_numpy()
+                ),
                 "economizer_hours": {
                     str(k): int(v) for k, v in hourly["economizer_mode"].value_counts().items()
                 },

@@ -46,6 +46,8 @@ The layout (field by field in the README)::
     design_airflow = "scheduled"  # cooling design at supply_airflow, or "load"
     unoccupied_heating = "terminal"   # fan off: perimeter/terminal heat, or "night_cycle"
     night_setback_drybulb = 60    # °F (IP) or °C (SI): unoccupied heating set point
+    low_load_response = "reheat"  # VAV terminal reheat, or "raise_supply_temperature"
+    zone_relative_humidity_max = 0.6  # optional zone humidity control (a fraction)
     ...
     [air_handler.zone]            # zone loads by the modified bin method, or
     cooling_design_sensible = 25  # tons (IP) or kW (SI)
