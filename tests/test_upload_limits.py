@@ -137,7 +137,6 @@ def test_dashboard_weather_upload_above_its_limit_is_refused_with_the_size():
     assert state.result is before
 
 
-
 @pytest.mark.parametrize(
     "text",
     [
@@ -157,6 +156,7 @@ def test_dashboard_scenario_upload_nested_too_deep_gets_a_message(text):
     message = dashboard.state.messages["scenario"]
     assert "nested more than" in message and "deep.toml" in message, message
     assert dashboard.state.result is before
+
 
 # ---------------------------------------------------------------------------------------
 # zone-load CSV: size and rows
@@ -409,3 +409,45 @@ def test_uploaded_scenario_may_name_a_file_inside_its_folder(tmp_path):
     )
     scenario = loads_scenario(text, "upload.toml", tmp_path, files="inside")
     assert scenario.load_weather().hours == 8760
+
+
+# ------------------------------------------------------------------ limits before the work
+def _scenario_of(count: int) -> str:
+    head, *units = (SCENARIOS / "linden_office_si.toml").read_text("utf-8").split("[[air_handler]]")
+    name = units[0].split('"')[1]
+    return head + "".join(
+        "[[air_handler]]" + units[0].replace(f'"{name}"', f'"AHU-{i}"', 1) for i in range(count)
+    )
+
+
+def test_more_air_handlers_than_the_limit_are_refused_before_the_work():
+    # MAX_AIR_HANDLERS (50, common practice: a plant serves a few to a few dozen units);
+    # a first attack uploaded 400 (22 s of CPU, 1.5 GB). The limit itself loads.
+    from plantside.study.scenario import MAX_AIR_HANDLERS
+
+    assert len(loads_scenario(_scenario_of(MAX_AIR_HANDLERS), "ok.toml").air_handlers) == 50
+    start = time.perf_counter()
+    with pytest.raises(ScenarioError) as caught:
+        loads_scenario(_scenario_of(400), "big.toml")
+    assert time.perf_counter() - start < 2.0  # parsing only: nothing is computed
+    assert caught.value.field == "air_handler"
+    assert "400 [[air_handler]] tables is more than the 50 allowed" in str(caught.value)
+
+
+@pytest.mark.parametrize(
+    "data",
+    [
+        b"\x89PNG\r\n\x1a\n" + bytes(range(1, 256)) * 8,  # a PNG signature, no NUL byte
+        bytes(range(1, 256)) * 8,  # binary without NUL bytes
+        b"PK\x03\x04" + b"x" * 200,  # a ZIP (.xlsx) signature
+    ],
+    ids=["png", "binary", "xlsx"],
+)
+def test_a_file_that_is_not_text_gets_a_plain_message(data):
+    # No codec error and no column hunt in binary junk: one problem saying what it is.
+    for read in (read_weather_csv, read_zone_loads_csv):
+        with pytest.raises(InputFileError) as caught:
+            read(data)
+        assert caught.value.problems == [caught.value.problems[0]]
+        problem = caught.value.problems[0]
+        assert problem.startswith("row 1: the file is not text (") and "codec" not in problem

@@ -36,7 +36,7 @@ from plantside.charts.export import chart_bytes, safe_filename
 from plantside.charts.labels import export_stamp
 from plantside.charts.palette import WIDTH
 from plantside.charts.study_frames import CHARTS, ChartView, chart_frames, study_chart
-from plantside.dashboard.controls import Controls, GuardedDropdown
+from plantside.dashboard.controls import Controls, GuardedButton, GuardedDropdown
 from plantside.dashboard.download import BrowserDownload
 from plantside.dashboard.panel_width import PanelWidth, fitted_plot_width
 from plantside.dashboard.serve import SCENARIO_ENVIRONMENT_VARIABLE
@@ -131,6 +131,7 @@ class Dashboard:
         self.state = DashboardState(scenario, view=view, air_handler=index)
         self.controls = Controls(self.state)
         self.controls.on_scenario_upload = self.load_scenario_file
+        self.controls.on_message = self._show_text  # e.g. an export's message
         self.download = BrowserDownload()
         # plot width of each chart on screen [px]: the builders' width until the page
         # reports its panels (exports keep the builders' fixed width)
@@ -183,7 +184,7 @@ class Dashboard:
         )
         c.guard("air_handler", air_handler)  # what the page sends is checked first
         air_handler.add_class("plantside-air-handler")
-        air_handler.observe(self._on_air_handler, names="value")
+        air_handler.observe(c.guarded("air_handler", self._on_air_handler), names="value")
         self.air_handler_choice = air_handler
         group = lambda text: widgets.HTML(f"<div class='ps-group'>{text}</div>")  # noqa: E731
         label = (
@@ -195,7 +196,11 @@ class Dashboard:
             self.mini_figures,
             group("Air handler"),
             widgets.VBox(
-                [widgets.HTML(f"<span class='plantside-label'>{label}</span>"), air_handler]
+                [
+                    widgets.HTML(f"<span class='plantside-label'>{label}</span>"),
+                    air_handler,
+                    c.messages["air_handler"],
+                ]
             ),
         ]
         sidebar_parts += [
@@ -249,14 +254,14 @@ class Dashboard:
 
     def _files_box(self) -> widgets.VBox:
         wide = widgets.Layout(width="96%")
-        csv_button = widgets.Button(description="Hourly results (CSV)", layout=wide)
+        csv_button = GuardedButton(description="Hourly results (CSV)", layout=wide)
         csv_button.add_class("plantside-export-csv")
-        csv_button.on_click(lambda _: self.export_hourly_csv())
-        toml_button = widgets.Button(
+        csv_button.on_click(self.controls.guarded("export", lambda _: self.export_hourly_csv()))
+        toml_button = GuardedButton(
             description="Save scenario with these settings (TOML)", layout=wide
         )
         toml_button.add_class("plantside-export-toml")
-        toml_button.on_click(lambda _: self.export_scenario())
+        toml_button.on_click(self.controls.guarded("export", lambda _: self.export_scenario()))
         self.file_buttons = {"csv": csv_button, "toml": toml_button}
         self.export_message = widgets.HTML()
         box = widgets.VBox(
@@ -275,13 +280,17 @@ class Dashboard:
         for name in CHARTS:
             row = []
             for fmt in ("png", "svg"):
-                button = widgets.Button(
+                button = GuardedButton(
                     description=fmt.upper(),
                     tooltip=f"Download this chart as {fmt.upper()}, stamped with its inputs",
                     layout=widgets.Layout(width="84px"),
                 )
                 button.add_class(f"plantside-export-{name}-{fmt}")
-                button.on_click(lambda _, n=name, f=fmt: self.export_chart(n, f))
+                button.on_click(
+                    self.controls.guarded(
+                        "export", lambda _, n=name, f=fmt: self.export_chart(n, f)
+                    )
+                )
                 row.append(button)
             buttons[name] = row
         return buttons

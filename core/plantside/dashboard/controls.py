@@ -18,11 +18,19 @@ What the page sends is checked before any widget trait sees it
 (:class:`GuardedInput`): ipywidgets would otherwise coerce it (``true`` to 1,
 ``"1_0"`` to 10) or clamp it to the slider's range. A refused value leaves
 the widget as it was, is pushed back to the page and its message is shown
-beside the control.
+beside the control. Buttons and file uploads are guarded the same way
+(:class:`GuardedButton`, :class:`GuardedFileUpload`).
+
+Every callback a widget runs goes through :meth:`Controls.guarded`: an error
+the model raises on purpose is shown beside the control; any other exception
+is logged on the server and the page gets a short message, never a
+traceback. Messages on the page are at most :data:`MAX_MESSAGE_CHARS` long.
 """
 
 from __future__ import annotations
 
+import html
+import logging
 import math
 from collections.abc import Callable
 from contextlib import contextmanager
@@ -32,19 +40,41 @@ import ipywidgets as widgets
 
 from plantside.climate.bundled import bundled_climate_description
 from plantside.dashboard.state import ECONOMIZER_CHOICES, FAN_CHOICES, DashboardState, display_text
-from plantside.errors import PlantsideError
+from plantside.errors import PlantsideError, excerpt
 from plantside.units import from_display, to_display
 
 __all__ = [
+    "MAX_MESSAGE_CHARS",
+    "MAX_UPLOAD_NAME_CHARS",
     "SLIDERS",
+    "UNEXPECTED_MESSAGE",
     "Controls",
+    "GuardedButton",
     "GuardedCheckbox",
     "GuardedDropdown",
+    "GuardedFileUpload",
     "GuardedFloatSlider",
     "GuardedInput",
     "GuardedToggleButtons",
     "SliderSpec",
 ]
+
+#: Server-side log of what the page must never see (exceptions no check foresaw).
+LOG = logging.getLogger("plantside.dashboard")
+
+#: Longest message shown beside a control [characters]; a longer one is shown as an
+#: excerpt (its start and end), so nothing a page sends is echoed whole.
+MAX_MESSAGE_CHARS = 400
+
+#: Longest uploaded file name accepted [characters] (a file name on the common file
+#: systems is at most 255 bytes).
+MAX_UPLOAD_NAME_CHARS = 255
+
+#: Shown beside a control when its callback failed in a way no check foresaw.
+UNEXPECTED_MESSAGE = (
+    "this change could not be handled (the details are in the server's log); "
+    "the figures show the last valid result"
+)
 
 
 class GuardedInput:
@@ -57,25 +87,51 @@ class GuardedInput:
     shows the value kept.
     """
 
-    input_key = "value"
+    input_key: str | None = "value"
     check: Callable[[object], str] | None = None
+    refused: Callable[[str], None] | None = None
 
     def set_state(self, sync_data):
-        others = sorted(key for key in sync_data if key != self.input_key)
+        if not isinstance(sync_data, dict):
+            self._refuse(f"expected the control's state, got {excerpt(repr(sync_data), 40)}", {})
+            return None
+        others = sorted(str(key) for key in sync_data if key != self.input_key)
         if others:
-            message = f"the page may set only this control's value, not {', '.join(others)}"
+            names = excerpt(", ".join(others), 80)
+            message = f"the page may set only this control's value, not {names}"
         elif self.check is not None and self.input_key in sync_data:
-            message = self.check(sync_data[self.input_key])
+            try:
+                message = self.check(sync_data[self.input_key])
+            except Exception:  # a check that failed refuses; never a traceback to the page
+                LOG.exception("checking %s of %s failed", self.input_key, type(self).__name__)
+                message = UNEXPECTED_MESSAGE
         else:
             message = ""
         if not message:
-            return super().set_state(sync_data)
-        if self.refused is not None:
-            self.refused(message)
-        self.send_state(key=[key for key in sync_data if key in self.keys])
+            try:
+                return super().set_state(sync_data)
+            except Exception:  # the callbacks are guarded; this is the trait machinery
+                LOG.exception("setting %s of %s failed", self.input_key, type(self).__name__)
+                message = UNEXPECTED_MESSAGE
+        self._refuse(message, sync_data)
         return None
 
-    refused: Callable[[str], None] | None = None
+    def _refuse(self, message: str, sync_data: dict) -> None:
+        """Show ``message`` beside the control and send the kept state back to the page."""
+        if self.refused is not None:
+            self.refused(message)
+        keys = [key for key in sync_data if key in self.keys] or (
+            [self.input_key] if self.input_key else []
+        )
+        if keys:
+            self.send_state(key=keys)
+
+    def _handle_custom_msg(self, content, buffers):
+        """Custom messages: only a button's ``{"event": "click"}``; anything else is dropped."""
+        if isinstance(self, widgets.Button) and isinstance(content, dict):
+            if content.get("event") == "click" and len(content) == 1:
+                return super()._handle_custom_msg(content, buffers)
+        return None
 
 
 class GuardedFloatSlider(GuardedInput, widgets.FloatSlider):
@@ -96,6 +152,60 @@ class GuardedToggleButtons(GuardedInput, widgets.ToggleButtons):
 
 class GuardedCheckbox(GuardedInput, widgets.Checkbox):
     """A Checkbox whose page messages are checked first (:class:`GuardedInput`)."""
+
+
+class GuardedButton(GuardedInput, widgets.Button):
+    """A Button the page can only click: no state is taken from the page."""
+
+    input_key = None
+
+
+class GuardedFileUpload(GuardedInput, widgets.FileUpload):
+    """A FileUpload that takes only one well-formed file from the page.
+
+    The page sends ``value`` as a list of ``{name, type, size, content,
+    last_modified}``; anything else (another shape, a name longer than
+    :data:`MAX_UPLOAD_NAME_CHARS`, content that is not bytes) is refused before
+    ipywidgets reads it.
+    """
+
+    def __init__(self, **kwargs):
+        super().__init__(**kwargs)
+        self.check = upload_problem
+
+
+def upload_problem(raw) -> str:
+    """ "" if ``raw`` is a FileUpload value the page may send (at most one file), else why not."""
+    if not isinstance(raw, list | tuple) or len(raw) > 1:
+        return "the upload must be one file"
+    for item in raw:
+        if not isinstance(item, dict) or set(item) != {
+            "name",
+            "type",
+            "size",
+            "content",
+            "last_modified",
+        }:
+            return "the upload is not a file"
+        name = item["name"]
+        if not isinstance(name, str) or not name:
+            return "the uploaded file has no name"
+        if len(name) > MAX_UPLOAD_NAME_CHARS:
+            return (
+                f"the file name {excerpt(name, 40)!r} is longer than the "
+                f"{MAX_UPLOAD_NAME_CHARS} characters allowed"
+            )
+        if not isinstance(item["content"], bytes | bytearray | memoryview):
+            return "the upload carries no file content"
+        if not isinstance(item["type"], str) or len(item["type"]) > MAX_UPLOAD_NAME_CHARS:
+            return "the upload's file type is not text"
+        for key in ("size", "last_modified"):
+            value = item[key]
+            if type(value) not in (int, float) or not math.isfinite(value) or value < 0:
+                return f"the upload's {key.replace('_', ' ')} is not a number"
+            if key == "last_modified" and value > 1e14:  # ms since 1970: beyond year 5000
+                return "the upload's last modified time is not a date"
+    return ""
 
 
 @dataclass(frozen=True)
@@ -194,9 +304,8 @@ def _message() -> widgets.HTML:
 def _message_html(text: str) -> str:
     if not text:
         return ""
-    import html
-
-    return f"<div class='plantside-message' role='alert'>⚠ {html.escape(text)}</div>"
+    shown = html.escape(excerpt(text, MAX_MESSAGE_CHARS))
+    return f"<div class='plantside-message' role='alert'>⚠ {shown}</div>"
 
 
 class Controls:
@@ -216,6 +325,8 @@ class Controls:
         self.state = state
         self._muted = False
         self.on_scenario_upload: Callable[[str, bytes], None] | None = None
+        #: Called after :meth:`show_message` (the dashboard shows messages it lays out).
+        self.on_message: Callable[[], None] | None = None
         system = state.inputs.unit_system
         self.widgets: dict[str, widgets.Widget] = {}
         self.labels: dict[str, widgets.HTML] = {}
@@ -240,7 +351,7 @@ class Controls:
             options=self._climate_options(), value=state.inputs.climate, description=""
         )
         self.widgets["climate"].add_class("plantside-climate")
-        self.widgets["weather_upload"] = widgets.FileUpload(
+        self.widgets["weather_upload"] = GuardedFileUpload(
             accept=".csv,text/csv",
             multiple=False,
             description="Upload hourly CSV",
@@ -281,7 +392,7 @@ class Controls:
             style={"button_width": "auto"},
         )
         self.widgets["unit_system"].add_class("plantside-unit-system")
-        self.widgets["scenario_upload"] = widgets.FileUpload(
+        self.widgets["scenario_upload"] = GuardedFileUpload(
             accept=".toml",
             multiple=False,
             description="Open scenario (TOML)",
@@ -289,11 +400,11 @@ class Controls:
             layout=widgets.Layout(width="auto"),
         )
         self.widgets["scenario_upload"].add_class("plantside-scenario-upload")
-        self.widgets["pin"] = widgets.Button(
+        self.widgets["pin"] = GuardedButton(
             description="Pin as A", tooltip="Freeze these results to compare with"
         )
         self.widgets["pin"].add_class("plantside-pin")
-        self.widgets["unpin"] = widgets.Button(description="Clear A", disabled=True)
+        self.widgets["unpin"] = GuardedButton(description="Clear A", disabled=True)
         self.widgets["unpin"].add_class("plantside-unpin")
 
         label_text = {
@@ -312,6 +423,9 @@ class Controls:
             self.labels[name] = _label(text)
             self.messages[name] = _message()
             self.messages[name].add_class(f"plantside-message-{name.replace('_', '-')}")
+        # the air handler choice is laid out by the dashboard; its message area is here
+        self.messages["air_handler"] = _message()
+        self.messages["air_handler"].add_class("plantside-message-air-handler")
         self._wire()
         state.listeners.append(lambda _state: self.refresh())
         self.refresh()
@@ -336,6 +450,21 @@ class Controls:
         spec = SLIDERS[name]
         return f"{spec.label} [{spec.unit(system)}]"
 
+    def _slider_si(self, name: str, shown: float, system: str) -> float:
+        """The SI value of slider ``name`` showing ``shown`` (display units).
+
+        The slider's ends are the state's range converted to the display units; an end
+        converted back is the range's end again, not a value off it by round-off
+        (74.3 °F back to 23.500000000000004 °C would be refused as outside 23.5 °C).
+        """
+        widget = self.widgets[name]
+        low, high = self.state.control_range(name)
+        if shown == widget.min:
+            return low
+        if shown == widget.max:
+            return high
+        return SLIDERS[name].from_display(shown, system)
+
     def _limits(self, name: str, system: str) -> tuple[float, float, float]:
         """A slider's (min, max, step) in display units: the state's range for the unit shown."""
         return SLIDERS[name].limits(*self.state.control_range(name), system)
@@ -347,8 +476,38 @@ class Controls:
         widget.refused = lambda message: self._refused(name, message)
 
     def _refused(self, name: str, message: str) -> None:
-        self.state.messages[name] = message
-        self.refresh()
+        self.show_message(name, message)
+
+    def show_message(self, name: str, message: str) -> None:
+        """Show ``message`` (an excerpt of it) beside control ``name``; never raises."""
+        self.state.messages[name] = excerpt(message, MAX_MESSAGE_CHARS)
+        try:
+            self.refresh()
+            if self.on_message is not None:
+                self.on_message()
+        except Exception:  # the page keeps what it shows; the server log has the cause
+            LOG.exception("refreshing the controls after a message for %s failed", name)
+
+    def guarded(self, name: str, callback: Callable) -> Callable:
+        """``callback`` run so that nothing it raises reaches the page.
+
+        A :class:`~plantside.errors.PlantsideError` is shown beside control ``name``;
+        any other exception is logged on the server (with its traceback) and the
+        control shows :data:`UNEXPECTED_MESSAGE`. Every widget callback of the
+        dashboard is wrapped in this.
+        """
+
+        def run(*args, **kwargs):
+            try:
+                return callback(*args, **kwargs)
+            except PlantsideError as error:
+                self.show_message(name, str(error))
+            except Exception:
+                LOG.exception("dashboard callback for %s failed", name)
+                self.show_message(name, UNEXPECTED_MESSAGE)
+            return None
+
+        return run
 
     def _check(self, name: str, widget, raw) -> str:
         """ "" if the raw value the page sent for control ``name`` may be taken, else why not.
@@ -372,7 +531,7 @@ class Controls:
             if not widget.min <= raw <= widget.max:
                 low, high = (f"{v:{SLIDERS[name].readout}}" for v in (widget.min, widget.max))
                 return f"{label} {raw:g}{unit} is outside the allowed {low} to {high}{unit}"
-            value = SLIDERS[name].from_display(float(raw), system)
+            value = self._slider_si(name, float(raw), system)
         elif isinstance(widget, GuardedCheckbox):
             if type(raw) is not bool:
                 return f"{label}: expected on or off, got {str(raw)[:40]!r}"
@@ -418,16 +577,32 @@ class Controls:
             "unit_system",
         ):
             self.guard(name, self.widgets[name])
+        for widget, name in (
+            ("weather_upload", "climate"),
+            ("scenario_upload", "scenario"),
+            ("pin", "pin"),
+            ("unpin", "pin"),
+        ):
+            self.widgets[widget].refused = lambda message, n=name: self._refused(n, message)
+        guarded = self.guarded
         for name in SLIDERS:
-            self.widgets[name].observe(self._slider_callback(name), names="value")
+            self.widgets[name].observe(guarded(name, self._slider_callback(name)), names="value")
         for name in ("climate", "economizer", "economizer_integrated", "fan_control"):
-            self.widgets[name].observe(self._choice_callback(name), names="value")
-        self.widgets["design_percent"].observe(self._choice_callback("design_percent"), "value")
-        self.widgets["unit_system"].observe(self._on_unit_system, names="value")
-        self.widgets["weather_upload"].observe(self._on_weather_upload, names="value")
-        self.widgets["scenario_upload"].observe(self._on_scenario_upload, names="value")
-        self.widgets["pin"].on_click(lambda _: self._pin(True))
-        self.widgets["unpin"].on_click(lambda _: self._pin(False))
+            self.widgets[name].observe(guarded(name, self._choice_callback(name)), names="value")
+        self.widgets["design_percent"].observe(
+            guarded("design_percent", self._choice_callback("design_percent")), names="value"
+        )
+        self.widgets["unit_system"].observe(
+            guarded("unit_system", self._on_unit_system), names="value"
+        )
+        self.widgets["weather_upload"].observe(
+            guarded("climate", self._on_weather_upload), names="value"
+        )
+        self.widgets["scenario_upload"].observe(
+            guarded("scenario", self._on_scenario_upload), names="value"
+        )
+        self.widgets["pin"].on_click(guarded("pin", lambda _: self._pin(True)))
+        self.widgets["unpin"].on_click(guarded("pin", lambda _: self._pin(False)))
 
     def _slider_callback(self, name: str):
         spec = SLIDERS[name]
@@ -437,7 +612,7 @@ class Controls:
                 return
             system = self.state.inputs.unit_system
             try:
-                value_si = spec.from_display(float(change["new"]), system)
+                value_si = self._slider_si(name, float(change["new"]), system)
             except (TypeError, ValueError):
                 self.state.messages[name] = f"{spec.label}: not a number"
                 self.refresh()

@@ -12,7 +12,7 @@ from pathlib import Path
 
 from plantside.errors import InputFileError
 
-__all__ = ["SourceText", "decode", "read_bytes", "read_text"]
+__all__ = ["SourceText", "binary_kind", "decode", "read_bytes", "read_text"]
 
 
 @dataclass
@@ -109,6 +109,47 @@ def read_bytes(
     return data, name, stem
 
 
+#: Start of files that are never CSV text, by what they are (their published signatures).
+_SIGNATURES = {
+    b"\x89PNG": "a PNG image",
+    b"GIF8": "a GIF image",
+    b"\xff\xd8\xff": "a JPEG image",
+    b"%PDF": "a PDF document",
+    b"PK\x03\x04": "a ZIP archive, such as an .xlsx workbook",
+    b"\xd0\xcf\x11\xe0": "an .xls workbook or another Office file",
+    b"\x1f\x8b": "a gzip archive",
+}
+#: Largest share of control bytes (other than tab, line feed, carriage return and form
+#: feed) in a text file; a CSV has none, random or compressed bytes about 1 in 9.
+MAX_CONTROL_SHARE = 0.01
+_CONTROL_BYTES = bytes([*range(0, 9), 11, *range(14, 32), 127])
+
+
+def binary_kind(data: bytes) -> str:
+    """What ``data`` is if it is not text (e.g. "a PNG image"), or "" for text.
+
+    A file is not text if it starts with the signature of an image, document or
+    archive, or if more than :data:`MAX_CONTROL_SHARE` of its bytes are control
+    characters (counted on the raw bytes, before any decoding).
+
+    Examples
+    --------
+    >>> binary_kind(b"\\x89PNG\\r\\n\\x1a\\n...")
+    'a PNG image'
+    >>> binary_kind(b"drybulb_C\\n20.5\\n")
+    ''
+    """
+    for signature, kind in _SIGNATURES.items():
+        if data.startswith(signature):
+            return kind
+    if not data:
+        return ""
+    controls = len(data) - len(data.translate(None, _CONTROL_BYTES))
+    if controls > MAX_CONTROL_SHARE * len(data):
+        return f"{controls:,} of its {len(data):,} bytes are control characters"
+    return ""
+
+
 def decode(data: bytes, name: str, notes: list[str]) -> str:
     """Text of ``data``: UTF-16 with a byte-order mark, UTF-8 (BOM or not), else Windows-1252.
 
@@ -118,7 +159,8 @@ def decode(data: bytes, name: str, notes: list[str]) -> str:
     Raises
     ------
     InputFileError
-        NUL bytes outside UTF-16 (a binary file), or a broken UTF-16 file.
+        NUL bytes outside UTF-16, any other file that is not text
+        (:func:`binary_kind`), or a broken UTF-16 file.
     """
     if data.startswith((b"\xff\xfe", b"\xfe\xff")):
         try:
@@ -133,6 +175,11 @@ def decode(data: bytes, name: str, notes: list[str]) -> str:
                 f"row {row}: the file contains NUL bytes: it is not a text (CSV) file; save "
                 f"it as UTF-8 CSV"
             ],
+        )
+    binary = binary_kind(data)
+    if binary:
+        raise InputFileError(
+            name, [f"row 1: the file is not text ({binary}); save it as a UTF-8 CSV file"]
         )
     try:
         return data.decode("utf-8-sig")

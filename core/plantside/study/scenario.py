@@ -88,6 +88,7 @@ from plantside.units import UnitSystem, from_display, to_display, unit_label
 __all__ = [
     "DEFAULT_PICKUP_PERCENT",
     "FIELD_QUANTITIES",
+    "MAX_AIR_HANDLERS",
     "MAX_SCENARIO_BYTES",
     "AirHandlerSpec",
     "PlantOptionSpec",
@@ -509,6 +510,12 @@ def _percent(source, where, value, high=100.0):
     return value
 
 
+#: Most air handlers in one scenario; each costs a year of hourly physics in every run,
+#: sweep case and dashboard change (400 took 22 s of CPU and 1.5 GB in the dashboard),
+#: and a plant serves a few to a few dozen (common practice).
+MAX_AIR_HANDLERS = 50
+
+
 def scenario_from_dict(
     data: dict, source: str = "<scenario>", base_dir=None, *, files: str = "any"
 ) -> Scenario:
@@ -532,6 +539,14 @@ def scenario_from_dict(
     for key in ("unit_system", "air_handler"):
         if key not in data:
             raise ScenarioError(source, key, "missing (required)")
+    # before any work: each air handler is a year of hourly physics wherever it is used
+    if isinstance(data["air_handler"], list) and len(data["air_handler"]) > MAX_AIR_HANDLERS:
+        raise ScenarioError(
+            source,
+            "air_handler",
+            f"{len(data['air_handler']):,} [[air_handler]] tables is more than the "
+            f"{MAX_AIR_HANDLERS} allowed in one scenario; split the plant into several scenarios",
+        )
     try:
         system = UnitSystem.parse(data["unit_system"])
     except InputRangeError as error:
