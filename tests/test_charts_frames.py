@@ -8,6 +8,7 @@ against psychrolib for the psychrometric chart's curves.
 
 from __future__ import annotations
 
+from dataclasses import replace
 from functools import cache
 
 import numpy as np
@@ -110,7 +111,7 @@ def test_design_breakdown_shows_every_term_of_the_balance():
     ip = frames.design_breakdown_frame(loads, "IP").set_index("component")
     assert ip.loc["Zone sensible", "load"] == pytest.approx(14.217, abs=5e-4)
     assert frame.loc["Economizer / recovery", "load"] == pytest.approx(-7.0)
-    assert frame.loc["Reheat", "load"] == pytest.approx(6.0)
+    assert frame.loc["Terminal reheat", "load"] == pytest.approx(6.0)
     assert frame.loc["Condensate heat", "load"] == pytest.approx(-0.5)
     # what the listed terms do not explain is shown, never hidden
     assert frame.loc["Other", "load"] == pytest.approx(1.25)
@@ -127,6 +128,72 @@ def test_design_breakdown_names_the_plant_distribution_gain():
     assert frame.loc["Distribution gain", "load"] == pytest.approx(5.0)
     assert "Other" not in frame.index
     assert frame.loc["Distribution gain", "end"] == pytest.approx(105.0)
+
+
+@pytest.mark.parametrize(
+    ("changes", "term", "step"),
+    [
+        # the coil holds a leaving dew point; its air is reheated in the unit (hot water)
+        (
+            {"coil_model": "leaving_dew_point", "leaving_dew_point": 10.0},
+            "dehumidification_reheat_kW",
+            "Dehumidification reheat",
+        ),
+        # the same reheat from the refrigeration condenser
+        (
+            {
+                "coil_model": "leaving_dew_point",
+                "leaving_dew_point": 10.0,
+                "reheat_source": "condenser_heat",
+            },
+            "condenser_heat_recovered_kW",
+            "Dehumidification reheat",
+        ),
+        # with a run-around exchanger (here it covers the whole reheat): heat moved around
+        # the coil is on neither side of the balance, no step of its own
+        (
+            {
+                "coil_model": "leaving_dew_point",
+                "leaving_dew_point": 10.0,
+                "coil_runaround_effectiveness": 0.5,
+            },
+            "coil_runaround_heat_kW",
+            None,
+        ),
+        # the scheduled airflow's surplus over the zone load, reheated at the terminals
+        ({"design_airflow": "scheduled"}, "reheat_kW", "Terminal reheat"),
+        # a coil driven colder to hold the zone humidity, then terminal reheat
+        (
+            {"zone_relative_humidity_max": 0.45, "zone_relative_humidity_limit": 0.6},
+            "humidity_control_reheat_kW",
+            "Terminal reheat",
+        ),
+    ],
+)
+def test_design_breakdown_of_the_model_leaves_nothing_unexplained(changes, term, step):
+    # the model's own design point: the named steps add up to its coil load (the energy
+    # balance of the air handler, ASHRAE Handbook Fundamentals 2017 Ch. 1 mixing, heating
+    # and cooling-and-dehumidifying balances), so no "Other" step is drawn
+    _, base, zone, _, _ = study()
+    settings = replace(base, **changes)
+    airflow = "scheduled" if changes.get("design_airflow") == "scheduled" else "load"
+    point = design_point(settings, zone, (*DESIGN_OUTDOOR, 101325.0), airflow=airflow)
+    loads = {key: float(value) for key, value in point.loads.items() if key.endswith("_kW")}
+    assert loads[term] > 0.1  # the case exercises its term
+    frame = frames.design_breakdown_frame(loads, "SI").set_index("component")
+    assert "Other" not in frame.index
+    if step is None:
+        return
+    assert frame.loc[step, "load"] == pytest.approx(
+        sum(
+            loads.get(key, 0.0)
+            for label, keys, _ in frames.BREAKDOWN_OPTIONAL
+            if label == step
+            for key in keys
+        ),
+        rel=1e-12,
+    )
+    assert frame.loc["Coil load", "load"] == pytest.approx(loads["coil_total_kW"], rel=1e-12)
 
 
 def test_design_breakdown_needs_the_coil_load():

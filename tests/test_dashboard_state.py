@@ -31,6 +31,7 @@ from plantside.dashboard.state import (
     condition_text,
     display_text,
 )
+from plantside.errors import InputRangeError
 from plantside.study.scenario import load_scenario, loads_scenario
 from plantside.units import tons_from_kw
 
@@ -248,10 +249,10 @@ def test_unit_system_switches_display_only_and_keeps_values(dashboard, scenario)
     # reference: the model itself at the settings on show (57 °F supply air)
     index = dashboard.state.inputs.air_handler
     settings = dashboard.state.current_scenario().air_handlers[index].settings
-    conditions = design_conditions_from_weather(load_bundled_climate(scenario.climate))
-    summary = cooling_design_points(
-        settings, scenario.air_handlers[index].zone, conditions.conditions, percent=0.4
-    )
+    weather = load_bundled_climate(scenario.climate)
+    conditions = design_conditions_from_weather(weather)
+    zone = scenario.zone_loads(index, weather)  # the zone with the site's sun attached
+    summary = cooling_design_points(settings, zone, conditions.conditions, percent=0.4)
     model_coil = summary.points[summary.governing].loads["coil_total_kW"]
     assert result.figures.design_coil_load == pytest.approx(model_coil, rel=1e-9)
     dashboard.controls.widgets["unit_system"].value = "SI"
@@ -260,7 +261,10 @@ def test_unit_system_switches_display_only_and_keeps_values(dashboard, scenario)
     assert dashboard.state.last_update["recomputed"] == ()
     assert "[°C]" in dashboard.controls.labels["supply_air_temperature"].value
     assert slider.value == pytest.approx(exact)  # 57 °F = 13.89 °C, unrounded
-    assert (slider.min, slider.max) == (6.0, 18.0)
+    # the slider spans what the model accepts, now in °C (AirHandlerSettings: supply_drybulb
+    # 4 °C to zone_cooling_drybulb - 0.5 K; the range the controls commit gave the slider)
+    zone = settings.zone_cooling_drybulb
+    assert (slider.min, slider.max) == pytest.approx((4.0, zone - 0.5))
     assert "kW" in dashboard.figures.value and "tons" not in dashboard.figures.value
     coil_si = breakdown_rows(dashboard)["Coil load"]
     assert coil_si == pytest.approx(dashboard.state.result.figures.design_coil_load, rel=1e-6)
@@ -396,7 +400,8 @@ def test_bad_weather_upload_shows_message_and_keeps_everything(dashboard):
     assert state.inputs.climate == before.inputs.climate
 
 
-def test_good_weather_upload_becomes_the_climate(dashboard, scenario):
+def port_calder_csv() -> bytes:
+    """Port Calder's year as a weather CSV (0.01 K, 1e-6 kg/kg, 1 Pa; no location)."""
     weather = load_bundled_climate("Port Calder")
     table = pd.DataFrame(
         {
@@ -406,18 +411,55 @@ def test_good_weather_upload_becomes_the_climate(dashboard, scenario):
             "pressure_Pa": np.round(weather.pressure),
         }
     )
-    data = table.to_csv(index=False).encode()
+    return table.to_csv(index=False).encode()
+
+
+def test_good_weather_upload_becomes_the_climate(scenario):
+    # A weather CSV does not say where it was recorded, and the glazed zones' solar gain
+    # needs the sun's position: the scenario's site gives it (site.latitude, ...; README),
+    # here Port Calder's own, so the upload is Port Calder's year at Port Calder.
+    weather = load_bundled_climate("Port Calder")
+    placed = replace(
+        scenario,
+        latitude=weather.latitude,
+        longitude=weather.longitude,
+        time_zone=weather.time_zone,
+    )
+    dashboard = Dashboard(placed, view="air_handler")
     upload = dashboard.controls.widgets["weather_upload"]
-    upload.value = upload_value("my site.csv", data)
+    upload.value = upload_value("my site.csv", port_calder_csv())
     state = dashboard.state
-    assert state.inputs.climate == "upload: my site.csv", state.messages["climate"]
+    assert state.messages["climate"] == ""
+    assert state.inputs.climate == "upload: my site.csv"
+    assert state.result.climate.source == "upload: my site.csv"
     assert dashboard.controls.widgets["climate"].value == "upload: my site.csv"
     index = state.inputs.air_handler
-    _, year = model_figures(scenario, index, climate="Port Calder")
+    # reference: the model on Port Calder's year at the site, with the clear-sky optical
+    # depths a CSV does not carry left to the solar model's defaults, as for a
+    # scenario's site.weather_file
+    clear_sky = replace(weather, beam_optical_depth=None, diffuse_optical_depth=None)
+    zone = placed.zone_loads(index, clear_sky)
+    year = hourly_year(placed.air_handlers[index].settings, clear_sky, zone)
     # the file holds Port Calder rounded to 0.01 K: same year within the rounding
     assert state.result.figures.cooling_energy == pytest.approx(
         year["coil_total_kW"].sum(), rel=2e-3
     )
+
+
+def test_weather_upload_for_glazed_zones_needs_the_site_location(dashboard):
+    # the Quillon site is a bundled climate without site.latitude: an uploaded year cannot
+    # place the sun on the glazed zones, so it is refused with the fields to give
+    # (README: give site.latitude, site.longitude for a weather CSV), nothing changed
+    state = dashboard.state
+    before = state.result
+    upload = dashboard.controls.widgets["weather_upload"]
+    upload.value = upload_value("my site.csv", port_calder_csv())
+    message = state.messages["climate"]
+    assert "site.latitude" in message and "site.time_zone" in message
+    assert state.result is before
+    assert state.inputs.climate == before.inputs.climate
+    assert "upload: my site.csv" not in state.uploaded
+    assert "upload: my site.csv" not in dict(dashboard.controls.widgets["climate"].options).values()
 
 
 # --------------------------------------------------------------------------- pin A, compare B
@@ -561,23 +603,68 @@ def test_all_headline_figures_are_finite(dashboard):
 
 
 # --------------------------------------------------------------------------- supply set points
+def lowest_reachable_supply(scenario, index, percent=0.4) -> float:
+    """Lowest supply air temperature [°C] at which the model's design points solve.
+
+    The scenario's leaving dew point limit and preheat set point follow the supply down
+    (as the dashboard carries them); bisection to 1 mK between the model's 4 °C floor
+    (AirHandlerSettings) and the scenario's own supply air temperature.
+    """
+    spec = scenario.air_handlers[index]
+    weather = load_bundled_climate(scenario.climate)
+    conditions = design_conditions_from_weather(weather).conditions
+    zone = scenario.zone_loads(index, weather)
+
+    def reached(supply):
+        settings = replace(
+            spec.settings,
+            supply_drybulb=supply,
+            leaving_dew_point=min(spec.settings.leaving_dew_point, supply),
+            preheat_drybulb=min(spec.settings.preheat_drybulb, supply),
+        )
+        try:
+            cooling_design_points(settings, zone, conditions, percent=percent)
+        except InputRangeError as error:
+            assert error.field == "apparatus_dew_point", error
+            return False
+        return True
+
+    bad, good = 4.0, float(spec.settings.supply_drybulb)
+    assert reached(good)
+    if reached(bad):
+        return bad
+    while good - bad > 1e-3:
+        middle = 0.5 * (bad + good)
+        bad, good = (bad, middle) if reached(middle) else (middle, good)
+    return good
+
+
 def test_supply_slider_carries_the_scenario_set_points_tied_to_it(scenario):
     # OA-1 of the example has a leaving dew point limit of 50 °F and preheat to 45 °F
     # (scenario file); the model accepts a leaving dew point at most the supply dry bulb
     # and a preheat set point at most the supply dry bulb (AirHandlerSettings ranges). A
-    # supply of 43 °F must still be accepted: both are carried down with it.
+    # supply below both must still be accepted: both are carried down with it.
     index = next(
         i
         for i, spec in enumerate(scenario.air_handlers)
         if spec.settings.coil_model == "leaving_dew_point"
     )
+    # The coil now leaves on its own process line at the leaving dew point, which follows
+    # the supply down: the lowest supply it reaches at design is the model's (about 7 °C,
+    # 44.6 °F, at 0.4 %), so 43 °F is no longer reachable. Take the lowest reachable
+    # supply from the model itself, on the 0.1 °F the cautions show, and check it is still
+    # below both set points, so both are carried.
+    lowest = lowest_reachable_supply(scenario, index)
+    chosen = math.ceil((lowest * 1.8 + 32.0) * 10.0) / 10.0  # °F
+    preheat_f = scenario.air_handlers[index].settings.preheat_drybulb * 1.8 + 32.0
+    assert chosen < preheat_f - 0.05
     dashboard = Dashboard(scenario, view="air_handler", air_handler=index)
     slider = dashboard.controls.widgets["supply_air_temperature"]
-    slider.value = 43.0
+    slider.value = chosen
     state = dashboard.state
     assert not any(state.messages.values()), state.messages
     supply = state.inputs.supply_air_temperature
-    assert supply == pytest.approx((43.0 - 32.0) / 1.8)
+    assert supply == pytest.approx((chosen - 32.0) / 1.8)
     settings = state.current_scenario().air_handlers[index].settings
     assert settings.leaving_dew_point == pytest.approx(supply)
     assert settings.preheat_drybulb == pytest.approx(supply)
@@ -590,7 +677,7 @@ def test_supply_slider_carries_the_scenario_set_points_tied_to_it(scenario):
     )
     # the page says what was carried, in the units on show
     cautions = dashboard.model_cautions.value
-    assert "leaving dew point limit (50.0 °F) is taken as 43.0 °F" in cautions
+    assert f"leaving dew point limit (50.0 °F) is taken as {chosen:.1f} °F" in cautions
     assert "preheat set point (45.0 °F)" in cautions
     # and the slider's top end is accepted too
     slider.value = slider.max

@@ -80,9 +80,21 @@ BREAKDOWN_COMPONENTS = (
 
 #: Further terms of the air handler's energy balance, drawn as steps only where they are not
 #: zero at the design hour (coil = zone + ventilation + fan heat - economizer - recovery
-#: + reheat - condensate heat + preheat + heating coil; see the air-handler contract).
+#: + terminal reheat + dehumidification reheat - condensate heat + preheat + heating coil;
+#: see :mod:`plantside.air_handler.results`). The reheats are grouped as the coil schedule
+#: groups them (:mod:`plantside.air_handler.coil_schedule`). The passive run-around
+#: exchanger around a dehumidifying coil (``coil_runaround_heat_kW``) moves heat from the
+#: air entering the coil to the air leaving it: it is on neither side of the balance, so it
+#: is no step (what it saves shows as less dehumidification reheat). The sun on glazing is
+#: part of the zone sensible load.
 BREAKDOWN_OPTIONAL = (
-    ("Reheat", ("reheat_kW",), 1.0),
+    # the terminals' reheat on the heating plant: at the scheduled airflow, the cooling the
+    # supply air gives beyond the zone load; after a coil driven colder to hold the zone
+    # humidity (zone_relative_humidity_max), the lift back to what the zone needs
+    ("Terminal reheat", ("reheat_kW", "humidity_control_reheat_kW"), 1.0),
+    # a leaving-dew-point coil's air reheated to the supply set point in the unit, from
+    # hot water or from the refrigeration condenser (after any run-around exchanger)
+    ("Dehumidification reheat", ("dehumidification_reheat_kW", "condenser_heat_recovered_kW"), 1.0),
     ("Preheat and heating coil", ("preheat_kW", "heating_coil_kW"), 1.0),
     ("Condensate heat", ("condensate_heat_kW",), -1.0),
     # plant view only: pump work and pipe heat gain between the coils and the plant
@@ -178,9 +190,12 @@ def design_breakdown_frame(loads: Mapping[str, float], system="SI") -> pd.DataFr
         ``ventilation_latent_kW``, ``fan_heat_kW``, ``economizer_effect_kW``
         and ``recovery_effect_kW`` (both positive when they reduce the coil
         load), and ``coil_total_kW``; where not zero, also the terms of
-        :data:`BREAKDOWN_OPTIONAL` (reheat, preheat and heating coil,
-        condensate heat, and for a plant ``distribution_gain_kW``, the pump and
-        pipe gain included in its coil load). A missing component counts as 0 kW. Whatever the
+        :data:`BREAKDOWN_OPTIONAL` (terminal reheat: ``reheat_kW`` and
+        ``humidity_control_reheat_kW``; dehumidification reheat:
+        ``dehumidification_reheat_kW`` and ``condenser_heat_recovered_kW``; preheat
+        and heating coil, condensate heat, and for a plant
+        ``distribution_gain_kW``, the pump and pipe gain included in its coil
+        load). A missing component counts as 0 kW. Whatever the
         steps do not explain is drawn as an "Other" step, so the waterfall
         always ends exactly on the model's coil load and never hides a
         discrepancy.

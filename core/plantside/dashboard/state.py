@@ -488,6 +488,7 @@ class DashboardState:
             unit_system=UnitSystem.parse(scenario.unit_system).value,
         )
         self._zone_loads: dict[tuple[str, int], object] = {}
+        self._climates = {}  # placed at this scenario's site (the sun on glazed zones)
         self._check_scenario_controls()
         self.result = self._compute(self.inputs, None, "all")
 
@@ -855,11 +856,11 @@ class DashboardState:
     def load_scenario(self, scenario: Scenario) -> None:
         """Replace the study by another scenario (controls take its values)."""
         start = time.perf_counter()
-        previous = (self.scenario, self.inputs, self.result, dict(self._zone_loads))
+        previous = (self.scenario, self.inputs, self.result, self._zone_loads, self._climates)
         try:
             self._start(scenario, 0)
         except PlantsideError as error:
-            self.scenario, self.inputs, self.result, self._zone_loads = previous
+            self.scenario, self.inputs, self.result, self._zone_loads, self._climates = previous
             self.messages["scenario"] = f"{scenario.source}: {error}"
             self._record("scenario", (), start, ok=False)
             return
@@ -921,23 +922,44 @@ class DashboardState:
             weather = read_weather_csv(
                 stream, site=label[len(UPLOAD_PREFIX) :], max_bytes=MAX_UPLOAD_BYTES
             )
-            self._climate_part(label, weather)  # its design conditions must work too
+            # its design conditions and every air handler's zone loads (the sun needs the
+            # site's place: the scenario's site.latitude, ...) must work too
+            part = self._climate_part(label, weather, cache=False)
+            zone_loads = {
+                (label, i): self.scenario.zone_loads(i, part.weather)
+                for i in range(len(self.names))
+            }
         except PlantsideError as error:
             self.messages["climate"] = str(error)
             self._record("climate", (), start, ok=False)
             return ""
         self.uploaded[label] = weather
+        self._climates[label] = part  # a file uploaded again under its name replaces it
+        self._zone_loads.update(zone_loads)
         self.set("climate", label)
         return label
 
-    def _climate_part(self, climate: str, weather: Weather | None = None) -> ClimatePart:
-        cached = self._climates.get(climate)
+    def _climate_part(
+        self, climate: str, weather: Weather | None = None, cache: bool = True
+    ) -> ClimatePart:
+        """Weather and design conditions of ``climate``, placed as the command line does.
+
+        The scenario's own climate and an uploaded year take the scenario's site
+        latitude, longitude and time zone where given
+        (:meth:`plantside.study.scenario.Scenario.located_weather`, as
+        :meth:`~plantside.study.scenario.Scenario.load_weather`); another bundled
+        site is where that site is.
+        """
+        cached = self._climates.get(climate) if cache else None
         if cached is not None:
             return cached
         if weather is None:
             weather = self.uploaded.get(climate) or load_bundled_climate(climate)
+        if climate == self.scenario.climate or climate not in BUNDLED_CLIMATES:
+            weather = self.scenario.located_weather(weather)
         part = ClimatePart(weather, design_conditions_from_weather(weather), climate)
-        self._climates[climate] = part
+        if cache:
+            self._climates[climate] = part
         return part
 
     def _unit_zone_loads(self, index: int, climate: ClimatePart):

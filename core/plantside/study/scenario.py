@@ -261,7 +261,7 @@ class Scenario:
     def load_weather(self) -> Weather:
         """The hourly weather of the site (bundled climate or CSV)."""
         if self.climate is not None:
-            return self._located(load_bundled_climate(self.climate))
+            return self.located_weather(load_bundled_climate(self.climate))
         path = _resolve(
             self.base_dir, self.weather_file, self.source, "site.weather_file", self.files
         )
@@ -274,10 +274,15 @@ class Scenario:
             )
         except (InputFileError, InputRangeError) as error:
             raise ScenarioError(self.source, "site.weather_file", str(error)) from error
-        return self._located(weather)
+        return self.located_weather(weather)
 
-    def _located(self, weather: Weather) -> Weather:
-        """The weather with the site's latitude, longitude and time zone, where given."""
+    def located_weather(self, weather: Weather) -> Weather:
+        """The weather with the site's latitude, longitude and time zone, where given.
+
+        A weather CSV does not say where it was recorded; the scenario's site does
+        (the sun on glazed zones needs it). The dashboard places an uploaded year
+        with it too, so both give the same figures.
+        """
         place = {
             name: getattr(self, name)
             for name in ("latitude", "longitude", "time_zone")
