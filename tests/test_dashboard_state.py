@@ -557,8 +557,9 @@ def test_plant_view_sums_every_air_handler(scenario):
     # moving one air handler's control recomputes only its year
     dashboard.controls.widgets["outdoor_air_fraction"].value = 35.0
     assert dashboard.state.last_update["recomputed"] == (dashboard.state.inputs.air_handler,)
-    # the curves reach the coincident peak (load-duration curve starts at the peak hour)
-    curves = [r for r in chart_rows(dashboard, "distribution") if r.get("series") == "Coil load"]
+    # the curves reach the coincident peak (load-duration curve starts at the peak hour); on
+    # the plant page the curve is the plant load (coils plus distribution gain)
+    curves = [r for r in chart_rows(dashboard, "distribution") if r.get("series") == "Plant load"]
     peak = max(r["load"] for r in curves)
     assert peak == pytest.approx(
         float(tons_from_kw(dashboard.state.result.figures.peak_coil_load)), rel=1e-6

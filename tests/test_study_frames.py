@@ -56,9 +56,11 @@ def test_plant_frames_carry_the_study_figures(study):
     assert figures.design_coil_load == result.cooling.design_load
     assert figures.recommended_capacity == result.cooling.design_capacity
     design = chart_frames("design", view, "IP")["frame"]
-    coil = design.loc[design["component"] == "Coil load", "load"].iloc[-1]
+    # the plant's waterfall ends on the plant load (coils plus distribution gain), so named
+    assert "Coil load" not in set(design["component"])
+    plant = design.loc[design["component"] == "Plant load", "load"].iloc[-1]
     # tolerance: the 7 significant figures of the ton quoted above
-    assert coil == pytest.approx(figures.design_coil_load / KW_PER_TON, rel=1e-6)
+    assert plant == pytest.approx(figures.design_coil_load / KW_PER_TON, rel=1e-6)
     lines = chart_frames("distribution", view, "SI")["lines"]
     capacity = lines.loc[lines["kind"] == "capacity", "load"].iloc[0]
     assert capacity == pytest.approx(sum(figures.machine_capacities), rel=1e-12)
@@ -70,6 +72,27 @@ def test_plant_frames_carry_the_study_figures(study):
     table = year_table(view)
     np.testing.assert_array_equal(table["coil_total_kW"].to_numpy(), result.cooling.hourly_load)
     assert (table["operating"] == (result.cooling.hourly_load > 0)).all()
+    # the plant's year: its hours are not coloured by one air handler's economizer mode,
+    # and what is left out is said to be the hours with no plant load
+    year = chart_frames("year", view, "SI")["frame"]
+    assert set(year["mode"]) == {"Hours with plant load"}
+    assert year.attrs["off_label"] == "hours with no plant load"
+    assert year.attrs["hours_off"] == int((result.cooling.hourly_load <= 0).sum())
+    # the stage lines and the weights name the plant option they stage
+    option = result.scenario.cooling_options[0].name
+    stages = lines.loc[lines["kind"] == "stage", "line"]
+    assert len(stages) and all(line.endswith(f"({option})") for line in stages)
+    weights = chart_frames("distribution", view, "SI")["weights"]
+    assert weights.attrs["option"] == option
+
+
+def test_one_air_handler_has_a_coil_capacity_not_a_plant_capacity(study):
+    view = study[2][1][1]
+    lines = chart_frames("distribution", view, "SI")["lines"]
+    names = set(lines.loc[lines["kind"] == "capacity", "line"])
+    assert names == {"Recommended coil capacity"}
+    design = chart_frames("design", view, "SI")["frame"]
+    assert "Coil load" in set(design["component"])
 
 
 def test_unknown_chart_is_refused(study):

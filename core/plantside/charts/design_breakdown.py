@@ -48,10 +48,12 @@ def _ratio_text(frame: pd.DataFrame) -> list[str]:
     for key in scenarios_in(frame) or [None]:
         part = frame if key is None else frame[frame[SCENARIO_COLUMN] == key]
         totals = part.set_index("component")["load"]
-        zone, coil = float(totals.get("Zone load", np.nan)), float(totals.get("Coil load", np.nan))
+        # the plant view ends on the plant load (coils plus distribution gain)
+        last = "Plant load" if "Plant load" in totals.index else "Coil load"
+        zone, total = float(totals.get("Zone load", np.nan)), float(totals.get(last, np.nan))
         prefix = "" if key is None else f"{key}: "
         if np.isfinite(zone) and zone > 0:
-            lines.append(f"{prefix}coil load is {coil / zone:.2f} × the zone load")
+            lines.append(f"{prefix}{last.lower()} is {total / zone:.2f} × the zone load")
     return lines
 
 

@@ -227,6 +227,15 @@ def _weights_data(weights: pd.DataFrame) -> pd.DataFrame:
     return data
 
 
+def _weights_title(data: pd.DataFrame) -> str | list[str]:
+    """The weights panel's title, naming the plant option staged (``attrs["option"]``)."""
+    option = data.attrs.get("option") or next(
+        (a.get("option") for a in data.attrs.get("scenarios", {}).values() if a.get("option")),
+        None,
+    )
+    return [_WEIGHTS_TITLE, f"(plant option: {option})"] if option else _WEIGHTS_TITLE
+
+
 #: Opacity of A's and B's building weights, as the histogram draws A and B (compare.py).
 _BUILDING_OPACITY = {"A": 0.45, "B": 0.95}
 
@@ -272,7 +281,7 @@ def _weights_layer(data: pd.DataFrame, basis: str, width, height):
     named = alt.NamedData(name="weights")
     bars = alt.Chart(named).mark_bar().encode(**encoding)
     if len(sources) > 2:  # three bars a point leave no room for readable labels
-        return layered([bars], width=width, height=height, title=_panel_title(_WEIGHTS_TITLE))
+        return layered([bars], width=width, height=height, title=_panel_title(_weights_title(data)))
     text = (
         alt.Chart(named)
         .mark_text(baseline="bottom", dy=-2, fontSize=13, color=INK)
@@ -287,7 +296,7 @@ def _weights_layer(data: pd.DataFrame, basis: str, width, height):
         [bars, text],
         width=width,
         height=height,
-        title=_panel_title(_WEIGHTS_TITLE),
+        title=_panel_title(_weights_title(data)),
     )
 
 

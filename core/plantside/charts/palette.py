@@ -114,6 +114,7 @@ COMPONENT_COLOURS = {
     "Distribution gain": "#661100",  # dark brown (Tol dark): pumps and pipes, plant view
     "Zone load": ZONE,
     "Coil load": COIL,
+    "Plant load": PLANT,  # plant view: the coils plus the distribution gain
 }
 
 # --- economizer modes (Okabe-Ito [1]) -----------------------------------------------------

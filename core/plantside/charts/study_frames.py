@@ -91,8 +91,18 @@ class ChartView:
     climate: str
 
 
+#: Name of the plant's load (the air handlers' coil loads plus the distribution gain).
+PLANT_LOAD = "Plant load"
+#: The one "mode" of the plant's hours on the year chart (they have no one economizer mode).
+PLANT_HOURS = "Hours with plant load"
+
+
 def year_table(view: ChartView) -> pd.DataFrame:
-    """The hourly table chart 2 bins: the air handler's year, or the plant's loads."""
+    """The hourly table chart 2 bins: the air handler's year, or the plant's loads.
+
+    The plant's hours are coloured as one (the economizer modes are those of each air
+    handler, not of the plant), and the hours left out are those with no plant load.
+    """
     if not view.plant:
         return view.unit.hourly
     coil, zone = view.loads
@@ -101,7 +111,7 @@ def year_table(view: ChartView) -> pd.DataFrame:
             "coil_total_kW": coil,
             "zone_sensible_kW": zone,
             "zone_latent_kW": np.zeros_like(zone),
-            "economizer_mode": view.unit.hourly["economizer_mode"].to_numpy(),
+            "economizer_mode": np.full(coil.shape, PLANT_HOURS),
             "operating": coil > 0,
         }
     )
@@ -155,18 +165,38 @@ def chart_frames(
     """
     figures = view.figures
     if name == "design":
-        return {"frame": _f.design_breakdown_frame(figures.design_loads, system)}
+        frame = _f.design_breakdown_frame(figures.design_loads, system)
+        if view.plant:  # the air handlers' coils plus the distribution gain: the plant's load
+            frame["component"] = frame["component"].replace({"Coil load": PLANT_LOAD})
+        return {"frame": frame}
     if name == "year":
-        return {"frame": _f.year_scatter_frame(year_table(view), system)}
+        frame = _f.year_scatter_frame(year_table(view), system)
+        if view.plant:
+            frame.attrs["off_label"] = "hours with no plant load"
+            frame.attrs["colour_label"] = "Plant"
+            frame.attrs["load_label"] = PLANT_LOAD
+        return {"frame": frame}
     if name == "distribution":
         coil, zone = view.loads
         capacities = np.asarray(figures.machine_capacities, dtype=float)
         staged = stage_machines(np.maximum(coil, 0.0), capacities, figures.minimum_turndown)
+        lines = _f.capacity_lines_frame(capacities, system)
+        if not view.plant:  # one air handler's coil, not a plant
+            lines["line"] = lines["line"].replace({"Plant capacity": "Recommended coil capacity"})
+        else:  # the stage lines are the machines of one plant option: name it
+            stages = lines["kind"] == "stage"
+            lines.loc[stages, "line"] = [
+                f"{line} ({figures.option_name})" for line in lines.loc[stages, "line"]
+            ]
+        weights = _f.iplv_weights_frame(staged.machine_load, capacities, system)
+        weights.attrs["option"] = figures.option_name
         return {
-            "curves": _f.load_duration_frame({"Coil load": coil, "Zone load": zone}, system),
-            "lines": _f.capacity_lines_frame(capacities, system),
+            "curves": _f.load_duration_frame(
+                {("Plant load" if view.plant else "Coil load"): coil, "Zone load": zone}, system
+            ),
+            "lines": lines,
             "bins": _f.part_load_frame(coil, figures.recommended_capacity, system),
-            "weights": _f.iplv_weights_frame(staged.machine_load, capacities, system),
+            "weights": weights,
         }
     if name == "psychrometric":
         return _psychrometric(view, system, cache)
@@ -187,14 +217,22 @@ def study_chart(name: str, frames: dict, system: str, view: ChartView, width: in
         return design_breakdown_chart(
             frames["frame"],
             system,
-            title=f"Design coil load of {who}, from zone to coil",
+            title=(
+                "Design plant load, from the zone loads to the plant"
+                if view.plant
+                else f"Design coil load of {who}, from zone to coil"
+            ),
             width=width,
         )
     if name == "year":
         return year_scatter_chart(
             frames["frame"],
             system,
-            title=f"The year hour by hour: coil load against zone load, {who}",
+            title=(
+                "The year hour by hour: plant load against zone load"
+                if view.plant
+                else f"The year hour by hour: coil load against zone load, {who}"
+            ),
             width=width,
         )
     if name == "distribution":

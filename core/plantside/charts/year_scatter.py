@@ -54,9 +54,22 @@ def _ticks(domain: list[float]) -> list[float]:
     return [float(v) for v in np.arange(first, domain[1] + 1e-9, step)]
 
 
-def _panel(scenario, system, domains, modes, colours, size_max, fmt, width, height, legend="right"):
+def _panel(
+    scenario,
+    system,
+    domains,
+    modes,
+    colours,
+    size_max,
+    fmt,
+    width,
+    height,
+    legend="right",
+    legend_title="Economizer mode",
+    load_label="Coil total load",
+):
     power = axis_title("Zone load", "power", system)
-    coil_title = axis_title("Coil total load", "power", system)
+    coil_title = axis_title(load_label, "power", system)
     x_domain, y_domain = domains
     # the coil = zone diagonal across the part of the plot where both axes overlap
     low = max(x_domain[0], y_domain[0])
@@ -105,7 +118,7 @@ def _panel(scenario, system, domains, modes, colours, size_max, fmt, width, heig
         ),
         color=alt.Color(
             "mode_label:N",
-            title="Economizer mode",
+            title=legend_title,
             # below the panels: two columns, so the row is no wider than A and B
             legend=alt.Legend(orient=legend, columns=2)
             if legend == "bottom"
@@ -117,7 +130,7 @@ def _panel(scenario, system, domains, modes, colours, size_max, fmt, width, heig
         ),
         order=alt.Order("hours:Q", sort="descending"),
         tooltip=[
-            alt.Tooltip("mode_label:N", title="Economizer mode"),
+            alt.Tooltip("mode_label:N", title=legend_title),
             alt.Tooltip("zone_low:Q", title=f"{power}, from", format=fmt),
             alt.Tooltip("zone_high:Q", title="to", format=fmt),
             alt.Tooltip("coil_low:Q", title=f"{coil_title}, from", format=fmt),
@@ -175,6 +188,10 @@ def year_scatter_chart(
     size_max = int(frame["hours"].max()) if len(frame) else 1
     fmt = value_format(domains[0] + domains[1])
     keys = scenarios_in(frame)
+    # a plant's hours have no one economizer mode: the frame then says what its colour means
+    by_mode = any(m in ECONOMIZER_MODES for m in modes)
+    legend_title = "Economizer mode" if by_mode else _frame_note(frame, "colour_label", "Hours")
+    load_label = _frame_note(frame, "load_label", "Coil total load")
     total = plot_width(width)
     side = total if not keys else int(total * 0.5)
     # heights follow the default width, so a wide panel does not make a tall chart
@@ -184,17 +201,43 @@ def year_scatter_chart(
         step = float((frame["zone_high"] - frame["zone_low"]).iloc[0])
         unit = axis_title("", "power", system).strip()[1:-1]
         subtitle.append(
-            f"Circle area: hours in a cell of {step:g} × {step:g} {unit}; colour: economizer mode"
+            f"Circle area: hours in a cell of {step:g} × {step:g} {unit}"
+            + ("; colour: economizer mode" if by_mode else "")
         )
     off = _hours_off(frame, keys)
     if off:
-        subtitle.append(f"Not shown: hours with the fan off ({off})")
+        subtitle.append(f"Not shown: {_frame_note(frame, 'off_label', _OFF_LABEL)} ({off})")
     if not keys:
-        chart = _panel(None, system, domains, modes, colours, size_max, fmt, side, height)
+        chart = _panel(
+            None,
+            system,
+            domains,
+            modes,
+            colours,
+            size_max,
+            fmt,
+            side,
+            height,
+            "right",
+            legend_title,
+        )
     else:
         panels = [
             # legends below the two panels: A and B side by side fit a 1600 px window
-            _panel(key, system, domains, modes, colours, size_max, fmt, side, height, "bottom")
+            _panel(
+                key,
+                system,
+                domains,
+                modes,
+                colours,
+                size_max,
+                fmt,
+                side,
+                height,
+                "bottom",
+                legend_title,
+                load_label,
+            )
             for key in keys
         ]
         chart = concatenated(
@@ -206,6 +249,20 @@ def year_scatter_chart(
         subtitle=subtitle,
         datasets={"year": frame},
     )
+
+
+#: What the hours left out are, unless the frame says (``attrs["off_label"]``).
+_OFF_LABEL = "hours with the fan off"
+
+
+def _frame_note(frame: pd.DataFrame, key: str, default: str) -> str:
+    """A note the frame carries in ``attrs`` (or, for A and B, in either scenario's)."""
+    if frame.attrs.get(key):
+        return str(frame.attrs[key])
+    for attrs in frame.attrs.get("scenarios", {}).values():
+        if attrs.get(key):
+            return str(attrs[key])
+    return default
 
 
 def _hours_off(frame: pd.DataFrame, keys: list[str]) -> str:

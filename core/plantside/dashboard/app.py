@@ -467,7 +467,7 @@ class Dashboard:
         capacity, _ = _quantity("power", now.recommended_capacity, system)
         stale = "<div class='ps-stale'>⚠ last valid result shown</div>" if self.state.stale else ""
         return (
-            f"Design coil load <b>{coil}</b> {unit} "
+            f"{self._design_load_label()} <b>{coil}</b> {unit} "
             f"({now.coil_to_zone_ratio:.2f} × the zone load)<br>"
             f"Recommended capacity <b>{capacity}</b> {unit}{stale}"
         )
@@ -488,7 +488,7 @@ class Dashboard:
         cards = [
             ("Design zone load", "ps-zone", "design_zone_load", power, "sensible + latent"),
             (
-                "Design coil load",
+                self._design_load_label(),
                 "",
                 "design_coil_load",
                 power,
@@ -499,7 +499,7 @@ class Dashboard:
                 "",
                 "recommended_capacity",
                 power,
-                f"design coil load + {margin:g} % margin",
+                f"{self._design_load_label().lower()} + {margin:g} % margin",
             ),
             ("Peak coil load, year", "", "peak_coil_load", power, "highest hour of the year"),
             ("Governing design condition", "ps-wide ps-neutral", "governing", None, ""),
@@ -561,9 +561,20 @@ class Dashboard:
             ),
         )
 
-    def _file_stem(self) -> str:
+    def _design_load_label(self) -> str:
+        """The design load's name: a plant's includes the distribution gain (plant load)."""
+        return "Design plant load" if self.view == "plant" else "Design coil load"
+
+    def _file_stem(self, chart: str | None = None) -> str:
+        """Start of an export's file name: the study, then what it shows (the plant or the
+        air handler; on the plant page, the air handler a per-unit chart draws)."""
         title = self.state.scenario.title.split(":")[0]
-        return safe_filename(title.replace(" ", "-").lower())
+        unit = self.state.result.unit.name
+        if self.view == "plant":
+            shown = f"plant-{unit}" if chart in ("psychrometric", "sweep") else "plant"
+        else:
+            shown = unit
+        return safe_filename(f"{title}-{shown}".replace(" ", "-").lower())
 
     def export_chart(self, name: str, fmt: str) -> str:
         """Send chart ``name`` to the browser as PNG or SVG, stamped. Returns the file name."""
@@ -581,7 +592,7 @@ class Dashboard:
             return ""
         mime = "image/png" if fmt == "png" else "image/svg+xml"
         self.state.messages["export"] = ""
-        return self.download.send_file(data, f"{self._file_stem()}-{CHARTS[name]}.{fmt}", mime)
+        return self.download.send_file(data, f"{self._file_stem(name)}-{CHARTS[name]}.{fmt}", mime)
 
     def hourly_csv(self) -> bytes:
         """The hourly results on show as CSV, with the stamp as comment lines."""
@@ -618,7 +629,10 @@ class Dashboard:
     def export_scenario(self) -> str:
         """Send the current scenario to the browser as TOML."""
         return self.download.send_file(
-            self.scenario_toml().encode("utf-8"), f"{self._file_stem()}.toml", "application/toml"
+            self.scenario_toml().encode("utf-8"),
+            safe_filename(self.state.scenario.title.split(":")[0].replace(" ", "-").lower())
+            + ".toml",
+            "application/toml",
         )
 
     def load_scenario_file(self, name: str, data: bytes) -> bool:
