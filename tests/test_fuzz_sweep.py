@@ -176,3 +176,13 @@ def test_damaged_sweep_files_load_or_fail_with_a_field(damage, encoding, data):
         return loads_sweep(read_toml_text(raw, "sweep.toml"), "sweep.toml", SWEEPS)
 
     judge(load, "sweep.toml")
+
+
+def test_sw1_a_base_name_too_long_for_the_file_system_names_the_field():
+    # Found by the long run: a 5,000-character base name raised OSError (name too long).
+    text = EXAMPLE.read_text(encoding="utf-8").replace(
+        "../scenarios/quillon_clinic.toml", "x" * 5000, 1
+    )
+    error = judge(lambda: loads_sweep(text, "sweep.toml", SWEEPS), "sweep.toml")
+    assert isinstance(error, ScenarioError) and error.field == "sweep.base"
+    assert len(str(error)) < 400  # the name is quoted as an excerpt

@@ -543,7 +543,15 @@ def loads_sweep(text: str, source: str = "<sweep>", base_dir=None) -> Sweep:
         path = Path(base_name)
         if not path.is_absolute():
             path = Path(os.path.normpath(base_dir / path))
-        if not path.is_file():
+        try:
+            found = path.is_file()
+        except (OSError, ValueError) as error:  # a name the file system refuses (too long)
+            raise ScenarioError(
+                source,
+                "sweep.base",
+                f"file {_quoted(base_name)} cannot be opened: {excerpt(error)}",
+            ) from None
+        if not found:
             raise ScenarioError(
                 source,
                 "sweep.base",
