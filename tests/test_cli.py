@@ -1,6 +1,7 @@
 """The command line: every example scenario runs; corrupted copies exit 2 with a message."""
 
 import json
+import re
 import subprocess
 import sys
 from pathlib import Path
@@ -136,3 +137,36 @@ def test_climates_and_design_show_the_suggested_climate_zone(capsys):
     text = capsys.readouterr().out
     assert "climate zone 2A (site.climate_zone)" in text
     assert "economizer_drybulb_limit 70 °F is above" in text
+
+
+def test_cautions_of_an_ip_study_are_in_its_units_and_the_disclaimer_once(capsys):
+    assert main(["design", str(CLINIC)]) == 0
+    cautions = [line for line in capsys.readouterr().out.splitlines() if line.startswith("!")]
+    text = "\n".join(cautions)
+    # the clinic is an I-P study: powers in tons (AHRI 550/590), temperatures in °F
+    assert re.search(r"\d tons", text), text
+    assert not re.search(r"\d(?:\.\d+)? ?(?:kW|kWh|°C)\b", text), text
+    # one disclaimer line, not one from the study and another from the plant sizing
+    assert sum("licensed engineer" in line for line in cautions) == 1
+
+
+def test_cautions_in_the_json_stay_si(capsys):
+    assert main(["design", str(CLINIC), "--json"]) == 0
+    cautions = json.loads(capsys.readouterr().out)["cautions"]
+    assert any(re.search(r"\d kW", c) for c in cautions)
+    assert not any(re.search(r"\d tons", c) for c in cautions)
+
+
+def test_every_mistake_of_an_ip_file_is_reported_in_its_units(tmp_path, capsys):
+    text = CLINIC.read_text(encoding="utf-8")
+    text = text.replace("supply_airflow = 14000", "supply_airflow = -200", 1)
+    text = text.replace("bypass_factor = 0.10", "bypass_factor = 1.5", 1)
+    path = tmp_path / "two.toml"
+    path.write_text(text, encoding="utf-8")
+    assert main(["design", str(path)]) == 2
+    err = capsys.readouterr().err
+    assert "and 1 more mistake" in err
+    # -200 cfm as written (the README promises the file's units), not m³/s
+    assert "air_handler[2].supply_airflow: supply_airflow = -200.0 cfm" in err
+    assert "air_handler[2].bypass_factor" in err
+    assert "m³/s" not in err and "Traceback" not in err

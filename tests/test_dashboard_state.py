@@ -517,7 +517,15 @@ def test_hourly_csv_and_scenario_toml(dashboard, scenario):
     settings = again.air_handlers[index].settings
     assert settings.minimum_outdoor_air_fraction == pytest.approx(0.25)
     assert settings.minimum_outdoor_airflow is None
-    assert str(again.unit_system) == "SI"
+    # saved while viewing SI, the I-P study stays I-P: the units on screen are a view
+    # setting; its airflows are written in cfm as the file has them (4,500 cfm, not
+    # 2,123.76 L/s; NIST SP 811 factor), numbers to six significant digits
+    assert str(again.unit_system) == "IP"
+    saved = tomllib.loads(text)
+    assert saved["unit_system"] == "IP"
+    written = [unit["supply_airflow"] for unit in saved["air_handler"]]
+    in_file = [unit["supply_airflow"] for unit in tomllib.loads(EXAMPLE.read_text())["air_handler"]]
+    assert written == in_file
     # and it opens in the dashboard with the same results
     reopened = Dashboard(again, view="air_handler", air_handler=index)
     assert reopened.state.result.figures.design_coil_load == pytest.approx(
@@ -801,6 +809,8 @@ def test_model_text_reads_in_the_units_on_show():
     # temperatures and powers in the model's SI messages; 1 ton = 3.516853 kW (AHRI 550/590)
     text = "supply 3 °C is outside 4 to 23.5 °C; 35.17 kW unmet; 12 kWh; 0.5 K"
     assert display_text(text, "SI") == text
+    # energy too: 12 kWh = 3.41 ton·h (the command line's cautions of an I-P study use the
+    # same function, so no kWh is left in them)
     assert display_text(text, "IP") == (
-        "supply 37.4 °F is outside 39.2 to 74.3 °F; 10.0 tons unmet; 12 kWh; 0.5 K"
+        "supply 37.4 °F is outside 39.2 to 74.3 °F; 10.0 tons unmet; 3.41 ton·h; 0.5 K"
     )

@@ -2,6 +2,7 @@
 
 import dataclasses
 import math
+import tomllib
 from pathlib import Path
 
 import pytest
@@ -183,3 +184,106 @@ def test_saved_title_with_control_characters_opens_again():
     odd = dataclasses.replace(scenario, title="Ward A\nfoo = 1\r\x0c\x7f end")
     again = loads_scenario(dumps_scenario(odd), "again.toml", CLINIC.parent)
     assert again.title == odd.title
+
+
+# ---------------------------------------------------------------------------------------
+# every mistake, in the file's units
+# ---------------------------------------------------------------------------------------
+def _clinic_with(*changes):
+    """The clinic's text with each (old, new) replaced once, in order."""
+    text = CLINIC.read_text(encoding="utf-8")
+    for old, new in changes:
+        assert old in text, old
+        text = text.replace(old, new, 1)
+    return text
+
+
+def test_every_mistake_of_a_file_is_reported_in_its_units():
+    text = _clinic_with(
+        ("cooling_margin_percent = 10.0", "cooling_margin_percent = -5"),
+        ("supply_airflow = 14000", "supply_airflow = -200"),
+        # the same air handler's supply air above its zone set point
+        ("supply_drybulb = 55.0", "supply_drybulb = 95.0"),
+        ("bypass_factor = 0.10", "bypass_factor = 1.5"),
+    )
+    with pytest.raises(ScenarioError) as caught:
+        loads_scenario(text, "several.toml", CLINIC.parent)
+    error = caught.value
+    message = str(error)
+    # it reads as the first mistake, then the others, one line each
+    assert message.startswith(f"several.toml: {error.field}: ")
+    assert "and 3 more mistakes:" in message
+    fields = [field for field, _ in error.problems]
+    assert "plant.cooling_margin_percent" in fields
+    assert "air_handler[2].supply_airflow" in fields
+    assert "air_handler[1].supply_drybulb" in fields
+    assert "air_handler[2].bypass_factor" in fields
+    problems = dict(error.problems)
+    # the file is I-P: the airflow in cfm (-200 cfm as written, NIST SP 811 factor both
+    # ways), the temperature in °F (supply 4 °C = 39.2 °F, exact), never m³/s or °C
+    assert "-200.0 cfm" in problems["air_handler[2].supply_airflow"]
+    assert "m³/s" not in message and "°C" not in message
+    assert "95.0 °F" in problems["air_handler[1].supply_drybulb"]
+    assert "39.2 to" in problems["air_handler[1].supply_drybulb"]
+    assert "1.5" in problems["air_handler[2].bypass_factor"]
+
+
+def test_two_mistakes_in_one_air_handler_are_both_reported():
+    text = _clinic_with(
+        ("supply_airflow = 14000", "supply_airflow = -200"),
+        ("bypass_factor = 0.10", "bypass_factor = 1.5"),
+    )
+    with pytest.raises(ScenarioError) as caught:
+        loads_scenario(text, "two.toml", CLINIC.parent)
+    assert [field for field, _ in caught.value.problems] == [
+        "air_handler[2].supply_airflow",
+        "air_handler[2].bypass_factor",
+    ]
+
+
+def test_one_mistake_reads_as_before():
+    text = _clinic_with(("bypass_factor = 0.10", "bypass_factor = 1.5"))
+    with pytest.raises(ScenarioError) as caught:
+        loads_scenario(text, "one.toml", CLINIC.parent)
+    assert str(caught.value).startswith("one.toml: air_handler[2].bypass_factor: ")
+    assert caught.value.field == "air_handler[2].bypass_factor"
+
+
+def test_si_file_airflow_mistake_is_reported_in_litres_per_second():
+    path = EXAMPLES[[p.name for p in EXAMPLES].index("linden_office_si.toml")]
+    text = path.read_text(encoding="utf-8")
+    written = next(line for line in text.splitlines() if line.startswith("supply_airflow = "))
+    with pytest.raises(ScenarioError) as caught:
+        loads_scenario(text.replace(written, "supply_airflow = -5", 1), "si.toml", path.parent)
+    # -5 L/s as written (1 L/s = 0.001 m³/s, SI)
+    assert "supply_airflow = -5 L/s" in str(caught.value)
+    assert "m³/s" not in str(caught.value)
+
+
+# ---------------------------------------------------------------------------------------
+# saving: the scenario's own units, sensible digits
+# ---------------------------------------------------------------------------------------
+def test_saved_numbers_are_in_the_files_units_with_sensible_digits():
+    scenario = load_scenario(CLINIC)
+    # 57 °F set in SI (13.888... °C) and an airflow come back through the exact factors
+    # (°F = 1.8 °C + 32; NIST SP 811 cfm) as the numbers a design team types
+    changed = scenario.with_air_handler(
+        1, supply_drybulb=(57.0 - 32.0) / 1.8, supply_airflow=m3s_from_cfm(14250.0)
+    )
+    unit_text = dumps_scenario(changed).split("[[air_handler]]")[2]
+    assert "supply_drybulb = 57.0\n" in unit_text
+    assert "supply_airflow = 14250.0\n" in unit_text
+    # in an SI study, the same 57 °F (set from the I-P view) and 4,500 cfm are written to
+    # six significant digits: 13.8889 °C and 2,123.76 L/s (exact °F; NIST SP 811 cfm)
+    office = load_scenario(EXAMPLES[[p.name for p in EXAMPLES].index("linden_office_si.toml")])
+    moved = office.with_air_handler(
+        0, supply_drybulb=(57.0 - 32.0) / 1.8, supply_airflow=m3s_from_cfm(4500.0)
+    )
+    text = dumps_scenario(moved)
+    assert "supply_drybulb = 13.8889\n" in text
+    assert "supply_airflow = 2123.76\n" in text
+    # no number of the air handlers carries more than six significant digits
+    for table in tomllib.loads(text)["air_handler"]:
+        for value in (*table.values(), *table.get("zone", {}).values()):
+            if isinstance(value, float):
+                assert float(f"{value:.6g}") == value, value

@@ -280,3 +280,29 @@ def test_conversion_pairs_round_trip(pair, values):
 def test_display_round_trip_property(quantity, system, value):
     shown, _ = u.to_display(quantity, value, system)
     assert u.from_display(quantity, shown, system) == pytest.approx(value, rel=1e-12, abs=1e-9)
+
+
+# ---------------------------------------------------------------------------------------
+# messages in the units on show
+# ---------------------------------------------------------------------------------------
+def test_display_text_converts_every_core_unit_of_a_message():
+    text = "supply 12.8 °C; allowed 4 to 23.5 °C; 352 kW short, 3,517 kWh; 0.5 m³/s; 10 m²"
+    shown = u.display_text(text, "IP")
+    # °F = 1.8 °C + 32 (exact); 1 ton = 12,000 Btu/h (AHRI 550/590); cfm and ft² from the
+    # exact foot (NIST SP 811): 0.5 m³/s = 1,059.4 cfm, 10 m² = 107.6 ft²
+    assert "supply 55.0 °F" in shown and "allowed 39.2 to 74.3 °F" in shown
+    assert f"{352 / (12000 * BTU / 3600 / 1000):,.1f} tons" in shown
+    assert f"{3517 / (12000 * BTU / 3600 / 1000):,.1f} ton·h" in shown
+    assert f"{0.5 / FT**3 * 60:,.1f} cfm" in shown and f"{10 / FT**2:,.1f} ft²" in shown
+    # SI keeps the model's units except the airflow, which SI files and pages give in L/s
+    si = u.display_text(text, "SI")
+    assert si == text.replace("0.5 m³/s", "500.0 L/s")
+
+
+def test_display_text_reads_a_heating_figure_as_heat():
+    # kW of heat reads MBH (1 MBH = 1,000 Btu/h), not tons, when the caller says so; a
+    # UnitText carries its own I-P text
+    heat = u.display_text("capacity 100 kW", "IP", {"kW": "heating_power"})
+    assert heat == f"capacity {100 / (1000 * BTU / 3600 / 1000):,.1f} MBH"
+    both = u.UnitText("capacity 100 kW", heat)
+    assert u.display_text(both, "IP") == heat and u.display_text(both, "SI") == "capacity 100 kW"

@@ -25,6 +25,8 @@ __all__ = [
 EXCERPT_CHARS = 80
 #: The same for a file name (with its folders) or a field name [characters].
 NAME_EXCERPT_CHARS = 160
+#: Most further mistakes of a scenario file listed in one message (the rest are counted).
+MAX_LISTED_MISTAKES = 20
 
 
 def excerpt(text, limit: int = EXCERPT_CHARS) -> str:
@@ -91,13 +93,54 @@ class InputFileError(PlantsideError, ValueError):
 
 
 class ScenarioError(PlantsideError, ValueError):
-    """A scenario file with a missing, mistyped or out-of-range field."""
+    """A scenario file with a missing, mistyped or out-of-range field.
 
-    def __init__(self, source: str, field: str, message: str):
+    Attributes
+    ----------
+    source : str
+        The file (as named in messages).
+    field : str
+        The (first) field at fault, e.g. ``"air_handler[2].supply_drybulb"``.
+    message : str
+        What is wrong with it (value and allowed range, in the file's units).
+    problems : tuple of (str, str)
+        Every ``(field, message)`` found in the file (one for a single mistake).
+    """
+
+    def __init__(self, source: str, field: str, message: str, problems=()):
         self.source = source
         self.field = field
+        self.message = message
+        self.problems = tuple(problems) or ((field, message),)
         shown = excerpt(source, NAME_EXCERPT_CHARS), excerpt(field, NAME_EXCERPT_CHARS)
         super().__init__(f"{shown[0]}: {shown[1]}: {message}")
+
+    @classmethod
+    def several(cls, source: str, errors: Sequence[ScenarioError]) -> ScenarioError:
+        """One error listing every mistake of ``errors`` (each its field and message).
+
+        It reads as the first mistake (``"file: field: message"``, its ``field`` that
+        one's), then one line per further mistake (at most :data:`MAX_LISTED_MISTAKES`).
+
+        Examples
+        --------
+        >>> a = ScenarioError("s.toml", "site.altitude", "expected a number, got 'x'")
+        >>> b = ScenarioError("s.toml", "plant.cooling_margin_percent", "-5 is outside 0 to 100 %")
+        >>> print(ScenarioError.several("s.toml", [a, b]))
+        s.toml: site.altitude: expected a number, got 'x'
+          and 1 more mistake:
+          plant.cooling_margin_percent: -5 is outside 0 to 100 %
+        """
+        problems = [p for error in errors for p in error.problems]
+        (field, message), others = problems[0], problems[1:]
+        if not others:
+            return cls(source, field, message)
+        shown = others[:MAX_LISTED_MISTAKES]
+        lines = "".join(f"\n  {excerpt(f, NAME_EXCERPT_CHARS)}: {m}" for f, m in shown)
+        if len(others) > len(shown):
+            lines += f"\n  ... and {len(others) - len(shown)} more"
+        more = f"{len(others)} more mistake{'s' if len(others) > 1 else ''}"
+        return cls(source, field, f"{message}\n  and {more}:{lines}", problems)
 
 
 def _describe_indices(bad: np.ndarray, size: int) -> str:

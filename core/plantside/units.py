@@ -9,6 +9,7 @@ Factors come from :mod:`plantside.constants` (NIST SP 811; AHRI 550/590 for the 
 
 from __future__ import annotations
 
+import re
 from enum import StrEnum
 
 import numpy as np
@@ -27,8 +28,10 @@ from plantside.constants import (
 from plantside.errors import InputRangeError
 
 __all__ = [
+    "MESSAGE_QUANTITIES",
     "QUANTITIES",
     "UnitSystem",
+    "UnitText",
     "btuh_from_kw",
     "btulb_from_kjkg",
     "celsius_from_fahrenheit",
@@ -37,6 +40,7 @@ __all__ = [
     "delta_celsius_from_fahrenheit",
     "delta_fahrenheit_from_celsius",
     "delta_kjkg_from_btulb",
+    "display_text",
     "fahrenheit_from_celsius",
     "feet_from_meters",
     "from_display",
@@ -378,3 +382,111 @@ def from_display(quantity: str, value, system):
     if UnitSystem.parse(system) is UnitSystem.IP:
         return from_ip(value)
     return from_si_display(value)
+
+
+# ---------------------------------------------------------------------------------------
+# messages
+# ---------------------------------------------------------------------------------------
+#: Core unit the model writes in a message -> the quantity it measures, by default. The
+#: model writes "... 3 °C ...", "... 12.5 kW unmet ...", "... 80 kWh ...", "0.05 m³/s".
+MESSAGE_QUANTITIES = {
+    "°C": "temperature",
+    "kWh": "energy",
+    "kW": "power",
+    "m³/s": "airflow",
+    "m²": "area",
+    "kJ/kg": "enthalpy",
+}
+
+
+#: Core units a message keeps in SI although the page's SI unit differs: a caution's
+#: "80 kWh" reads better than "0.08 MWh".
+_SI_KEPT = frozenset({"kWh"})
+
+
+class UnitText(str):
+    """A message written in both unit systems: the SI text, with ``ip`` the I-P one.
+
+    :func:`display_text` picks the one asked for instead of converting figures
+    already rounded in SI (which would not match the figures on screen), or
+    figures whose quantity the unit alone does not say (kW of heating is MBH, not
+    tons).
+    """
+
+    ip: str
+
+    def __new__(cls, si: str, ip: str):
+        text = super().__new__(cls, si)
+        text.ip = ip
+        return text
+
+
+_FIGURE = r"-?\d[\d,]*(?:\.\d+)?"
+
+
+def _figure_text(value: float) -> str:
+    """A converted figure: one decimal from 10 up, three significant digits below."""
+    if value != 0.0 and abs(value) < 10.0:
+        return f"{value:.3g}"
+    return f"{value:,.1f}"
+
+
+def display_text(text: str, system, quantities: dict[str, str] | None = None) -> str:
+    """A model message or caution (written in core units) with its figures in ``system``.
+
+    Parameters
+    ----------
+    text : str
+        The message. Figures followed by a core unit ("3 °C", "12.5 kW", ranges
+        "4 to 23.5 °C", "0.05–100 m³/s") are converted; other text is left as it is.
+        A :class:`UnitText` carries its own I-P text, which is used as it is.
+    system : UnitSystem or str
+        "SI" or "IP". In SI the model's units stay, except m³/s, which reads as
+        L/s (the airflow unit of SI files and pages).
+    quantities : dict of str to str, optional
+        Core unit -> quantity of :data:`QUANTITIES` (default
+        :data:`MESSAGE_QUANTITIES`; e.g. ``{"kW": "heating_power"}`` for a heating
+        message).
+
+    Returns
+    -------
+    str
+
+    Examples
+    --------
+    >>> display_text("supply air 12.8 °C; 4 to 23.5 °C allowed", "IP")
+    'supply air 55.0 °F; 39.2 to 74.3 °F allowed'
+    """
+    ip = UnitSystem.parse(system) is UnitSystem.IP
+    if isinstance(text, UnitText):
+        return text.ip if ip else str(text)
+    if not text:
+        return text
+    quantities = MESSAGE_QUANTITIES if quantities is None else quantities
+    changed = {
+        unit: quantity
+        for unit, quantity in quantities.items()
+        if unit_label(quantity, system) != unit and (ip or unit not in _SI_KEPT)
+    }
+    if not changed:
+        return text
+    units = "|".join(re.escape(u) for u in sorted(changed, key=len, reverse=True))
+    pattern = re.compile(
+        rf"(?P<a>{_FIGURE})(?:(?P<joint> to | and |–)(?P<b>{_FIGURE}))?"
+        rf" ?(?P<unit>{units})(?![\w/²³])"
+    )
+
+    def convert(match):
+        quantity = changed[match["unit"]]
+
+        def one(figure):
+            value = float(figure.replace(",", ""))
+            shown, unit = to_display(quantity, value, system)
+            return _figure_text(float(shown)), unit
+
+        first, unit = one(match["a"])
+        if match["b"] is None:
+            return f"{first} {unit}"
+        return f"{first}{match['joint']}{one(match['b'])[0]} {unit}"
+
+    return pattern.sub(convert, text)

@@ -27,7 +27,7 @@ import numpy as np
 
 from plantside.cli.sweep import add_sweep_parser
 from plantside.errors import NAME_EXCERPT_CHARS, PlantsideError, excerpt
-from plantside.units import to_display
+from plantside.units import display_text, to_display
 
 __all__ = ["main"]
 
@@ -136,7 +136,8 @@ def _design_text(result) -> str:
     from plantside.cli.water_side_text import study_water_side_lines
 
     lines += study_water_side_lines(result)
-    lines += [f"! {c}" for c in result.cautions]
+    # cautions in the study's units, as the dashboard shows them (the JSON keeps SI)
+    lines += [f"! {display_text(c, system)}" for c in result.cautions]
     return "\n".join(lines)
 
 

@@ -5,7 +5,7 @@ from __future__ import annotations
 import math
 
 from plantside.constants import KW_PER_TON
-from plantside.units import to_display
+from plantside.units import display_text, to_display
 
 __all__ = ["study_water_side_lines", "water_side_lines"]
 
@@ -87,7 +87,7 @@ def water_side_lines(water, system) -> list[str]:
             f"({100 * recovery['share_of_simultaneous_heating']:.0f} % of the simultaneous "
             "heating)"
         )
-    lines += [f"! {c}" for c in water.cautions]
+    lines += [f"! {display_text(c, system)}" for c in water.cautions]  # the study's units
     lines.append("")
     return lines
 

@@ -47,7 +47,6 @@ from __future__ import annotations
 
 import io
 import math
-import re
 import time
 from collections.abc import Callable
 from dataclasses import dataclass, field, replace
@@ -74,7 +73,7 @@ from plantside.study.figures import (
 )
 from plantside.study.run import AirHandlerResult, design_zone, run_air_handler
 from plantside.study.scenario import Scenario
-from plantside.units import UnitSystem, to_display
+from plantside.units import UnitSystem, UnitText, display_text, to_display
 
 __all__ = [
     "CONTROLS",
@@ -870,7 +869,11 @@ class DashboardState:
         self._record("scenario", tuple(range(len(self.names))), start, ok=True)
 
     def current_scenario(self) -> Scenario:
-        """The scenario with the controls' current values (what "Save scenario" writes)."""
+        """The scenario with the controls' current values (what "Save scenario" writes).
+
+        It keeps the scenario's own unit system: the units on screen are a view setting,
+        so a study saved while viewing the other system still reads in its own units.
+        """
         scenario = self.scenario
         for index, unit in enumerate(self.inputs.units):
             settings = unit.apply(scenario.air_handlers[index].settings)
@@ -883,12 +886,7 @@ class DashboardState:
             if climate in BUNDLED_CLIMATES
             else {"climate": None, "weather_file": climate.split(": ", 1)[-1]}
         )
-        return replace(
-            scenario,
-            cooling_design_percent=self.inputs.design_percent,
-            unit_system=UnitSystem.parse(self.inputs.unit_system),
-            **site,
-        )
+        return replace(scenario, cooling_design_percent=self.inputs.design_percent, **site)
 
     # ---------------------------------------------------------------- climates
     def add_weather_file(self, name: str, content: bytes) -> str:
@@ -1095,53 +1093,3 @@ class DashboardState:
         """Forget the pinned result."""
         self.pinned = None
         self._record("pin", (), time.perf_counter(), ok=not self._failing())
-
-
-class UnitText(str):
-    """A message written in both unit systems: the SI text, with ``ip`` the I-P one.
-
-    :func:`display_text` picks the one asked for instead of converting figures
-    already rounded in SI (which would not match the figures on screen).
-    """
-
-    ip: str
-
-    def __new__(cls, si: str, ip: str):
-        text = super().__new__(cls, si)
-        text.ip = ip
-        return text
-
-
-_FIGURE = r"-?\d[\d,]*(?:\.\d+)?"
-_SI_FIGURES = re.compile(
-    rf"(?P<a>{_FIGURE})(?:(?P<joint> to | and |–)(?P<b>{_FIGURE}))? ?(?P<unit>°C|kW)(?![\w/])"
-)
-
-
-def display_text(text: str, system: str) -> str:
-    """A model message or caution (written in SI) with its temperatures and powers in ``system``.
-
-    The model writes "... 3 °C ..." and "... 12.5 kW unmet ..."; in the IP view
-    these read in °F and tons (:func:`plantside.units.to_display`), ranges
-    ("4 to 23.5 °C") included. Other text is left as it is.
-    """
-    if isinstance(text, UnitText):
-        return text.ip if system == "IP" else str(text)
-    if system != "IP" or not text:
-        return text
-    quantities = {"°C": "temperature", "kW": "power"}
-
-    def convert(match):
-        quantity = quantities[match["unit"]]
-
-        def one(figure):
-            value = float(figure.replace(",", ""))
-            shown, unit = to_display(quantity, value, system)
-            return f"{float(shown):,.1f}", unit
-
-        first, unit = one(match["a"])
-        if match["b"] is None:
-            return f"{first} {unit}"
-        return f"{first}{match['joint']}{one(match['b'])[0]} {unit}"
-
-    return _SI_FIGURES.sub(convert, text)

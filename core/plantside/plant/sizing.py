@@ -41,6 +41,7 @@ from plantside.plant.loads import hourly_loads, load_matrix
 __all__ = [
     "MARGIN_RANGE_PERCENT",
     "OVERSIZE_CAUTION_RATIO",
+    "SIZING_DISCLAIMER",
     "design_capacity_from_design_load",
     "energy_above",
     "hours_above",
@@ -49,6 +50,13 @@ __all__ = [
     "sizing_cautions",
     "sizing_summary",
 ]
+
+#: Closing line of :func:`sizing_cautions` (a study carries its own disclaimer once and
+#: leaves this one out).
+SIZING_DISCLAIMER = (
+    "These figures support, and do not replace, the judgement of a licensed engineer "
+    "under the local codes."
+)
 
 #: Allowed sizing margin [%]. Project convention (no source): 0 to 100 % catches typing errors.
 MARGIN_RANGE_PERCENT = (0.0, 100.0)
@@ -310,8 +318,5 @@ def sizing_cautions(loads, capacity: float, design_load: float | None = None) ->
                 "machines, a modulating lead machine), not with a smaller plant."
             )
     if notes:
-        notes.append(
-            "These figures support, and do not replace, the judgement of a licensed engineer "
-            "under the local codes."
-        )
+        notes.append(SIZING_DISCLAIMER)
     return notes

@@ -37,7 +37,12 @@ from plantside.climate.weather import Weather
 from plantside.plant.efficiency import project_weighted_efficiency
 from plantside.plant.loads import diversity_table, plant_load_from_coil_loads
 from plantside.plant.part_load import load_duration_curve, part_load_bins
-from plantside.plant.sizing import design_capacity_from_design_load, sizing_cautions, sizing_summary
+from plantside.plant.sizing import (
+    SIZING_DISCLAIMER,
+    design_capacity_from_design_load,
+    sizing_cautions,
+    sizing_summary,
+)
 from plantside.plant.staging import (
     PlantOption,
     compare_plant_options,
@@ -54,6 +59,7 @@ from plantside.study.figures import (
 from plantside.study.high_limit_cautions import economizer_limit_cautions
 from plantside.study.scenario import PlantOptionSpec, Scenario
 from plantside.study.water_side_run import run_water_side, water_side_summary
+from plantside.units import UnitText, display_text
 
 __all__ = [
     "AirHandlerResult",
@@ -199,13 +205,41 @@ def _efficiency_table(loads, specs, options) -> pd.DataFrame:
     return pd.DataFrame(rows)
 
 
+#: Units of a heating plant's caution figures (kW of heat reads MBH in I-P, not tons).
+_HEATING_MESSAGE_QUANTITIES = {
+    "°C": "temperature",
+    "kWh": "heating_energy",
+    "kW": "heating_power",
+}
+
+
+def _plant_cautions(kind, hourly, capacity, design_load) -> list[str]:
+    """The plant's sizing cautions, without the disclaimer the study carries once.
+
+    A heating plant's cautions carry their I-P text (:class:`plantside.units.UnitText`):
+    their kW are heat, shown in MBH, not in tons.
+    """
+    if capacity <= 0:
+        return []
+    notes = [
+        note
+        for note in sizing_cautions(hourly, capacity, design_load)
+        if note != SIZING_DISCLAIMER  # GENERAL_CAUTIONS opens every study with it
+    ]
+    if kind == "heating":
+        notes = [
+            UnitText(note, display_text(note, "IP", _HEATING_MESSAGE_QUANTITIES)) for note in notes
+        ]
+    return notes
+
+
 def _plant(
     kind, coil_loads, zone_loads, design_table, governing, design_load, margin, gain, specs
 ) -> PlantResult:
     hourly = plant_load_from_coil_loads(coil_loads, gain)
     capacity = design_capacity_from_design_load(design_load, margin)
     specs, options = _options(specs, capacity, kind)
-    cautions = tuple(sizing_cautions(hourly, capacity, design_load)) if capacity > 0 else ()
+    cautions = tuple(_plant_cautions(kind, hourly, capacity, design_load))
     return PlantResult(
         kind=kind,
         hourly_load=hourly,

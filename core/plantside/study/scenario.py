@@ -61,6 +61,7 @@ import difflib
 import math
 import types
 import typing
+from contextlib import contextmanager
 from dataclasses import dataclass, field, fields, replace
 from pathlib import Path
 
@@ -74,16 +75,28 @@ from plantside.climate.climate_zone import economizer_drybulb_limit, parse_clima
 from plantside.climate.design_conditions import COOLING_PERCENTS, HEATING_PERCENTS
 from plantside.climate.weather import Weather
 from plantside.climate.weather_csv import read_weather_csv
-from plantside.errors import InputFileError, InputRangeError, ScenarioError
+from plantside.errors import InputFileError, InputRangeError, ScenarioError, excerpt
 from plantside.plant.staging import DEFAULT_MINIMUM_TURNDOWN
 from plantside.study.solar_gains import zone_with_solar_gain
-from plantside.study.toml_input import MAX_SCENARIO_BYTES, parse_toml_text, read_toml_text
+from plantside.study.toml_input import (
+    MAX_SCENARIO_BYTES,
+    parse_toml_text,
+    read_toml_text,
+    saved_number,
+)
 from plantside.study.water_side import (
     WaterSideSpec,
     water_side_from_plant_table,
     water_side_to_tables,
 )
-from plantside.units import UnitSystem, from_display, to_display, unit_label
+from plantside.units import (
+    MESSAGE_QUANTITIES,
+    UnitSystem,
+    display_text,
+    from_display,
+    to_display,
+    unit_label,
+)
 
 __all__ = [
     "DEFAULT_PICKUP_PERCENT",
@@ -336,14 +349,22 @@ def _resolve(base_dir: Path, name: str | None, source: str, where: str, files: s
     path = Path(name)
     if not path.is_absolute():
         path = Path(base_dir) / path
-    if files == "inside" and (
-        Path(name).is_absolute() or not path.resolve().is_relative_to(Path(base_dir).resolve())
-    ):
+    try:
+        if files == "inside" and (
+            Path(name).is_absolute() or not path.resolve().is_relative_to(Path(base_dir).resolve())
+        ):
+            raise ScenarioError(
+                source, where, f"{excerpt(name)!r} must name a file inside the scenario's folder"
+            )
+        found = path.is_file()
+    except (OSError, ValueError) as error:  # a name the file system refuses (too long, NUL)
         raise ScenarioError(
-            source, where, f"{name!r} must name a file inside the scenario's folder"
+            source, where, f"file {excerpt(name)!r} cannot be opened: {excerpt(error)}"
+        ) from error
+    if not found:
+        raise ScenarioError(
+            source, where, f"file {excerpt(name)!r} not found (looked in {excerpt(path.parent)})"
         )
-    if not path.is_file():
-        raise ScenarioError(source, where, f"file {name!r} not found (looked in {path.parent})")
     return path
 
 
@@ -404,49 +425,115 @@ def _field_kind(cls, name):
     return hint, optional
 
 
+class _Mistakes:
+    """Every mistake found in a scenario file, so one message lists them all.
+
+    ``with mistakes.check(): ...`` runs a part of the reading and keeps its
+    :class:`ScenarioError` instead of stopping; :meth:`raise_any` raises one error
+    listing every mistake (:meth:`ScenarioError.several`).
+    """
+
+    def __init__(self, source: str):
+        self.source = source
+        self.found: list[ScenarioError] = []
+
+    @contextmanager
+    def check(self):
+        try:
+            yield
+        except ScenarioError as error:
+            self.found.append(error)
+
+    def raise_any(self) -> None:
+        if self.found:
+            raise ScenarioError.several(self.source, self.found)
+
+
 def _dataclass_from_table(cls, table, source, where, system):
-    """Build a settings dataclass from a TOML table in ``system`` units, with checks."""
+    """Build a settings dataclass from a TOML table in ``system`` units, with checks.
+
+    Every field that cannot be read is reported, and so is every value out of its
+    range: after a value the model refuses, that field is taken at its default and the
+    table checked again, until the rest is accepted (or the refused field has no
+    default, or is one the file did not give: a range that depends on the refused
+    value is not checked further).
+    """
     names = [f.name for f in fields(cls) if f.init]
     _check_keys(source, where, table, names)
+    mistakes = _Mistakes(source)
     values = {}
     for key, raw in table.items():
-        path = f"{where}.{key}"
-        hint, optional = _field_kind(cls, key)
-        if raw == "none" and optional:
-            values[key] = None
-            continue
-        if hint is float:
-            value = _number(source, path, raw)
-            if key in FIELD_QUANTITIES:
-                value = float(from_display(FIELD_QUANTITIES[key], value, system))
-        elif hint is int:
-            value = _number(source, path, raw, integer=True)
-        elif hint is bool:
-            value = _flag(source, path, raw)
-        elif typing.get_origin(hint) is tuple:
-            if not isinstance(raw, list):
-                raise ScenarioError(source, path, f"expected a list of numbers, got {raw!r}")
-            value = tuple(_number(source, f"{path}[{i + 1}]", v) for i, v in enumerate(raw))
-        else:
-            value = _text(source, path, raw)
-        values[key] = value
-    try:
-        return cls(**values)
-    except InputRangeError as error:
-        raise ScenarioError(
-            source, f"{where}.{error.field}", _in_file_units(error, system)
-        ) from error
-    except TypeError as error:
-        raise ScenarioError(source, where, str(error)) from error
+        with mistakes.check():
+            values[key] = _table_value(cls, key, raw, source, f"{where}.{key}", system)
+    defaults = {
+        f.name
+        for f in fields(cls)
+        if f.default is not dataclasses.MISSING or f.default_factory is not dataclasses.MISSING
+    }
+    tried = dict(values)
+    built = None
+    for _ in range(len(tried) + 1):
+        try:
+            built = cls(**tried)
+            break
+        except InputRangeError as error:
+            mistakes.found.append(
+                ScenarioError(source, f"{where}.{error.field}", _in_file_units(error, system))
+            )
+            if error.field not in tried or error.field not in defaults:
+                break
+            del tried[error.field]  # its default, to look for further mistakes
+        except TypeError as error:
+            mistakes.found.append(ScenarioError(source, where, str(error)))
+            break
+    mistakes.raise_any()
+    return built
+
+
+def _table_value(cls, key, raw, source, path, system):
+    """One field of a settings table, read as its type (SI for a quantity)."""
+    hint, optional = _field_kind(cls, key)
+    if raw == "none" and optional:
+        return None
+    if hint is float:
+        value = _number(source, path, raw)
+        if key in FIELD_QUANTITIES:
+            value = float(from_display(FIELD_QUANTITIES[key], value, system))
+        return value
+    if hint is int:
+        return _number(source, path, raw, integer=True)
+    if hint is bool:
+        return _flag(source, path, raw)
+    if typing.get_origin(hint) is tuple:
+        if not isinstance(raw, list):
+            raise ScenarioError(source, path, f"expected a list of numbers, got {raw!r}")
+        return tuple(_number(source, f"{path}[{i + 1}]", v) for i, v in enumerate(raw))
+    return _text(source, path, raw)
+
+
+#: Core unit the model writes for each quantity of :data:`FIELD_QUANTITIES`.
+_CORE_UNITS = {
+    "temperature": "°C",
+    "power": "kW",
+    "heating_power": "kW",
+    "airflow": "m³/s",
+    "area": "m²",
+    "enthalpy": "kJ/kg",
+}
 
 
 def _in_file_units(error: InputRangeError, system: UnitSystem) -> str:
-    """The model's message, with the unit of the file's system added where it differs."""
-    text = str(error)
+    """The model's message (written in core SI units) with its figures in the file's units.
+
+    The field's own quantity decides what its unit means (kW of a heating load is MBH in
+    an I-P file, not tons); temperatures and the rest read as
+    :func:`plantside.units.display_text` reads them.
+    """
+    quantities = dict(MESSAGE_QUANTITIES)
     quantity = FIELD_QUANTITIES.get(error.field)
-    if quantity and system is UnitSystem.IP:
-        text += f" (the model works in SI; this field is read in {unit_label(quantity, 'IP')})"
-    return text
+    if quantity in _CORE_UNITS:
+        quantities[_CORE_UNITS[quantity]] = quantity
+    return display_text(str(error), system, quantities)
 
 
 def _option(source, where, table, design_kind) -> PlantOptionSpec:
@@ -521,6 +608,57 @@ def _percent(source, where, value, high=100.0):
 MAX_AIR_HANDLERS = 50
 
 
+def _site_weather(site, source, base_dir, files):
+    """``(climate, weather_file)`` of the site table: exactly one of them is given."""
+    climate = site.get("climate")
+    weather_file = site.get("weather_file")
+    if (climate is None) == (weather_file is None):
+        raise ScenarioError(
+            source, "site.climate", "give exactly one of site.climate or site.weather_file"
+        )
+    if climate is not None:
+        climate = _text(source, "site.climate", climate)
+        names = {name.lower(): name for name in BUNDLED_CLIMATES}
+        if climate.lower() not in names:
+            raise _bad_choice(source, "site.climate", climate, BUNDLED_CLIMATES)
+        return names[climate.lower()], None
+    weather_file = _text(source, "site.weather_file", weather_file)
+    _resolve(base_dir, weather_file, source, "site.weather_file", files)
+    return None, weather_file
+
+
+def _air_handler_spec(table, where, source, system, base_dir, files, climate_zone):
+    """One ``[[air_handler]]`` table: its settings and its zone loads, every mistake listed."""
+    setting_names = [f.name for f in fields(AirHandlerSettings)]
+    _check_keys(source, where, table, [*setting_names, "zone", "zone_load_file"])
+    mistakes = _Mistakes(source)
+    settings = zone = zone_file = None
+    settings_table = {k: v for k, v in table.items() if k not in ("zone", "zone_load_file")}
+    with mistakes.check():
+        settings = _dataclass_from_table(AirHandlerSettings, settings_table, source, where, system)
+        if climate_zone is not None and "economizer_drybulb_limit" not in settings_table:
+            # the 90.1 table's fixed dry-bulb limit of the site's zone is the default
+            settings = replace(
+                settings, economizer_drybulb_limit=economizer_drybulb_limit(climate_zone)
+            )
+    zone, zone_file = table.get("zone"), table.get("zone_load_file")
+    with mistakes.check():
+        if (zone is None) == (zone_file is None):
+            zone = zone_file = None
+            raise ScenarioError(
+                source,
+                f"{where}.zone",
+                "give exactly one of a [air_handler.zone] table or zone_load_file",
+            )
+        if zone is not None:
+            zone = _dataclass_from_table(ZoneLoadModel, zone, source, f"{where}.zone", system)
+        else:
+            zone_file = _text(source, f"{where}.zone_load_file", zone_file)
+            _resolve(base_dir, zone_file, source, f"{where}.zone_load_file", files)
+    mistakes.raise_any()
+    return AirHandlerSpec(settings, zone, zone_file)
+
+
 def scenario_from_dict(
     data: dict, source: str = "<scenario>", base_dir=None, *, files: str = "any"
 ) -> Scenario:
@@ -556,131 +694,136 @@ def scenario_from_dict(
         system = UnitSystem.parse(data["unit_system"])
     except InputRangeError as error:
         raise ScenarioError(source, "unit_system", str(error)) from error
-    title = _text(source, "title", data.get("title", "Untitled study"))
+    # from here on every mistake is collected, so one message lists them all
+    mistakes = _Mistakes(source)
+    title = "Untitled study"
+    with mistakes.check():
+        title = _text(source, "title", data.get("title", "Untitled study"))
 
     site = data.get("site", {})
-    _check_keys(source, "site", site, _SITE_KEYS)
-    climate = site.get("climate")
-    weather_file = site.get("weather_file")
-    if (climate is None) == (weather_file is None):
-        raise ScenarioError(
-            source, "site.climate", "give exactly one of site.climate or site.weather_file"
-        )
-    if climate is not None:
-        climate = _text(source, "site.climate", climate)
-        names = {name.lower(): name for name in BUNDLED_CLIMATES}
-        if climate.lower() not in names:
-            raise _bad_choice(source, "site.climate", climate, BUNDLED_CLIMATES)
-        climate = names[climate.lower()]
-    else:
-        weather_file = _text(source, "site.weather_file", weather_file)
-        _resolve(base_dir, weather_file, source, "site.weather_file", files)
-    weather_units = site.get("weather_units")
-    if weather_units is not None:
-        try:
-            weather_units = str(
-                UnitSystem.parse(_text(source, "site.weather_units", weather_units))
-            )
-        except InputRangeError as error:
-            raise ScenarioError(
-                source, "site.weather_units", f"{weather_units!r}; allowed 'SI' or 'IP'"
-            ) from error
-    altitude = site.get("altitude")
-    if altitude is not None:
-        altitude = float(from_display("length", _number(source, "site.altitude", altitude), system))
-    fill_gaps = _flag(source, "site.fill_gaps", site.get("fill_gaps", False))
-    cooling_percent = _choice(
-        source,
-        "site.cooling_design_percent",
-        site.get("cooling_design_percent", 0.4),
-        COOLING_PERCENTS,
-    )
-    heating_percent = _choice(
-        source,
-        "site.heating_design_percent",
-        site.get("heating_design_percent", 99.6),
-        HEATING_PERCENTS,
-    )
-    climate_zone = site.get("climate_zone")
-    if climate_zone is not None:
-        try:
-            climate_zone = parse_climate_zone(
-                _text(source, "site.climate_zone", climate_zone), "site.climate_zone"
-            )
-        except InputRangeError as error:
-            raise ScenarioError(source, "site.climate_zone", str(error)) from error
+    climate = weather_file = weather_units = altitude = climate_zone = None
+    fill_gaps, cooling_percent, heating_percent = False, 0.4, 99.6
     place = {}
-    for key, low, high in (("latitude", -90, 90), ("longitude", -180, 180), ("time_zone", -12, 14)):
-        if key in site:
-            value = _number(source, f"site.{key}", site[key])
-            if not low <= value <= high:
-                unit = "h from UTC" if key == "time_zone" else "°"
-                raise ScenarioError(
-                    source,
-                    f"site.{key}",
-                    f"{value:g} is outside the allowed range {low} to {high} {unit}",
+    with mistakes.check():
+        _check_keys(source, "site", site, _SITE_KEYS)
+    if isinstance(site, dict):  # else its mistake is the one above
+        with mistakes.check():
+            climate, weather_file = _site_weather(site, source, base_dir, files)
+        with mistakes.check():
+            weather_units = site.get("weather_units")
+            if weather_units is not None:
+                try:
+                    weather_units = str(
+                        UnitSystem.parse(_text(source, "site.weather_units", weather_units))
+                    )
+                except InputRangeError as error:
+                    raise ScenarioError(
+                        source, "site.weather_units", f"{weather_units!r}; allowed 'SI' or 'IP'"
+                    ) from error
+        with mistakes.check():
+            altitude = site.get("altitude")
+            if altitude is not None:
+                altitude = float(
+                    from_display("length", _number(source, "site.altitude", altitude), system)
                 )
-            place[key] = value
+        with mistakes.check():
+            fill_gaps = _flag(source, "site.fill_gaps", site.get("fill_gaps", False))
+        with mistakes.check():
+            cooling_percent = _choice(
+                source,
+                "site.cooling_design_percent",
+                site.get("cooling_design_percent", 0.4),
+                COOLING_PERCENTS,
+            )
+        with mistakes.check():
+            heating_percent = _choice(
+                source,
+                "site.heating_design_percent",
+                site.get("heating_design_percent", 99.6),
+                HEATING_PERCENTS,
+            )
+        with mistakes.check():
+            climate_zone = site.get("climate_zone")
+            if climate_zone is not None:
+                try:
+                    climate_zone = parse_climate_zone(
+                        _text(source, "site.climate_zone", climate_zone), "site.climate_zone"
+                    )
+                except InputRangeError as error:
+                    raise ScenarioError(source, "site.climate_zone", str(error)) from error
+        places = (("latitude", -90, 90), ("longitude", -180, 180), ("time_zone", -12, 14))
+        for key, low, high in places:
+            if key in site:
+                with mistakes.check():
+                    value = _number(source, f"site.{key}", site[key])
+                    if not low <= value <= high:
+                        unit = "h from UTC" if key == "time_zone" else "°"
+                        raise ScenarioError(
+                            source,
+                            f"site.{key}",
+                            f"{value:g} is outside the allowed range {low} to {high} {unit}",
+                        )
+                    place[key] = value
 
     plant = data.get("plant", {})
-    _check_keys(source, "plant", plant, _PLANT_KEYS)
-    gain = _percent(
-        source, "plant.distribution_gain_percent", plant.get("distribution_gain_percent", 0.0)
-    )
-    cooling_margin = _percent(
-        source, "plant.cooling_margin_percent", plant.get("cooling_margin_percent", 10.0)
-    )
-    heating_margin = _percent(
-        source, "plant.heating_margin_percent", plant.get("heating_margin_percent", 10.0)
-    )
-    heating_pickup = plant.get("heating_pickup_percent")
-    if heating_pickup is not None:
-        heating_pickup = _percent(source, "plant.heating_pickup_percent", heating_pickup)
-    options = {}
+    with mistakes.check():
+        _check_keys(source, "plant", plant, _PLANT_KEYS)
+    if not isinstance(plant, dict):
+        plant = {}
+    percents = {}
+    for key, default in (
+        ("distribution_gain_percent", 0.0),
+        ("cooling_margin_percent", 10.0),
+        ("heating_margin_percent", 10.0),
+        ("heating_pickup_percent", None),
+    ):
+        percents[key] = default
+        if plant.get(key, default) is not None:
+            with mistakes.check():
+                percents[key] = _percent(source, f"plant.{key}", plant.get(key, default))
+    options = {"cooling": (), "heating": ()}
     for key, kind in (("cooling_option", "cooling"), ("heating_option", "heating")):
         tables = plant.get(key, [])
         if not isinstance(tables, list):
-            raise ScenarioError(source, f"plant.{key}", f"expected [[plant.{key}]] tables")
-        options[kind] = tuple(
-            _option(source, f"plant.{key}[{i + 1}]", table, kind) for i, table in enumerate(tables)
-        )
+            mistakes.found.append(
+                ScenarioError(source, f"plant.{key}", f"expected [[plant.{key}]] tables")
+            )
+            continue
+        found = []
+        for i, table in enumerate(tables):
+            with mistakes.check():
+                found.append(_option(source, f"plant.{key}[{i + 1}]", table, kind))
+        options[kind] = tuple(found)
 
-    water_side = water_side_from_plant_table(plant, source, system)
+    water_side = None
+    with mistakes.check():
+        water_side = water_side_from_plant_table(plant, source, system)
 
     units = data["air_handler"]
     if not isinstance(units, list) or not units:
-        raise ScenarioError(source, "air_handler", "expected one or more [[air_handler]] tables")
+        mistakes.found.append(
+            ScenarioError(source, "air_handler", "expected one or more [[air_handler]] tables")
+        )
+        units = []
     specs = []
-    setting_names = [f.name for f in fields(AirHandlerSettings)]
     for i, table in enumerate(units):
-        where = f"air_handler[{i + 1}]"
-        _check_keys(source, where, table, [*setting_names, "zone", "zone_load_file"])
-        settings_table = {k: v for k, v in table.items() if k not in ("zone", "zone_load_file")}
-        settings = _dataclass_from_table(AirHandlerSettings, settings_table, source, where, system)
-        if climate_zone is not None and "economizer_drybulb_limit" not in settings_table:
-            # the 90.1 table's fixed dry-bulb limit of the site's zone is the default
-            settings = replace(
-                settings, economizer_drybulb_limit=economizer_drybulb_limit(climate_zone)
+        with mistakes.check():
+            specs.append(
+                _air_handler_spec(
+                    table, f"air_handler[{i + 1}]", source, system, base_dir, files, climate_zone
+                )
             )
-        zone, zone_file = table.get("zone"), table.get("zone_load_file")
-        if (zone is None) == (zone_file is None):
-            raise ScenarioError(
-                source,
-                f"{where}.zone",
-                "give exactly one of a [air_handler.zone] table or zone_load_file",
-            )
-        if zone is not None:
-            zone = _dataclass_from_table(ZoneLoadModel, zone, source, f"{where}.zone", system)
-        else:
-            zone_file = _text(source, f"{where}.zone_load_file", zone_file)
-            _resolve(base_dir, zone_file, source, f"{where}.zone_load_file", files)
-        specs.append(AirHandlerSpec(settings, zone, zone_file))
     names = [spec.settings.name for spec in specs]
     duplicates = sorted({n for n in names if names.count(n) > 1})
     if duplicates:
-        raise ScenarioError(
-            source, "air_handler.name", f"names must differ; repeated: {duplicates}"
+        mistakes.found.append(
+            ScenarioError(source, "air_handler.name", f"names must differ; repeated: {duplicates}")
         )
+    mistakes.raise_any()
+    gain = percents["distribution_gain_percent"]
+    cooling_margin = percents["cooling_margin_percent"]
+    heating_margin = percents["heating_margin_percent"]
+    heating_pickup = percents["heating_pickup_percent"]
 
     return Scenario(
         title=title,
@@ -741,10 +884,10 @@ def _display(key, value, system):
     if isinstance(value, bool | str | int):
         return value
     if isinstance(value, tuple):
-        return [float(f"{v:.12g}") for v in value]
+        return [saved_number(v) for v in value]
     if key in FIELD_QUANTITIES:
         value = float(to_display(FIELD_QUANTITIES[key], value, system)[0])
-    return float(f"{value:.12g}")
+    return saved_number(value)
 
 
 def _table_from_dataclass(obj, system, defaults) -> dict:
@@ -761,7 +904,7 @@ def _table_from_dataclass(obj, system, defaults) -> dict:
 def _option_table(option: PlantOptionSpec) -> dict:
     table = {
         "name": option.name,
-        "capacity_fractions": [float(f"{v:.12g}") for v in option.capacity_fractions],
+        "capacity_fractions": [saved_number(v) for v in option.capacity_fractions],
         "minimum_turndown": option.minimum_turndown,
         "efficiency_metric": option.efficiency_metric,
     }
@@ -771,7 +914,11 @@ def _option_table(option: PlantOptionSpec) -> dict:
 
 
 def scenario_to_dict(scenario: Scenario) -> dict:
-    """The scenario as a TOML-ready dict, numbers in the scenario's unit system."""
+    """The scenario as a TOML-ready dict, numbers in the scenario's unit system.
+
+    Numbers are rounded to :data:`plantside.study.toml_input.SAVE_SIGNIFICANT_DIGITS`
+    significant digits.
+    """
     system = scenario.unit_system
     site = {}
     if scenario.climate is not None:

@@ -15,6 +15,9 @@ the file and the limit, when it
 
 Messages quote at most a short excerpt of a file name or a value
 (:func:`plantside.errors.excerpt`).
+
+Written back (the scenario and air-handler tables), a number is rounded to
+:data:`SAVE_SIGNIFICANT_DIGITS` significant digits (:func:`saved_number`).
 """
 
 from __future__ import annotations
@@ -29,8 +32,10 @@ __all__ = [
     "MAX_NAME_CHARS",
     "MAX_SCENARIO_BYTES",
     "MAX_TOML_DEPTH",
+    "SAVE_SIGNIFICANT_DIGITS",
     "parse_toml_text",
     "read_toml_text",
+    "saved_number",
     "toml_depth",
 ]
 
@@ -190,3 +195,23 @@ def read_toml_text(path_or_bytes, source: str | None = None) -> str:
         return data.decode("utf-8-sig")
     except UnicodeDecodeError as error:
         raise ScenarioError(source, "(file)", f"not UTF-8 text ({error.reason})") from None
+
+
+#: Significant digits of a number written to a scenario file: enough for any figure a
+#: design team types or a control sets (0.1 °F in 100 °F, 1 cfm in 100,000 cfm), few enough
+#: that a unit round trip (55 °F -> 12.777... °C -> 55 °F) writes back what was typed
+#: (plantside's choice).
+SAVE_SIGNIFICANT_DIGITS = 6
+
+
+def saved_number(value) -> float:
+    """``value`` as written to a scenario file: :data:`SAVE_SIGNIFICANT_DIGITS` digits.
+
+    Examples
+    --------
+    >>> saved_number((57.0 - 32.0) / 1.8 * 1.8 + 32.0)
+    57.0
+    >>> saved_number(2123.7634944)
+    2123.76
+    """
+    return float(f"{float(value):.{SAVE_SIGNIFICANT_DIGITS}g}")
