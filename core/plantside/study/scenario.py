@@ -743,13 +743,14 @@ def scenario_from_dict(
                 HEATING_PERCENTS,
             )
         with mistakes.check():
-            climate_zone = site.get("climate_zone")
-            if climate_zone is not None:
+            given = site.get("climate_zone")
+            if given is not None:
                 try:
                     climate_zone = parse_climate_zone(
-                        _text(source, "site.climate_zone", climate_zone), "site.climate_zone"
+                        _text(source, "site.climate_zone", given), "site.climate_zone"
                     )
                 except InputRangeError as error:
+                    # the zone stays unset, so the air handlers' defaults do not use it
                     raise ScenarioError(source, "site.climate_zone", str(error)) from error
         places = (("latitude", -90, 90), ("longitude", -180, 180), ("time_zone", -12, 14))
         for key, low, high in places:
