@@ -353,3 +353,76 @@ def test_nothing_leaves_this_computer_and_a_closed_page_frees_its_kernel(
     print(f"close: the page's kernel gone after {seconds:.1f} s")
     outside = sorted({host for host in hosts if host not in ("127.0.0.1", None)})
     assert hosts and not outside, f"the page asked other hosts: {outside}"
+
+
+#: For each chart: [width its panel offers, width it is drawn at] [px] (as panel_width.js).
+_CHART_FIT = """
+() => ['design', 'year', 'distribution', 'psychrometric', 'sweep'].map((name) => {
+  const host = document.querySelector(`.plantside-chart-${name}`);
+  const panel = host.closest('.plantside-chart');
+  const style = getComputedStyle(panel);
+  const offered = panel.clientWidth - parseFloat(style.paddingLeft)
+    - parseFloat(style.paddingRight);
+  const canvas = host.querySelector('canvas');
+  // the width it is drawn at, not as a style sheet may have scaled it down
+  const drawn = canvas
+    ? parseFloat(canvas.style.width) || canvas.width / (window.devicePixelRatio || 1)
+    : 0;
+  return [name, offered, drawn];
+})
+"""
+
+
+def wait_until_charts_fit(page, timeout_ms: int = WIDGET_TIMEOUT_MS) -> list:
+    """Wait until every chart is drawn no wider than its panel and fills at least 95 % of
+    it (the dashboard redraws them to the width the page reports); return the widths."""
+    try:
+        page.wait_for_function(
+            f"() => ({_CHART_FIT})().every(([n, offered, drawn]) =>"
+            " drawn > 0 && drawn <= offered && drawn >= 0.95 * offered)",
+            polling=250,
+            timeout=timeout_ms,
+        )
+    except Exception:  # report the widths that did not fit
+        raise AssertionError(
+            f"charts do not fit their panels: {page.evaluate(_CHART_FIT)}"
+        ) from None
+    return page.evaluate(_CHART_FIT)
+
+
+@pytest.mark.parametrize("width,height", [(1280, 800), (1920, 1080)], ids=["1280", "1920"])
+@pytest.mark.parametrize("notebook", ["plant.ipynb", NOTEBOOK], ids=["plant", "air_handler"])
+def test_charts_fit_the_panel_at_projector_and_full_hd_widths(
+    dashboard_server, new_page, screenshots_folder, notebook, width, height
+):
+    """At 1280 x 800 (a typical projector) the charts were 917-1,081 px in 906 px panels and
+    the page scrolled sideways; at 1920 they left ~450 px empty. Now each fits its panel,
+    in both unit systems, with and without a pinned A."""
+    page = new_page(width, height)
+    open_dashboard(page, dashboard_server, notebook)
+    view = "plant" if notebook == "plant.ipynb" else "unit"
+    fits = wait_until_charts_fit(page)
+    print(f"\n{view} {width}x{height} IP: (chart, panel px, drawn px) {fits}")
+    # nothing scrolls sideways
+    assert page.evaluate("() => document.documentElement.scrollWidth") <= width
+    screenshot_whole_dashboard(page, screenshots_folder / f"{view}_{width}_ip.png")
+    page.click(".plantside-unit-system button:has-text('SI')")
+    page.wait_for_function(
+        "() => document.querySelector('.plantside-figures').innerText.includes('kW')"
+    )
+    wait_until_charts_fit(page)
+    screenshot_whole_dashboard(page, screenshots_folder / f"{view}_{width}_si.png")
+    page.click(".plantside-pin")
+    shown = figures_text(page)
+    move_slider(page, "outdoor-air-fraction", presses=5)
+    wait_for_change(page, shown)
+    page.wait_for_selector(".ps-pinned")
+    fits = wait_until_charts_fit(page)
+    print(f"{view} {width}x{height} SI pinned: {fits}")
+    screenshot_whole_dashboard(page, screenshots_folder / f"{view}_{width}_si_pinned.png")
+    page.click(".plantside-unit-system button:has-text('IP')")
+    page.wait_for_function(
+        "() => document.querySelector('.plantside-figures').innerText.includes('tons')"
+    )
+    wait_until_charts_fit(page)
+    screenshot_whole_dashboard(page, screenshots_folder / f"{view}_{width}_ip_pinned.png")

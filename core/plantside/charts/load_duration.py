@@ -122,7 +122,12 @@ def _capacity_data(lines: pd.DataFrame, system, fmt, top: float) -> pd.DataFrame
     spread so labels of close lines (A and B, plant and stage) never print over each other."""
     unit = axis_title("", "power", system).strip()[1:-1]
     gap = top / _CURVES_HEIGHT_MIN * _LABEL_GAP_PX
-    lines = lines.assign(label_load=spread_labels(lines["load"].to_numpy(dtype=float), gap))
+    loads = lines["load"].to_numpy(dtype=float)
+    below = _labels_below(loads, gap)
+    placed = loads.copy()
+    if (~below).any():  # the labels above their lines, spread so they never touch
+        placed[~below] = spread_labels(loads[~below], gap)
+    lines = lines.assign(label_load=placed, label_below=below)
     return lines.assign(
         text=[
             f"{name}: {format(value, fmt)} {unit}"
@@ -135,6 +140,26 @@ def _capacity_data(lines: pd.DataFrame, system, fmt, top: float) -> pd.DataFrame
             )
         ]
     )
+
+
+def _labels_below(loads: np.ndarray, gap: float) -> np.ndarray:
+    """Which lines take their label below the line rather than above it.
+
+    A label sits above its line, one text height (``gap``, in load units) tall; a line
+    less than ``gap`` above would run through it (A's and B's plant capacity 4 % apart
+    did). Such a line's label goes below it instead, where there is room: no other line
+    within ``gap`` below, and the line under it not labelled below too.
+    """
+    order = np.argsort(loads, kind="stable")
+    ordered = loads[order]
+    below = np.zeros(loads.size, dtype=bool)
+    for rank, index in enumerate(order):
+        crowded_above = rank + 1 < ordered.size and ordered[rank + 1] - ordered[rank] < gap
+        room_below = ordered[rank] >= gap and (
+            rank == 0 or ordered[rank] - ordered[rank - 1] >= 2 * gap
+        )
+        below[index] = crowded_above and room_below
+    return below
 
 
 def _capacity_layers(lines: pd.DataFrame, system, fmt, width):
@@ -152,11 +177,18 @@ def _capacity_layers(lines: pd.DataFrame, system, fmt, width):
                 y=alt.Y("load:Q"), tooltip=[alt.Tooltip("text:N", title="Capacity")]
             )
         )
-        layers.append(
-            base.mark_text(
-                align="right", baseline="bottom", dy=-2, fontSize=14, color=colour
-            ).encode(x=alt.XValue(width - 4), y=alt.Y("label_load:Q"), text=alt.Text("text:N"))
-        )
+        for below in (False, True):  # above the line, or below it where a line is close above
+            layers.append(
+                base.transform_filter(alt.datum.label_below == below)
+                .mark_text(
+                    align="right",
+                    baseline="top" if below else "bottom",
+                    dy=3 if below else -2,
+                    fontSize=14,
+                    color=colour,
+                )
+                .encode(x=alt.XValue(width - 4), y=alt.Y("label_load:Q"), text=alt.Text("text:N"))
+            )
     return layers
 
 
