@@ -23,7 +23,11 @@ from plantside.charts.study_frames import (
     year_table,
 )
 from plantside.dashboard.app import Dashboard
-from plantside.study.figures import climate_label, first_recirculating_unit
+from plantside.study.figures import (
+    climate_label,
+    first_recirculating_unit,
+    outdoor_air_fraction_of,
+)
 from plantside.study.run import run_study
 from plantside.study.scenario import load_scenario
 
@@ -125,3 +129,20 @@ def test_safe_filename_keeps_no_folder():
     assert safe_filename("../../etc/passwd") == "_.._etc_passwd"
     assert safe_filename("AHU 1/east") == "AHU 1_east"
     assert safe_filename("") == "plantside-export"
+
+
+def test_a_unit_without_return_air_is_drawn_at_its_own_fraction_and_says_why(study):
+    # the example's OA-1 takes 100 % outdoor air (scenario file): its sweep is one point
+    _, result, views = study
+    index = next(
+        i
+        for i, unit in enumerate(result.scenario.air_handlers)
+        if outdoor_air_fraction_of(unit.settings) == 1.0
+    )
+    view = views[index + 1][1]
+    frames = chart_frames("sweep", view, "SI")
+    assert set(frames["sweep"]["outdoor_air_percent"]) == {100.0}  # not at 0 %, as drawn before
+    chart = study_chart("sweep", frames, "SI", view).to_dict()
+    assert "no return air" in " ".join(chart["title"]["subtitle"])
+    # its value labels sit left of the markers, clear of the legend on the right
+    assert {row["label_side"] for row in chart["datasets"]["marker"]} == {"left"}

@@ -171,12 +171,31 @@ def oa_sweep_chart(
                     .encode(x=x, y=label_y, text=alt.Text("text:N"))
                 )
         subtitle = _marker_text(marker)
+    note = _single_fraction_note(sweep) if len(sweep) else None
+    if note:
+        subtitle = [note] if subtitle is None else [subtitle, note]
     chart = layered(layers, width=plot_width(width), height=_HEIGHT)
     return themed(
         chart,
         title=title or "Coil design load against outdoor air",
         subtitle=subtitle,
         datasets=datasets,
+    )
+
+
+#: Outdoor-air fraction [%] beyond which a marker's labels go to its left.
+_RIGHT_EDGE_PERCENT = 85.0
+
+
+def _single_fraction_note(sweep: pd.DataFrame) -> str | None:
+    """Why the chart has points but no curves: an air handler without return air runs at
+    one outdoor-air fraction (100 %), so there is no fraction to vary."""
+    fractions = set(sweep["outdoor_air_percent"].round(6))
+    if len(fractions) != 1:
+        return None
+    return (
+        f"This air handler has no return air: it always takes {fractions.pop():.0f} % "
+        "outdoor air, so its design coil load cannot vary with the fraction (points only)"
     )
 
 
@@ -192,6 +211,8 @@ def _label_places(data: pd.DataFrame, gap: float) -> pd.DataFrame:
         where = data.groupby(SCENARIO_COLUMN)["outdoor_air_percent"].mean()
         if where.size == 2 and where.iloc[0] != where.iloc[1]:
             sides[data[SCENARIO_COLUMN] == where.idxmin()] = "left"
+    # a marker near 100 % labelled to its right would print over the legend
+    sides[(data["outdoor_air_percent"] > _RIGHT_EDGE_PERCENT).to_numpy()] = "left"
     places = data["load"].to_numpy(dtype=float).copy()
     for side in ("left", "right"):
         chosen = (sides == side).to_numpy()

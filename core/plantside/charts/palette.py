@@ -278,8 +278,8 @@ def _plantside_theme() -> alt.theme.ThemeConfig:
 #: 0.5-0.55, bold 0.56-0.6; rounded up, so a wrapped line is never wider than its span).
 _CHARACTER_WIDTH = 0.56
 _BOLD_CHARACTER_WIDTH = 0.62
-#: Room beside the plot a title may use besides the plot's width [px] (the y axis).
-_TITLE_MARGIN = 110
+#: Room a title may use besides the plot's width [px]: the y axis and part of a legend.
+_TITLE_MARGIN = 180
 #: Space between concatenated panels [px] (the theme's ``concat.spacing``).
 _CONCAT_SPACING = 40
 

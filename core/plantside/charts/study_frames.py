@@ -201,9 +201,12 @@ def chart_frames(
     if name == "psychrometric":
         return _psychrometric(view, system, cache)
     if name == "sweep":
-        sweep = _f.oa_sweep_frame(
-            np.linspace(0.0, 1.0, next(iter(view.sweep.values())).size), view.sweep, system
+        points = next(iter(view.sweep.values())).size
+        # one point: an air handler without return air, swept at its own (100 %) fraction
+        fractions = (
+            np.linspace(0.0, 1.0, points) if points > 1 else np.full(1, view.outdoor_air_fraction)
         )
+        sweep = _f.oa_sweep_frame(fractions, view.sweep, system)
         return {"sweep": sweep, "marker": _f.oa_marker_frame(sweep, view.outdoor_air_fraction)}
     raise KeyError(f"unknown chart {name!r}; one of {', '.join(CHARTS)}")
 
