@@ -35,7 +35,7 @@ __version__ = "0.1.0"
 
 #: Public entry point -> the module that defines it.
 _ENTRY_POINTS = {
-    "load_scenario": "plantside.study.scenario",
+    "load_scenario": "plantside.study.scenario_read",
     "run_study": "plantside.study.run",
     "study_summary": "plantside.study.run",
     "load_bundled_climate": "plantside.climate.bundled",
