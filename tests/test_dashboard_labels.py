@@ -2,8 +2,8 @@
 file name says what it shows (the plant or which air handler).
 
 The distribution gain (pumps and pipes) is added to the air handlers' coil loads to give
-the load the plant meets (ASHRAE Handbook HVAC Systems and Equipment, chapter on hydronic
-heat-distribution systems, from memory); a figure that includes it is the plant load.
+the load the plant meets (common practice; the contributor guide's register, "Distribution
+gain as a fraction of the load"); a figure that includes it is the plant load.
 """
 
 from __future__ import annotations
