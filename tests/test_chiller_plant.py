@@ -129,3 +129,15 @@ def test_hot_water_year(year):
     assert h["hot_water_supply_C"].max() <= 70.0 and h["hot_water_supply_C"].min() >= 45.0
     assert (h["hot_water_return_C"] <= h["hot_water_supply_C"]).all()
     assert 0.85 < plant.summary()["seasonal_boiler_efficiency"] < 0.98
+
+
+def test_free_cooling_hours_only_where_the_tower_water_is_cold_enough(year):
+    # Waterside economizer (ASHRAE Handbook HVAC Systems and Equipment 2020, Ch. 40): the
+    # exchanger pre-cools only when tower water (wet bulb + tower approach) plus the
+    # exchanger approach is below the chilled-water return; return = supply + design ΔT
+    # here (constant ΔT by default), 6.7 + 5.6 = 12.3 °C, approaches 4 K and 1.5 K.
+    _, wet_bulb, cooling, _ = year
+    summary = _plant(year, condenser=CondenserSettings(waterside_economizer=True)).summary()
+    possible = int(np.sum((wet_bulb + 4.0 + 1.5 < 6.7 + 5.6 + 1e-9) & (cooling > 0)))
+    assert 0 < summary["free_cooling_hours"] <= possible
+    assert _plant(year).summary()["free_cooling_hours"] == 0

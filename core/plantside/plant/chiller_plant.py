@@ -195,6 +195,7 @@ class ChillerPlantYear:
             "plant_kWh": total,
             "pump_heat_kWh": float(h["pump_heat_kW"].sum()),
             "free_cooling_kWh": float(h["free_cooling_kW"].sum()),
+            "free_cooling_hours": int((h["free_cooling_kW"] > 0).sum()),
             "economizer_chiller_kWh_saved": self.chiller_energy_without_economizer - chiller,
             "condenser_heat_kWh": float(h["condenser_heat_kW"].sum()),
             "seasonal_chiller_cop": cooling / chiller if chiller > 0 else float("nan"),

@@ -146,6 +146,7 @@ def run_water_side(result) -> WaterSideResult | None:
                 "curves_iplv_cop": curves_iplv,
                 "rating_weighted_cop": float(row["average_cop"].iloc[0]) if len(row) else np.nan,
                 "free_cooling_kWh": summary["free_cooling_kWh"],
+                "free_cooling_hours": summary["free_cooling_hours"],
                 "economizer_kWh_saved": summary["economizer_chiller_kWh_saved"],
                 "machine_starts": summary["machine_starts"],
                 "hours_extra_for_flow": summary["hours_extra_for_flow"],
