@@ -18,7 +18,10 @@ from pathlib import Path
 import pytest
 from plantside.cli.main import main
 from plantside.dashboard.state import DashboardState
+from plantside.dashboard.water_side_panel import WaterSidePanel
 from plantside.study.scenario import load_scenario
+from plantside.study.water_side_run import water_side_summary
+from plantside.units import to_display
 
 SCENARIOS = sorted(
     (Path(__file__).resolve().parents[1] / "example_data" / "scenarios").glob("*.toml")
@@ -99,3 +102,31 @@ def test_each_air_handler_view_equals_the_command_line(both):
         assert figures.design_zone_load == pytest.approx(
             unit["design_zone_sensible_kW"] + unit["design_zone_latent_kW"], rel=1e-12
         )
+
+
+def test_plant_page_water_side_equals_the_command_line(both):
+    # the plant page's water-side chart and tables draw these figures (one calculation)
+    summary, scenario = both
+    panel = WaterSidePanel(DashboardState(scenario, view="plant"), plant=True)
+    assert water_side_summary(panel.water_side()) == summary["water_side"]
+    panel.update()
+    if summary["water_side"] is None:
+        assert panel.tables.value == "" and panel.chart is None
+        return
+    first = summary["water_side"]["options"][0]  # the first option's chillers, as printed
+    assert f"<td>{first['chiller_kWh']:,.0f}</td>" in panel.tables.value
+    energy = panel.chart_spec.to_dict()["datasets"]["energy"]
+    assert energy[0]["energy"] == pytest.approx(first["chiller_kWh"], rel=1e-9)
+
+
+def test_single_unit_page_coil_schedule_equals_the_command_line(both):
+    summary, scenario = both
+    state = DashboardState(scenario, view="air_handler", air_handler=0)
+    panel = WaterSidePanel(state, plant=False)
+    panel.update()
+    name = summary["air_handlers"][0]["name"]
+    rows = [r for r in summary["coil_schedule"] if r["air_handler"] == name]
+    assert panel.tables.value.count("<tr>") == len(rows) + 1
+    system = state.inputs.unit_system
+    airflow = float(to_display("airflow", rows[0]["airflow_m3s"], system)[0])
+    assert f"<td>{airflow:,.0f}</td>" in panel.tables.value
