@@ -12,11 +12,7 @@ from collections.abc import Mapping
 import numpy as np
 import pandas as pd
 
-from plantside.charts.frame_common import (
-    _display,
-    _finish,
-    _system,
-)
+from plantside.charts.frame_common import _display, _finish, _system
 from plantside.errors import InputRangeError, check_range
 
 __all__ = ["BREAKDOWN_COMPONENTS", "BREAKDOWN_OPTIONAL", "design_breakdown_frame"]

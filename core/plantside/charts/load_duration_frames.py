@@ -13,13 +13,7 @@ from collections.abc import Mapping, Sequence
 import numpy as np
 import pandas as pd
 
-from plantside.charts.frame_common import (
-    _column,
-    _display,
-    _finish,
-    _hourly_zone_load,
-    _system,
-)
+from plantside.charts.frame_common import _column, _display, _finish, _hourly_zone_load, _system
 from plantside.errors import InputRangeError, check_range
 from plantside.plant.efficiency import iplv_band_weights
 from plantside.plant.part_load import load_duration_curve, part_load_bins

@@ -12,12 +12,7 @@ from collections.abc import Mapping
 import numpy as np
 import pandas as pd
 
-from plantside.charts.frame_common import (
-    _column,
-    _display,
-    _finish,
-    _system,
-)
+from plantside.charts.frame_common import _column, _display, _finish, _system
 from plantside.errors import InputRangeError, check_range
 
 __all__ = ["oa_marker_frame", "oa_sweep_frame", "oa_sweep_frame_from_sweep"]

@@ -13,12 +13,7 @@ import numpy as np
 import pandas as pd
 
 from plantside.air import moist_air
-from plantside.charts.frame_common import (
-    MAX_ROWS,
-    _display,
-    _finish,
-    _system,
-)
+from plantside.charts.frame_common import MAX_ROWS, _display, _finish, _system
 from plantside.errors import InputRangeError, check_range
 from plantside.units import UnitSystem, from_display, unit_label
 
