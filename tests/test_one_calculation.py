@@ -62,21 +62,28 @@ def test_plant_view_equals_the_command_line(both):
 
 def test_plant_figures_follow_the_coincident_rule(both):
     # coincident design: every unit at the same outdoor state, the largest sum plus the
-    # distribution gain governs; capacity = design load x (1 + margin) (common practice)
+    # distribution gain governs, times (1 + the morning pick-up allowance, its own term);
+    # capacity = design load x (1 + margin) (common practice)
     summary, scenario = both
     plant = summary["cooling_plant"]
     gain = 1.0 + scenario.distribution_gain_percent / 100.0
+    pickup = plant["pickup_allowance_percent"] / 100.0
     sums = {
         row["kind"]: sum(row[f"{u['name']}_coil_total_kW"] for u in summary["air_handlers"])
         for row in plant["design_conditions"]
     }
     governing = max(sums, key=sums.get)
-    assert plant["design_load_kW"] == pytest.approx(sums[governing] * gain, rel=1e-12)
+    assert plant["design_load_kW"] == pytest.approx(
+        sums[governing] * gain * (1.0 + pickup), rel=1e-12
+    )
     assert plant["design_capacity_kW"] == pytest.approx(
         plant["design_load_kW"] * (1.0 + plant["margin_percent"] / 100.0), rel=1e-12
     )
     assert plant["design_loads_kW"]["distribution_gain_kW"] == pytest.approx(
         sums[governing] * (gain - 1.0), rel=1e-9, abs=1e-9
+    )
+    assert plant["design_loads_kW"]["pickup_kW"] == pytest.approx(
+        sums[governing] * gain * pickup, rel=1e-9, abs=1e-9
     )
     # the year's peak cannot be below the largest unit's own peak (loads are >= 0)
     assert plant["annual_peak_kW"] >= max(

@@ -29,8 +29,9 @@ hour holds; heating negative, terminal heat positive)::
 
     zone_sensible_need = zone_sensible - terminal_heating + zone_sensible_unmet
 
-Not modelled: the morning recovery from set-back (a pick-up allowance on the
-heating plant's design covers it, :mod:`plantside.study.run`), a cooling set-up,
+Not modelled: the morning recovery from set-back and the pull-down after the zone
+floats up (pick-up allowances on the heating and cooling plants' designs cover them,
+:mod:`plantside.study.run`, :mod:`plantside.study.figures`), a cooling set-up,
 and the zone's unoccupied latent gain during night cycling: the unit neither adds
 nor removes moisture with the damper closed and its coil heating, so the gain is
 reported unmet (``zone_latent_unmet_kW``, as in an off hour) and the zone humidity

@@ -51,6 +51,9 @@ BREAKDOWN_OPTIONAL = (
     ("Condensate heat", ("condensate_heat_kW",), -1.0),
     # plant view only: pump work and pipe heat gain between the coils and the plant
     ("Distribution gain", ("distribution_gain_kW",), 1.0),
+    # plant view only: the morning pick-up allowance after the zones float up overnight
+    # (plant.cooling_pickup_percent; common practice)
+    ("Morning pick-up", ("pickup_kW",), 1.0),
 )
 
 
@@ -70,11 +73,11 @@ def design_breakdown_frame(loads: Mapping[str, float], system="SI") -> pd.DataFr
         ``humidity_control_reheat_kW``; dehumidification reheat:
         ``dehumidification_reheat_kW`` and ``condenser_heat_recovered_kW``; preheat
         and heating coil, condensate heat, and for a plant
-        ``distribution_gain_kW``, the pump and pipe gain included in its coil
-        load). A missing component counts as 0 kW. Whatever the
-        steps do not explain is drawn as an "Other" step, so the waterfall
-        always ends exactly on the model's coil load and never hides a
-        discrepancy.
+        ``distribution_gain_kW``, the pump and pipe gain, and ``pickup_kW``, the
+        morning pick-up allowance, both included in its coil load). A missing
+        component counts as 0 kW. Whatever the steps do not explain is drawn
+        as an "Other" step, so the waterfall always ends exactly on the
+        model's coil load and never hides a discrepancy.
     system : {"SI", "IP"}
         Display unit system.
 

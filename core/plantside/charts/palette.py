@@ -112,9 +112,10 @@ COMPONENT_COLOURS = {
     "Preheat and heating coil": "#999933",  # olive
     "Condensate heat": "#DDDDDD",  # pale grey: a small correction
     "Distribution gain": "#661100",  # dark brown (Tol dark): pumps and pipes, plant view
+    "Morning pick-up": "#AA4499",  # purple (Tol muted): pull-down allowance, plant view
     "Zone load": ZONE,
     "Coil load": COIL,
-    "Plant load": PLANT,  # plant view: the coils plus the distribution gain
+    "Plant load": PLANT,  # plant view: the coils plus the distribution gain and pick-up
 }
 
 # --- economizer modes (Okabe-Ito [1]) -----------------------------------------------------

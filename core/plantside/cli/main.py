@@ -122,6 +122,13 @@ def _design_text(result) -> str:
             f"  the heating design load includes a {pickup:g} % morning pick-up allowance "
             "after night set-back (common practice; set plant.heating_pickup_percent)"
         )
+    pickup = scenario.cooling_pickup_allowance_percent
+    if pickup > 0:
+        lines.append(
+            f"  the cooling design load includes a {pickup:g} % morning pick-up allowance "
+            "after the zones float up overnight (common practice; set "
+            "plant.cooling_pickup_percent)"
+        )
     for unit in result.air_handlers:
         off = unit.terminal_hourly.sum()
         cycled = int(unit.hourly["night_cycle"].sum()) if "night_cycle" in unit.hourly else 0

@@ -53,9 +53,11 @@ class CoincidentDesign(NamedTuple):
 
     ``table`` has one row per design-condition kind: ``condition`` (label), each air
     handler's ``<name>_coil_total_kW`` and ``<name>_zone_kW``, their sums
-    ``coil_total_kW`` and ``zone_total_kW``, and ``plant_kW`` (coil total plus the
-    distribution gain) [kW]. ``governing`` is the kind of the largest ``plant_kW``
-    (the first in table order on a tie).
+    ``coil_total_kW`` and ``zone_total_kW``, ``pickup_percent`` [%] and ``pickup_kW``
+    (the morning pick-up allowance on the coil total with its distribution gain), and
+    ``plant_kW`` (coil total plus the distribution gain plus the pick-up) [kW].
+    ``governing`` is the kind of the largest ``plant_kW`` (the first in table order on a
+    tie).
     """
 
     table: pd.DataFrame
@@ -141,9 +143,11 @@ def plant_option_specs(specs: tuple[PlantOptionSpec, ...], kind: str):
 
 
 def coincident_cooling_design(
-    units: Sequence[AirHandlerResult], distribution_gain_percent: float
+    units: Sequence[AirHandlerResult],
+    distribution_gain_percent: float,
+    pickup_percent: float = 0.0,
 ) -> CoincidentDesign:
-    """Every air handler at the same design outdoor state; the largest sum governs.
+    r"""Every air handler at the same design outdoor state; the largest sum governs.
 
     Parameters
     ----------
@@ -151,10 +155,23 @@ def coincident_cooling_design(
         The air handlers, each with its cooling design points.
     distribution_gain_percent : float
         Pump heat and pipe gains [%] added to the coincident coil load.
+    pickup_percent : float, optional
+        Morning pick-up allowance [%] on the coil load with its distribution gain
+        (:attr:`Scenario.cooling_pickup_allowance_percent`), its own term.
 
     Returns
     -------
     CoincidentDesign
+
+    Notes
+    -----
+    .. math::
+
+        Q_{plant} = Q_{coil} (1 + g/100) + Q_{pickup},\quad
+        Q_{pickup} = Q_{coil} (1 + g/100)\, p/100
+
+    with the distribution gain :math:`g` and the pick-up allowance :math:`p` [%]
+    (common practice, no source).
     """
     factor = 1.0 + distribution_gain_percent / 100.0
     rows = []
@@ -166,7 +183,9 @@ def coincident_cooling_design(
             row[f"{unit.name}_zone_kW"] = zone_load(loads)
         row["coil_total_kW"] = sum(row[f"{u.name}_coil_total_kW"] for u in units)
         row["zone_total_kW"] = sum(row[f"{u.name}_zone_kW"] for u in units)
-        row["plant_kW"] = row["coil_total_kW"] * factor
+        row["pickup_percent"] = float(pickup_percent)
+        row["pickup_kW"] = row["coil_total_kW"] * factor * pickup_percent / 100.0
+        row["plant_kW"] = row["coil_total_kW"] * factor + row["pickup_kW"]
         rows.append(row)
     table = pd.DataFrame(rows).set_index("kind")
     return CoincidentDesign(table, str(table["plant_kW"].idxmax()))
@@ -198,13 +217,18 @@ def _power_terms(loads: Mapping[str, float]) -> dict:
 
 
 def design_load_breakdown(
-    units: Sequence[AirHandlerResult], kind: str, distribution_gain_percent: float | None
+    units: Sequence[AirHandlerResult],
+    kind: str,
+    distribution_gain_percent: float | None,
+    pickup_percent: float = 0.0,
 ) -> dict:
     """The design point's power terms [kW] at condition ``kind``, summed over ``units``.
 
-    The distribution gain is its own term (``distribution_gain_kW``) and is included
-    in ``coil_total_kW``; for one air handler pass ``[unit]`` and ``None`` (no
-    ``distribution_gain_kW`` term then).
+    The distribution gain is its own term (``distribution_gain_kW``) and so is the
+    morning pick-up allowance (``pickup_kW``, ``pickup_percent`` [%] of the coil load
+    with its distribution gain, as in :func:`coincident_cooling_design`); both are
+    included in ``coil_total_kW``. For one air handler pass ``[unit]`` and ``None`` (no
+    ``distribution_gain_kW`` or ``pickup_kW`` term then).
     """
     loads: dict[str, float] = {}
     for unit in units:
@@ -214,6 +238,8 @@ def design_load_breakdown(
         factor = 1.0 + distribution_gain_percent / 100.0
         loads["distribution_gain_kW"] = (factor - 1.0) * loads["coil_total_kW"]
         loads["coil_total_kW"] *= factor
+        loads["pickup_kW"] = loads["coil_total_kW"] * pickup_percent / 100.0
+        loads["coil_total_kW"] += loads["pickup_kW"]
     return loads
 
 
@@ -252,11 +278,12 @@ def headline_figures(
     if loads is None:
         loads = view_loads(units, gain, air_handler)
     if air_handler is None:
-        design = coincident_cooling_design(units, gain)
+        pickup = scenario.cooling_pickup_allowance_percent
+        design = coincident_cooling_design(units, gain, pickup)
         kind = design.governing
         design_coil = float(design.table.loc[kind, "plant_kW"])
         design_zone = float(design.table.loc[kind, "zone_total_kW"])
-        design_loads = design_load_breakdown(units, kind, gain)
+        design_loads = design_load_breakdown(units, kind, gain, pickup)
     else:
         unit = units[air_handler]
         kind = unit.cooling_design.governing

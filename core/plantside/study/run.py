@@ -341,7 +341,9 @@ def assemble_plants(
     units = tuple(units)
     gain = scenario.distribution_gain_percent
     factor = 1.0 + gain / 100.0
-    cooling_table, governing_kind = coincident_cooling_design(units, gain)
+    cooling_table, governing_kind = coincident_cooling_design(
+        units, gain, scenario.cooling_pickup_allowance_percent
+    )
     cooling = _plant(
         "cooling",
         {u.name: u.hourly["coil_total_kW"].to_numpy() for u in units},
@@ -547,6 +549,7 @@ def study_summary(result: StudyResult) -> dict:
             "design_zone_kW": plant_figures.design_zone_load,
             "hours_above_75_percent_of_capacity": plant_figures.hours_above_threshold,
             "design_loads_kW": plant_figures.design_loads,
+            "pickup_allowance_percent": scenario.cooling_pickup_allowance_percent,
             "first_option": plant_figures.option_name,
             "first_option_machines_kW": list(plant_figures.machine_capacities),
         },

@@ -31,6 +31,9 @@ The layout (field by field in the README)::
     heating_margin_percent = 15
     heating_pickup_percent = 10   # morning pick-up after night set-back (default: 10 % where a
                                   # unit sets back, else 0; common practice)
+    cooling_pickup_percent = 10   # morning pull-down after the zone floats up overnight
+                                  # (default: 10 % where a unit's fan is off when
+                                  # unoccupied, else 0; common practice)
     [[plant.cooling_option]]      # one table per option compared
     name = "2 x 50 %"
     capacity_fractions = [0.5, 0.5]

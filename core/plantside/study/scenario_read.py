@@ -58,6 +58,7 @@ _PLANT_KEYS = (
     "cooling_margin_percent",
     "heating_margin_percent",
     "heating_pickup_percent",
+    "cooling_pickup_percent",
     "cooling_option",
     "heating_option",
     "chilled_water",
@@ -292,6 +293,7 @@ def scenario_from_dict(
         ("cooling_margin_percent", 10.0),
         ("heating_margin_percent", 10.0),
         ("heating_pickup_percent", None),
+        ("cooling_pickup_percent", None),
     ):
         percents[key] = default
         if plant.get(key, default) is not None:
@@ -356,6 +358,7 @@ def scenario_from_dict(
         cooling_margin_percent=cooling_margin,
         heating_margin_percent=heating_margin,
         heating_pickup_percent=heating_pickup,
+        cooling_pickup_percent=percents["cooling_pickup_percent"],
         cooling_options=options["cooling"],
         heating_options=options["heating"],
         water_side=water_side,

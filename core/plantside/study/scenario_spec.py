@@ -29,10 +29,11 @@ from plantside.units import UnitSystem, to_display
 __all__ = ["DEFAULT_PICKUP_PERCENT", "AirHandlerSpec", "PlantOptionSpec", "Scenario"]
 
 
-#: Morning pick-up allowance on the heating plant's design load where an air handler sets
-#: its zone back at night [%] (common practice, no source: recovering the set-back in
-#: about an hour or two; a licensed engineer sets it from the building's mass and the
-#: pick-up period).
+#: Morning pick-up allowance on the plant's design load [%]: on the heating plant where an
+#: air handler sets its zone back at night, on the cooling plant where an air handler's fan
+#: is off when unoccupied (the zone floats up overnight and is pulled down in the morning)
+#: (common practice, no source: recovering the set-back in about an hour or two; a
+#: licensed engineer sets it from the building's mass and the pick-up period).
 DEFAULT_PICKUP_PERCENT = 10.0
 
 
@@ -94,6 +95,7 @@ class Scenario:
     cooling_options: tuple[PlantOptionSpec, ...] = ()
     heating_options: tuple[PlantOptionSpec, ...] = ()
     heating_pickup_percent: float | None = None
+    cooling_pickup_percent: float | None = None
     climate_zone: str | None = None
     latitude: float | None = None
     longitude: float | None = None
@@ -121,6 +123,20 @@ class Scenario:
             for s in (spec.settings for spec in self.air_handlers)
         )
         return DEFAULT_PICKUP_PERCENT if sets_back else 0.0
+
+    @property
+    def cooling_pickup_allowance_percent(self) -> float:
+        """Morning pick-up allowance on the cooling plant's design load [%].
+
+        ``cooling_pickup_percent`` when given; otherwise :data:`DEFAULT_PICKUP_PERCENT`
+        when an air handler's fan is off when unoccupied (``fan_schedule =
+        "occupied"``: the zone floats up overnight and is pulled down in the morning),
+        else 0.
+        """
+        if self.cooling_pickup_percent is not None:
+            return float(self.cooling_pickup_percent)
+        floats_up = any(spec.settings.fan_schedule == "occupied" for spec in self.air_handlers)
+        return DEFAULT_PICKUP_PERCENT if floats_up else 0.0
 
     def load_weather(self) -> Weather:
         """The hourly weather of the site (bundled climate or CSV)."""

@@ -90,8 +90,9 @@ def scenario_to_dict(scenario: Scenario) -> dict:
         "cooling_margin_percent": scenario.cooling_margin_percent,
         "heating_margin_percent": scenario.heating_margin_percent,
     }
-    if scenario.heating_pickup_percent is not None:
-        plant["heating_pickup_percent"] = scenario.heating_pickup_percent
+    for key in ("heating_pickup_percent", "cooling_pickup_percent"):
+        if getattr(scenario, key) is not None:
+            plant[key] = getattr(scenario, key)
     if scenario.cooling_options:
         plant["cooling_option"] = [_option_table(o) for o in scenario.cooling_options]
     if scenario.heating_options:
