@@ -102,6 +102,16 @@ def coil_schedule_table(schedule: pd.DataFrame, system) -> pd.DataFrame:
     return table
 
 
+def _loop(name, rows, delta_t, system) -> dict:
+    """Design flow of each option's loop and the loop's design ΔT, in display units."""
+    return {
+        _h(name, "water_flow", system): _d("water_flow", rows["design_flow_m3s"], system),
+        _h("ΔT", "temperature_difference", system): np.full(
+            len(rows), _d("temperature_difference", delta_t, system)
+        ),
+    }
+
+
 def water_side_tables(water, spec, system) -> dict[str, pd.DataFrame]:
     """The water side's key figures per plant option, in display units.
 
@@ -136,17 +146,7 @@ def water_side_tables(water, spec, system) -> dict[str, pd.DataFrame]:
         table = pd.DataFrame(
             {
                 "Option": cooling["option"].to_numpy(),
-                _h("Chilled water", "water_flow", system): _d(
-                    "water_flow", cooling["design_flow_m3s"], system
-                ),
-                _h("ΔT", "temperature_difference", system): np.full(
-                    len(cooling),
-                    float(
-                        to_display(
-                            "temperature_difference", spec.chilled_water.design_delta_t, system
-                        )[0]
-                    ),
-                ),
+                **_loop("Chilled water", cooling, spec.chilled_water.design_delta_t, system),
                 "Pump [kW]": cooling["design_pump_kW"].to_numpy(dtype=float),
                 _h("Condenser heat", "power", system): _d(
                     "power", cooling["condenser_heat_kW"], system
@@ -189,17 +189,7 @@ def water_side_tables(water, spec, system) -> dict[str, pd.DataFrame]:
         table = pd.DataFrame(
             {
                 "Option": heating["option"].to_numpy(),
-                _h("Hot water", "water_flow", system): _d(
-                    "water_flow", heating["design_flow_m3s"], system
-                ),
-                _h("ΔT", "temperature_difference", system): np.full(
-                    len(heating),
-                    float(
-                        to_display("temperature_difference", spec.hot_water.design_delta_t, system)[
-                            0
-                        ]
-                    ),
-                ),
+                **_loop("Hot water", heating, spec.hot_water.design_delta_t, system),
                 "Pump [kW]": heating["design_pump_kW"].to_numpy(dtype=float),
                 "Fuel [kWh]": heating["fuel_kWh"].to_numpy(dtype=float),
                 "Pumps [kWh]": heating["pump_kWh"].to_numpy(dtype=float),
