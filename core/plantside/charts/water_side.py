@@ -281,7 +281,7 @@ def water_side_chart(
         panels.append(layered([dots], width=width, height=height))
         datasets["efficiency"] = efficiency
     chart = concatenated("v", panels)
-    chart.resolve = alt.Resolve(scale=alt.ScaleResolveMap(color="independent"))
+    chart.resolve = alt.Resolve(scale=alt.ScaleResolveMap(color="independent", shape="independent"))
     return themed(
         chart,
         title=title or "The chilled-water plant's year, each option",
