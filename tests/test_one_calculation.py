@@ -124,6 +124,12 @@ def test_plant_page_water_side_equals_the_command_line(both):
     assert f"<td>{first['chiller_kWh']:,.0f}</td>" in panel.tables.value
     energy = panel.chart_spec.to_dict()["datasets"]["energy"]
     assert energy[0]["energy"] == pytest.approx(first["chiller_kWh"], rel=1e-9)
+    # the other unit system: redrawn in place, the spec as Altair writes it, flows in gpm/L/s
+    other = "SI" if panel.state.inputs.unit_system == "IP" else "IP"
+    assert panel.state.set("unit_system", other)
+    assert panel.update()
+    assert panel.chart.spec == panel.chart_spec.to_dict()
+    assert ("[gpm]" if other == "IP" else "[L/s]") in panel.tables.value
 
 
 def test_single_unit_page_coil_schedule_equals_the_command_line(both):
