@@ -67,8 +67,9 @@ def expected_design_card(fraction: float) -> str:
     )
     weather = load_bundled_climate(scenario.climate)
     conditions = design_conditions_from_weather(weather).conditions
+    zone = scenario.zone_loads(index, weather)  # the zone with the site's sun, as the study
     summary = cooling_design_points(
-        settings, spec.zone, conditions, percent=scenario.cooling_design_percent
+        settings, zone, conditions, percent=scenario.cooling_design_percent
     )
     load_kw = summary.points[summary.governing].loads["coil_total_kW"]
     tons = float(tons_from_kw(load_kw))  # the example is written in IP units

@@ -112,7 +112,7 @@ COMPONENT_COLOURS = {
     "Preheat and heating coil": "#999933",  # olive
     "Condensate heat": "#DDDDDD",  # pale grey: a small correction
     "Distribution gain": "#661100",  # dark brown (Tol dark): pumps and pipes, plant view
-    "Morning pick-up": "#AA4499",  # purple (Tol muted): pull-down allowance, plant view
+    "Morning pick-up": "#004488",  # dark blue (Tol high-contrast): pull-down allowance
     "Zone load": ZONE,
     "Coil load": COIL,
     "Plant load": PLANT,  # plant view: the coils plus the distribution gain and pick-up
