@@ -1,14 +1,16 @@
 """The water side of a study: scenario tables, each option's year, the command line."""
 
+import dataclasses
 import json
 import math
 from pathlib import Path
 
 import numpy as np
+import pandas as pd
 import pytest
 from plantside.cli.main import main
 from plantside.errors import ScenarioError
-from plantside.plant.chillers import IPLV_TOLERANCE
+from plantside.plant.chillers import IPLV_TOLERANCE, default_chiller_curves
 from plantside.study.run import run_study, study_summary
 from plantside.study.scenario import dumps_scenario, load_scenario, loads_scenario
 from plantside.study.water_side_run import run_water_side
@@ -130,3 +132,71 @@ def test_design_json_carries_the_water_side(capsys):
         cooling["chiller_kWh"] + cooling["pump_kWh"] + cooling["tower_fan_kWh"]
     )
     assert all(math.isfinite(d["nominal_tower_tons"]) for d in water["heat_rejection"])
+
+
+def _with_curves(text, option_name, lines):
+    """The clinic's text with curve lines added to one cooling option."""
+    anchor = text.index(f'name = "{option_name}"')
+    end = text.index("\n\n", anchor)
+    return text[:end] + "\n" + "\n".join(lines) + text[end:]
+
+
+def _option_year(result, options):
+    scenario = dataclasses.replace(result.scenario, cooling_options=options)
+    water = run_water_side(dataclasses.replace(result, scenario=scenario))
+    return dict(water.chiller_options)
+
+
+def test_option_curves_replace_the_default_set(clinic):
+    # The curve form (input = capacity / COP x CAPFT x EIRFT x EIRFPLR): with the default
+    # set's own coefficients the year is the default year exactly; with CAPFT = EIRFT = 1
+    # and EIRFPLR = PLR the input is the served load over the rated COP every hour.
+    result, _ = clinic
+    plain = dataclasses.replace(result.scenario.cooling_options[0], efficiency=None)
+    default = default_chiller_curves(result.scenario.water_side.condenser.condenser)
+    same = dataclasses.replace(
+        plain,
+        name="own",
+        capacity_curve=default.capft,
+        efficiency_curve=default.eirft,
+        part_load_curve=default.eirfplr,
+    )
+    flat = dataclasses.replace(
+        same,
+        name="flat",
+        capacity_curve=(1.0, 0, 0, 0, 0, 0),
+        efficiency_curve=(1.0, 0, 0, 0, 0, 0),
+        part_load_curve=(0.0, 1.0, 0.0),
+    )
+    years = _option_year(result, (plain, same, flat))
+    base, own, linear = years[plain.name], years["own"], years["flat"]
+    pd.testing.assert_frame_equal(base.hourly, own.hourly)
+    h = linear.hourly
+    served = h["chiller_load_kW"] - h["unmet_kW"]
+    np.testing.assert_allclose(h["chiller_input_kW"], served / default.reference_cop, atol=1e-9)
+    assert linear.summary()["chiller_kWh"] != pytest.approx(base.summary()["chiller_kWh"])
+
+
+def test_option_curves_are_read_checked_and_round_trip():
+    text = CLINIC.read_text(encoding="utf-8")
+    lines = [
+        "capacity_curve = [1.0, 0.0, 0.0, 0.0, 0.0, 0.0]",
+        "efficiency_curve = [1.2, 0.0, 0.0, -0.00679, 0.0, 0.0]",  # 1.0001 at 29.44 °C
+        "part_load_curve = [0.1, 0.3, 0.6]",
+    ]
+    scenario = loads_scenario(_with_curves(text, "2 x 50 %", lines), base_dir=SCENARIOS)
+    option = scenario.cooling_options[0]
+    assert option.efficiency_curve == (1.2, 0.0, 0.0, -0.00679, 0.0, 0.0)
+    back = loads_scenario(dumps_scenario(scenario), base_dir=SCENARIOS)
+    assert back.cooling_options == scenario.cooling_options
+    # 85 °F entering condenser = 29.44 °C (AHRI 550/590 water-cooled full load, from
+    # memory): 1.2 - 0.01 x 29.44 = 0.906, outside 1 +- 2 %.
+    far = [*lines[:1], "efficiency_curve = [1.2, 0.0, 0.0, -0.01, 0.0, 0.0]", lines[2]]
+    with pytest.raises(ScenarioError, match="efficiency_curve") as caught:
+        loads_scenario(_with_curves(text, "2 x 50 %", far), base_dir=SCENARIOS)
+    assert "0.9056" in str(caught.value) and "SI (°C)" in str(caught.value)
+    with pytest.raises(ScenarioError, match=r"part_load_curve.*missing"):
+        loads_scenario(_with_curves(text, "2 x 50 %", lines[:2]), base_dir=SCENARIOS)
+    short = [*lines[:2], "part_load_curve = [0.1, 0.9]"]
+    with pytest.raises(ScenarioError, match=r"part_load_curve.*expected 3 numbers"):
+        loads_scenario(_with_curves(text, "2 x 50 %", short), base_dir=SCENARIOS)

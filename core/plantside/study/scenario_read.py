@@ -17,6 +17,12 @@ from plantside.climate.bundled import BUNDLED_CLIMATES
 from plantside.climate.climate_zone import economizer_drybulb_limit, parse_climate_zone
 from plantside.climate.design_conditions import COOLING_PERCENTS, HEATING_PERCENTS
 from plantside.errors import InputRangeError, ScenarioError
+from plantside.plant.chillers import (
+    RATING_CHILLED_WATER_C,
+    RATING_CONDENSER_C,
+    biquadratic,
+    quadratic,
+)
 from plantside.plant.staging import DEFAULT_MINIMUM_TURNDOWN
 from plantside.study.scenario_fields import (
     FILE_POLICIES,
@@ -31,12 +37,23 @@ from plantside.study.scenario_fields import (
     _resolve,
     _text,
 )
-from plantside.study.scenario_spec import AirHandlerSpec, PlantOptionSpec, Scenario
+from plantside.study.scenario_spec import (
+    CURVE_FIELDS,
+    AirHandlerSpec,
+    PlantOptionSpec,
+    Scenario,
+)
 from plantside.study.toml_input import parse_toml_text, read_toml_text
 from plantside.study.water_side import water_side_from_plant_table
 from plantside.units import UnitSystem, from_display
 
-__all__ = ["MAX_AIR_HANDLERS", "load_scenario", "loads_scenario", "scenario_from_dict"]
+__all__ = [
+    "CURVE_RATING_TOLERANCE",
+    "MAX_AIR_HANDLERS",
+    "load_scenario",
+    "loads_scenario",
+    "scenario_from_dict",
+]
 
 
 _TOP_KEYS = ("title", "unit_system", "site", "plant", "air_handler")
@@ -65,7 +82,19 @@ _PLANT_KEYS = (
     "condenser",
     "hot_water",
 )
-_OPTION_KEYS = ("name", "capacity_fractions", "minimum_turndown", "efficiency_metric", "efficiency")
+_OPTION_KEYS = (
+    "name",
+    "capacity_fractions",
+    "minimum_turndown",
+    "efficiency_metric",
+    "efficiency",
+    *CURVE_FIELDS,
+)
+#: How far from 1 a given chiller curve may be at the AHRI 550/590 full-load rating
+#: condition [-] (project tolerance: published curves are normalised there, to a few
+#: parts in a thousand after rounding; 2 % leaves room for that, common practice).
+CURVE_RATING_TOLERANCE = 0.02
+_CURVES_SI = "coefficients are in SI (°C) whatever the file's unit_system"
 _EFFICIENCY_METRICS = ("cop", "eer", "kw_per_ton")
 
 
@@ -121,7 +150,78 @@ def _option(source, where, table, design_kind) -> PlantOptionSpec:
         )
         if any(v <= 0 for v in efficiency):
             raise ScenarioError(source, f"{where}.efficiency", "every value must be above 0")
-    return PlantOptionSpec(name, fractions, turndown, metric, efficiency)
+    curves = _option_curves(source, where, table, design_kind)
+    return PlantOptionSpec(name, fractions, turndown, metric, efficiency, **curves)
+
+
+def _option_curves(source, where, table, design_kind) -> dict:
+    """The option's chiller curves as given (all three or none), lengths and numbers checked."""
+    given = [key for key in CURVE_FIELDS if key in table]
+    if not given:
+        return {}
+    if design_kind != "cooling":
+        raise ScenarioError(
+            source, f"{where}.{given[0]}", "chiller curves belong to [[plant.cooling_option]]"
+        )
+    missing = [key for key in CURVE_FIELDS if key not in table]
+    if missing:
+        raise ScenarioError(
+            source,
+            f"{where}.{missing[0]}",
+            f"missing; give {', '.join(CURVE_FIELDS)} together or none of them",
+        )
+    curves = {}
+    for key, size in CURVE_FIELDS.items():
+        raw = table[key]
+        if not isinstance(raw, list) or len(raw) != size:
+            raise ScenarioError(
+                source,
+                f"{where}.{key}",
+                f"expected {size} numbers ({_CURVES_SI}), got {raw!r}",
+            )
+        curves[key] = tuple(
+            _number(source, f"{where}.{key}[{i + 1}]", v) for i, v in enumerate(raw)
+        )
+    return curves
+
+
+def check_option_curves(source, where, option: PlantOptionSpec, condenser: str) -> None:
+    """Each given curve is about 1 at the AHRI 550/590 full-load rating condition.
+
+    Leaving chilled water 44 °F (6.67 °C) and entering condenser 85 °F (29.44 °C) water-
+    cooled or 95 °F (35 °C) air-cooled, part-load ratio 1 (AHRI 550/590, from memory);
+    within :data:`CURVE_RATING_TOLERANCE`.
+
+    Raises
+    ------
+    ScenarioError
+        Naming the curve, its value at the rating condition and the allowed range.
+    """
+    if option.capacity_curve is None:
+        return
+    chw, cond = RATING_CHILLED_WATER_C, RATING_CONDENSER_C[condenser][0]
+    values = {
+        "capacity_curve": float(biquadratic(option.capacity_curve, chw, cond)),
+        "efficiency_curve": float(biquadratic(option.efficiency_curve, chw, cond)),
+        "part_load_curve": float(quadratic(option.part_load_curve, 1.0)),
+    }
+    low, high = 1.0 - CURVE_RATING_TOLERANCE, 1.0 + CURVE_RATING_TOLERANCE
+    for key, value in values.items():
+        if not low <= value <= high:
+            at = (
+                "part-load ratio 1"
+                if key == "part_load_curve"
+                else (
+                    f"{chw:.2f} °C chilled water and {cond:.2f} °C entering condenser "
+                    f"({condenser}-cooled)"
+                )
+            )
+            raise ScenarioError(
+                source,
+                f"{where}.{key}",
+                f"evaluates to {value:.4g} at the AHRI 550/590 rating condition ({at}); "
+                f"allowed {low:g} to {high:g} ({_CURVES_SI})",
+            )
 
 
 def _site_weather(site, source, base_dir, files):
@@ -316,6 +416,10 @@ def scenario_from_dict(
     water_side = None
     with mistakes.check():
         water_side = water_side_from_plant_table(plant, source, system)
+    condenser = water_side.condenser.condenser if water_side is not None else "water"
+    for i, option in enumerate(options["cooling"]):
+        with mistakes.check():
+            check_option_curves(source, f"plant.cooling_option[{i + 1}]", option, condenser)
 
     units = data["air_handler"]
     if not isinstance(units, list) or not units:

@@ -26,7 +26,16 @@ from plantside.study.solar_gains import zone_with_solar_gain
 from plantside.study.water_side import WaterSideSpec
 from plantside.units import UnitSystem, to_display
 
-__all__ = ["DEFAULT_PICKUP_PERCENT", "AirHandlerSpec", "PlantOptionSpec", "Scenario"]
+__all__ = [
+    "CURVE_FIELDS",
+    "DEFAULT_PICKUP_PERCENT",
+    "AirHandlerSpec",
+    "PlantOptionSpec",
+    "Scenario",
+]
+
+#: A cooling option's chiller curves and their number of coefficients (all or none).
+CURVE_FIELDS = {"capacity_curve": 6, "efficiency_curve": 6, "part_load_curve": 3}
 
 
 #: Morning pick-up allowance on the plant's design load [%]: on the heating plant where an
@@ -53,6 +62,11 @@ class PlantOptionSpec:
         ``"cop"``, ``"eer"`` or ``"kw_per_ton"`` for ``efficiency``.
     efficiency : tuple of float or None
         Machine efficiency at 100/75/50/25 % load (the AHRI 550/590 rating points).
+    capacity_curve, efficiency_curve : tuple of 6 float or None
+        A chiller's CAPFT and EIRFT biquadratic coefficients in leaving chilled water and
+        entering condenser temperature [°C] (all three curves or none; cooling only).
+    part_load_curve : tuple of 3 float or None
+        Its EIRFPLR quadratic coefficients in part-load ratio [-].
     """
 
     name: str
@@ -60,6 +74,9 @@ class PlantOptionSpec:
     minimum_turndown: float = DEFAULT_MINIMUM_TURNDOWN
     efficiency_metric: str = "cop"
     efficiency: tuple[float, ...] | None = None
+    capacity_curve: tuple[float, ...] | None = None
+    efficiency_curve: tuple[float, ...] | None = None
+    part_load_curve: tuple[float, ...] | None = None
 
 
 @dataclass(frozen=True)

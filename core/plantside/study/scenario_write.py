@@ -17,7 +17,7 @@ import tomli_w
 from plantside.air_handler.year import AirHandlerSettings
 from plantside.air_handler.zone_loads import ZoneLoadModel
 from plantside.study.scenario_fields import FIELD_QUANTITIES
-from plantside.study.scenario_spec import PlantOptionSpec, Scenario
+from plantside.study.scenario_spec import CURVE_FIELDS, PlantOptionSpec, Scenario
 from plantside.study.toml_input import saved_number
 from plantside.study.water_side import water_side_to_tables
 from plantside.units import to_display
@@ -57,6 +57,10 @@ def _option_table(option: PlantOptionSpec) -> dict:
     }
     if option.efficiency is not None:
         table["efficiency"] = list(option.efficiency)
+    for key in CURVE_FIELDS:
+        # SI coefficients whatever the unit system, written unrounded
+        if getattr(option, key) is not None:
+            table[key] = [float(v) for v in getattr(option, key)]
     return table
 
 

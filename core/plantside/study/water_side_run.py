@@ -10,7 +10,7 @@ command line and the dashboard.
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 
 import numpy as np
 import pandas as pd
@@ -43,6 +43,21 @@ class WaterSideResult:
 
 
 def _curves(spec, condenser):
+    if spec.capacity_curve is not None:
+        # the option's own curves, as given; its rated full-load efficiency (if any) sets
+        # the rated COP, and its rated part-load values are only compared (options table)
+        curves = default_chiller_curves(condenser)
+        if spec.efficiency is not None:
+            cop = float(cop_from_efficiency(spec.efficiency[0], spec.efficiency_metric))
+            curves = replace(
+                curves, reference_cop=cop, minimum_part_load_ratio=spec.minimum_turndown
+            )
+        return replace(
+            curves,
+            capft=spec.capacity_curve,
+            eirft=spec.efficiency_curve,
+            eirfplr=spec.part_load_curve,
+        )
     if spec.efficiency is None:
         return default_chiller_curves(condenser)
     return fit_chiller_curves(
