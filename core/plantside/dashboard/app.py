@@ -30,6 +30,7 @@ from pathlib import Path
 import altair as alt
 import ipywidgets as widgets
 import pandas as pd
+
 from plantside import __version__
 from plantside.charts.compare import combine_scenarios
 from plantside.charts.export import chart_bytes, safe_filename
@@ -48,6 +49,7 @@ from plantside.dashboard.state import (
     condition_text,
     display_text,
 )
+from plantside.dashboard.water_side_panel import WaterSidePanel
 from plantside.errors import PlantsideError, ScenarioError
 from plantside.study.figures import ViewLoads, first_recirculating_unit
 from plantside.study.scenario import Scenario, dumps_scenario, load_scenario, loads_scenario
@@ -168,6 +170,9 @@ class Dashboard:
             self._chart_keys[name] = self._drawn_key(name)
             self.spec_writer.seed(name, chart, self._structure(name), self.charts[name].spec)
         self.export_buttons = self._export_buttons()
+        # water side (plant page) or coil schedule (single-unit page), under the figures
+        self.water_side = WaterSidePanel(self.state, plant=view == "plant")
+        self.water_side.update(self.widths["design"])
         self.widget = self._layout()
         self.state.listeners.append(self._on_state)
         self._show_text()
@@ -229,7 +234,7 @@ class Dashboard:
             panel = widgets.VBox([tools, self.charts[name]])
             panel.add_class("plantside-chart")
             panels.append(panel)
-        chart_column = widgets.VBox(panels)
+        chart_column = widgets.VBox([*panels, self.water_side.box])
         chart_column.add_class("plantside-charts")
         body = widgets.HBox(
             [sidebar, chart_column], layout=widgets.Layout(align_items="flex-start")
@@ -242,6 +247,7 @@ class Dashboard:
                 self.header,
                 self.caution,
                 self.figures,
+                self.water_side.tables,
                 self.status,
                 body,
                 self.model_cautions,
@@ -332,6 +338,7 @@ class Dashboard:
             self.charts[name].spec = self.spec_writer.spec(name, chart, self._structure(name))
             self._chart_keys[name] = key
             changed.append(name)
+        self.water_side.update(self.widths["design"])  # after the five charts
         return changed
 
     # ------------------------------------------------------------------ charts
