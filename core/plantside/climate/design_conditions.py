@@ -104,6 +104,7 @@ import numpy as np
 import pandas as pd
 
 from plantside.air import moist_air
+from plantside.arrays import scalar_or_array
 from plantside.climate.weather import Weather
 from plantside.errors import InputRangeError, check_range
 
@@ -337,7 +338,7 @@ def value_exceeded_by_percent(values, percent) -> np.ndarray:
     # Ties reaching above the candidate: step down to the next lower distinct value.
     lower_index = np.searchsorted(x, candidate, side="left") - 1
     result = np.where(above >= required, candidate, x[np.maximum(lower_index, 0)])
-    return result[()] if np.ndim(result) == 0 else result
+    return scalar_or_array(result)
 
 
 class CoincidentMean(NamedTuple):

@@ -78,6 +78,7 @@ from dataclasses import dataclass
 import numpy as np
 import pandas as pd
 
+from plantside.arrays import scalar_or_array
 from plantside.constants import KW_PER_TON, W_PER_BTUH
 from plantside.errors import InputRangeError, check_choice, check_range
 
@@ -153,7 +154,7 @@ def cop_from_efficiency(value, metric: str):
         arr = arr * W_PER_BTUH
     elif metric == "kw_per_ton":
         arr = KW_PER_TON / arr
-    return arr[()] if arr.ndim == 0 else arr
+    return scalar_or_array(arr)
 
 
 def efficiency_from_cop(cop, metric: str):
@@ -164,7 +165,7 @@ def efficiency_from_cop(cop, metric: str):
         arr = arr / W_PER_BTUH
     elif metric == "kw_per_ton":
         arr = KW_PER_TON / arr
-    return arr[()] if arr.ndim == 0 else arr
+    return scalar_or_array(arr)
 
 
 def integrated_part_load_value(efficiencies, metric: str = "cop", weights=IPLV_WEIGHTS):
@@ -211,7 +212,7 @@ def integrated_part_load_value(efficiencies, metric: str = "cop", weights=IPLV_W
         result = 1.0 / np.sum(w / values, axis=-1)
     else:
         result = np.sum(w * values, axis=-1)
-    return result[()] if np.ndim(result) == 0 else result
+    return scalar_or_array(result)
 
 
 def _check_weights(weights) -> np.ndarray:
@@ -275,7 +276,7 @@ def input_power_ratio_from_part_load_ratio(
         low = x / cop_lowest
     power = np.where(x < points[0], low, power)
     power = np.where(x > points[-1], x / cop_full, power)
-    return power[()] if power.ndim == 0 else power
+    return scalar_or_array(power)
 
 
 def _machine_load_matrix(machine_loads, capacities) -> tuple[np.ndarray, np.ndarray]:

@@ -35,6 +35,7 @@ from __future__ import annotations
 import numpy as np
 import pandas as pd
 
+from plantside.arrays import scalar_or_array
 from plantside.errors import check_range
 from plantside.plant.loads import hourly_loads, load_matrix
 
@@ -84,7 +85,7 @@ def design_capacity_from_design_load(design_load, margin_percent=0.0):
     low, high = MARGIN_RANGE_PERCENT
     margin = check_range("margin_percent", margin_percent, low, high, "%")
     result = load * (1.0 + margin / 100.0)
-    return result[()] if result.ndim == 0 else result
+    return scalar_or_array(result)
 
 
 def load_exceeded(loads, exceedance_percent):
@@ -116,7 +117,7 @@ def load_exceeded(loads, exceedance_percent):
     k = np.floor(percent * n / 100.0 + 1e-9).astype(int)
     descending = -np.sort(-arr, axis=0)
     result = descending[np.minimum(k, n - 1)]
-    return result[()] if result.ndim == 0 else result
+    return scalar_or_array(result)
 
 
 def hours_above(loads, capacity):
@@ -161,7 +162,7 @@ def energy_above(loads, capacity):
     # sum of the loads above each capacity from a suffix sum of the sorted loads
     suffix = np.concatenate([np.cumsum(arr[::-1])[::-1], [0.0]])
     result = np.maximum(suffix[position] - (arr.size - position) * cap, 0.0)
-    return result[()] if np.ndim(result) == 0 else result
+    return scalar_or_array(result)
 
 
 def margin_table(loads, design_load: float, margins_percent=(0, 5, 10, 15, 20, 25)):
