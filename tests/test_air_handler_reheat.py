@@ -23,6 +23,7 @@ from plantside.errors import InputRangeError, ScenarioError
 from plantside.study.run import heating_load_columns, run_study
 from plantside.study.scenario import load_scenario, loads_scenario
 from plantside.units import UnitSystem
+from test_air_handler import _balance_residual  # the contract's balance, written once
 
 SCENARIOS = Path(__file__).parents[1] / "example_data" / "scenarios"
 #: The exam rooms of the example clinic's OA-1 unit as the issue's estimate had them
@@ -256,24 +257,6 @@ def clinic_year():
     return unit, weather, zone_loads_for_weather(EXAM_ROOMS, weather)
 
 
-def _balance(frame):
-    # DEVELOPERS.md, the air-handler contract: the unit's reheat is heat added
-    columns = ["heating_coil_kW", "preheat_kW", "dehumidification_reheat_kW"]
-    added = frame[[*columns, "condenser_heat_recovered_kW"]].sum(axis=1)
-    right = (
-        frame["zone_sensible_kW"]
-        + frame["zone_latent_kW"]
-        + frame["reheat_kW"]
-        + frame["ventilation_sensible_kW"]
-        + frame["ventilation_latent_kW"]
-        + frame["fan_heat_kW"]
-        - frame["economizer_effect_kW"]
-        - frame["recovery_effect_kW"]
-        - frame["condensate_heat_kW"]
-    )
-    return (frame["coil_total_kW"] - added - right).abs(), frame["coil_total_kW"] + added
-
-
 @pytest.mark.parametrize(
     ("source", "effectiveness"),
     [("hot_water", 0.0), ("condenser_heat", 0.0), ("hot_water", 0.5), ("condenser_heat", 0.7)],
@@ -285,7 +268,7 @@ def test_reheat_source_and_passive_exchanger_close_the_balance(clinic_year, sour
         unit.settings, reheat_source=source, coil_runaround_effectiveness=effectiveness
     )
     frame = hourly_year(settings, weather, loads)
-    residual, scale = _balance(frame)
+    residual, scale = _balance_residual(frame)
     assert (residual <= 1e-3 * scale + 1e-6).all()  # the contract's 0.1 %
     # the supply air, the zone and the heating coil do not depend on where reheat comes from
     for column in ("supply_drybulb_C", "zone_humidity_ratio_kgkg", "heating_coil_kW"):
@@ -407,7 +390,7 @@ def test_property_wet_coil_on_its_line_and_balance_closes(
 
     frame = pd.DataFrame({k: np.ravel(v) for k, v in r.items() if np.ndim(v) > 0})
     assert _line_problems(frame, "hour") == []
-    residual, scale = _balance(frame)
+    residual, scale = _balance_residual(frame)
     assert (residual <= 1e-3 * scale + 1e-6).all()
     # every reheat term is a heat added, never negative
     for column in ("dehumidification_reheat_kW", "coil_runaround_heat_kW"):
