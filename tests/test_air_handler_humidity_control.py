@@ -15,6 +15,7 @@ import numpy as np
 import pandas as pd
 import psychrolib
 import pytest
+from air_handler_cases import balance_residual
 from hypothesis import given, settings
 from hypothesis import strategies as st
 from plantside.air_handler.year import (
@@ -27,7 +28,6 @@ from plantside.errors import InputRangeError, ScenarioError
 from plantside.study.run import heating_load_columns, run_study, study_summary
 from plantside.study.scenario import loads_scenario
 from test_air_handler_reheat import _line_problems
-from test_robustness_grid import _energy_balance_residual
 
 SCENARIOS = Path(__file__).parents[1] / "example_data" / "scenarios"
 CLINIC = SCENARIOS / "quillon_clinic.toml"
@@ -111,7 +111,7 @@ def test_humidity_control_hour_by_hand():
     assert r["zone_latent_kW"][0] == pytest.approx(45.0, rel=1e-4)
     # the coil removes more moisture than without control
     assert r["coil_latent_kW"][0] > free["coil_latent_kW"][0]
-    residual, gross = _energy_balance_residual(r)
+    residual, gross = balance_residual(r)
     assert abs(residual[0]) < 1e-3 * gross[0]  # the contract's 0.1 %
 
 
@@ -170,7 +170,7 @@ def test_vav_terminal_reheat_in_a_heating_hour_by_hand():
     reheat = m * (_h(21.0, w_s) - _h(13.0, w_s)) + 20.0
     assert r["reheat_kW"][0] == pytest.approx(reheat, rel=1e-4)
     assert r["zone_sensible_kW"][0] == pytest.approx(-20.0, rel=1e-4)
-    residual, gross = _energy_balance_residual(r)
+    residual, gross = balance_residual(r)
     assert abs(residual[0]) < 1e-3 * gross[0]
 
 
@@ -303,7 +303,7 @@ def test_clinic_humidity_control_year_on_the_line_and_balanced(clinic_studies):
         frame = unit.hourly
         assert not _line_problems(frame, unit.name)
         operating = frame["operating"].to_numpy()
-        residual, gross = _energy_balance_residual(frame[operating])
+        residual, gross = balance_residual(frame[operating])
         assert np.all(np.abs(residual) <= 1e-3 * gross)  # the contract's 0.1 %
         hours = humidity_hours_above_limit(unit.settings, frame)
         assert hours.above_limit == 0 < hours.above_limit_without_control
@@ -348,7 +348,7 @@ def test_property_control_holds_the_limit_on_the_line_and_balances(
     assert r["humidity_control_reheat_kW"][0] >= 0.0
     if rh_free <= rh_max - 1e-6:
         assert r["humidity_control_reheat_kW"][0] == 0.0
-    residual, gross = _energy_balance_residual(r)
+    residual, gross = balance_residual(r)
     assert abs(residual[0]) <= 1e-3 * gross[0]
     frame = pd.DataFrame({key: np.asarray(value).reshape(-1) for key, value in r.items()})
     assert not _line_problems(frame, "one hour")

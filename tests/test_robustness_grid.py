@@ -50,6 +50,7 @@ from pathlib import Path
 
 import numpy as np
 import pytest
+from air_handler_cases import balance_residual
 from plantside.air_handler.year import (
     HOURLY_COLUMNS,
     AirHandlerSettings,
@@ -162,28 +163,6 @@ def _design_inputs(design, k):
     return t, w, p, loads
 
 
-def _energy_balance_residual(r):
-    """Contract balance: left - right, and the gross flow it is compared with [kW]."""
-    added = ("heating_coil_kW", "preheat_kW", "dehumidification_reheat_kW",
-             "condenser_heat_recovered_kW", "humidity_control_reheat_kW")  # fmt: skip
-    left = r["coil_total_kW"] - sum(r[key] for key in added)
-    terms = {
-        "zone_sensible_kW": 1,
-        "zone_latent_kW": 1,
-        "reheat_kW": 1,
-        "ventilation_sensible_kW": 1,
-        "ventilation_latent_kW": 1,
-        "fan_heat_kW": 1,
-        "economizer_effect_kW": -1,
-        "recovery_effect_kW": -1,
-        "condensate_heat_kW": -1,
-    }
-    right = sum(sign * r[key] for key, sign in terms.items())
-    gross = sum(np.abs(r[key]) for key in terms) + np.abs(r["coil_total_kW"])
-    gross = gross + sum(np.abs(r[key]) for key in added)
-    return left - right, gross
-
-
 def _check_year(r, where):
     operating = np.broadcast_to(r["operating"], r["coil_total_kW"].shape)
     problems = []
@@ -219,7 +198,7 @@ def _check_year(r, where):
             values = np.asarray(r[column], dtype=float)[off]
             if not np.all(values == 0.0):
                 problems.append(f"{column}: non-zero in off hours")
-    residual, gross = _energy_balance_residual(r)
+    residual, gross = balance_residual(r)
     # 0.1 % of the gross flows of the hour (contract: exact to the humidity iteration).
     bad = operating & ~(np.abs(residual) <= 1e-3 * gross + 1e-9)
     if bad.any():
