@@ -32,6 +32,7 @@ from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 from plantside.errors import ScenarioError
 from plantside.study.scenario import Scenario, dumps_scenario, load_scenario, loads_scenario
+from toml_damage import DAMAGES, damaged_bytes
 
 SCENARIOS = Path(__file__).parents[1] / "example_data" / "scenarios"
 EXAMPLES = sorted(SCENARIOS.glob("*.toml"))
@@ -255,29 +256,14 @@ def test_mutated_scenarios_load_or_fail_with_a_field(case):
 @settings(max_examples=examples(120), deadline=None, suppress_health_check=[HealthCheck.too_slow])
 @given(
     path=st.sampled_from(EXAMPLES),
-    damage=st.sampled_from(["none", "truncate", "junk", "crlf", "bom", "replace"]),
+    damage=st.sampled_from(DAMAGES),
     encoding=st.sampled_from(["utf-8", "utf-8-sig", "utf-16", "latin-1", "cp1252"]),
     data=st.data(),
 )
 def test_damaged_scenario_files_load_or_fail_with_a_field(
     tmp_path_factory, path, damage, encoding, data
 ):
-    text = path.read_text(encoding="utf-8")
-    if damage == "truncate":
-        text = text[: data.draw(st.integers(0, len(text)))]
-    elif damage == "crlf":
-        text = text.replace("\n", "\r\n")
-    elif damage == "bom":
-        text = "\ufeff" + text
-    elif damage == "replace":
-        text = data.draw(st.text(max_size=300))
-    try:
-        raw = text.encode(encoding)
-    except UnicodeEncodeError:
-        raw = text.encode("utf-8")
-    if damage == "junk":
-        at = data.draw(st.integers(0, len(raw)))
-        raw = raw[:at] + data.draw(st.binary(min_size=1, max_size=40)) + raw[at:]
+    raw = damaged_bytes(path.read_text(encoding="utf-8"), damage, encoding, data)
     # Written beside the example's files so relative names still resolve.
     folder = tmp_path_factory.mktemp("scenario")
     for other in SCENARIOS.iterdir():

@@ -28,6 +28,7 @@ from hypothesis import strategies as st
 from plantside.errors import ScenarioError
 from plantside.study.sweep import MAX_CASES, Sweep, load_sweep, loads_sweep
 from test_fuzz_scenario import _copy, _get, _leaf_paths, values
+from toml_damage import DAMAGES, damaged_bytes
 
 SWEEPS = Path(__file__).parents[1] / "example_data" / "sweeps"
 EXAMPLE = SWEEPS / "clinic_oa_by_climate.toml"
@@ -151,24 +152,12 @@ def test_mutated_sweeps_load_or_fail_with_a_field(document):
 
 @settings(max_examples=examples(80), deadline=None, suppress_health_check=[HealthCheck.too_slow])
 @given(
-    damage=st.sampled_from(["truncate", "junk", "crlf", "bom", "replace"]),
+    damage=st.sampled_from(DAMAGES[1:]),
     encoding=st.sampled_from(["utf-8", "utf-16", "latin-1"]),
     data=st.data(),
 )
 def test_damaged_sweep_files_load_or_fail_with_a_field(damage, encoding, data):
-    text = EXAMPLE.read_text(encoding="utf-8")
-    if damage == "truncate":
-        text = text[: data.draw(st.integers(0, len(text)))]
-    elif damage == "crlf":
-        text = text.replace("\n", "\r\n")
-    elif damage == "bom":
-        text = "\ufeff" + text
-    elif damage == "replace":
-        text = data.draw(st.text(max_size=300))
-    raw = text.encode(encoding, errors="replace")
-    if damage == "junk":
-        at = data.draw(st.integers(0, len(raw)))
-        raw = raw[:at] + data.draw(st.binary(min_size=1, max_size=40)) + raw[at:]
+    raw = damaged_bytes(EXAMPLE.read_text(encoding="utf-8"), damage, encoding, data)
 
     def load():
         from plantside.study.toml_input import read_toml_text
