@@ -145,6 +145,20 @@ _KINDS = [
 ]
 
 
+def rearranged(table: Table, order, semicolon: bool) -> Table:
+    """``table`` with its columns in ``order``, and with ``;`` and decimal commas if asked.
+
+    Neither changes what the file says: a reader must give the same result.
+    """
+    table = replace(
+        table,
+        names=[table.names[i] for i in order],
+        units=[table.units[i] for i in order],
+        rows=[[row[i] for i in order] for row in table.rows],
+    )
+    return replace(table, separator=";", decimal_comma=True) if semicolon else table
+
+
 @st.composite
 def mutated_tables(
     draw,

@@ -38,6 +38,7 @@ from csv_fuzz import (
     file_bytes,
     judge,
     mutated_tables,
+    rearranged,
 )
 from fuzz_counts import case_count_fixture, examples
 from hypothesis import HealthCheck, given, settings
@@ -277,14 +278,7 @@ def test_meaning_preserving_changes_give_the_same_year(index, order, newline, en
     # commas do not change what the file says: the year read must be the same.
     base = BASES[index]
     reference = read_weather_csv(base.text().encode("utf-8"), **base.kwargs)
-    table = replace(
-        base,
-        names=[base.names[i] for i in order],
-        units=[base.units[i] for i in order],
-        rows=[[row[i] for i in order] for row in base.rows],
-    )
-    if semicolon:
-        table = replace(table, separator=";", decimal_comma=True)
+    table = rearranged(base, order, semicolon)
     weather = read_and_judge(table.text(newline).encode(encoding), table.kwargs)
     assert not isinstance(weather, Exception), weather
     assert _same_year(weather, reference)

@@ -34,6 +34,7 @@ from csv_fuzz import (
     file_bytes,
     judge,
     mutated_tables,
+    rearranged,
 )
 from fuzz_counts import case_count_fixture, examples
 from hypothesis import HealthCheck, given, settings
@@ -212,14 +213,7 @@ def test_meaning_preserving_changes_give_the_same_loads(index, data, newline, en
     base = BASES[index]
     reference = read_zone_loads_csv(base.text().encode("utf-8"), **base.kwargs)
     order = data.draw(st.permutations(range(len(base.names))))
-    table = replace(
-        base,
-        names=[base.names[i] for i in order],
-        units=[base.units[i] for i in order],
-        rows=[[row[i] for i in order] for row in base.rows],
-    )
-    if semi:
-        table = replace(table, separator=";", decimal_comma=True)
+    table = rearranged(base, order, semi)
     loads = read_and_judge(table.text(newline).encode(encoding), table.kwargs)
     assert isinstance(loads, HourlyZoneLoads), loads
     for name in ("sensible", "latent", "internal_sensible", "occupied"):
