@@ -170,3 +170,23 @@ def test_every_mistake_of_an_ip_file_is_reported_in_its_units(tmp_path, capsys):
     assert "air_handler[2].supply_airflow: supply_airflow = -200.0 cfm" in err
     assert "air_handler[2].bypass_factor" in err
     assert "m³/s" not in err and "Traceback" not in err
+
+
+@pytest.mark.parametrize("path", EXAMPLES, ids=lambda p: p.stem)
+def test_sizing_cautions_quote_the_figures_the_plant_lines_show(path, capsys):
+    # A caution rounded in kW and then converted (339 kW -> 96.4 tons) disagreed with the
+    # plant line's 96.5 tons; a figure the table shows must read the same in a caution.
+    assert main(["design", str(path)]) == 0
+    text = capsys.readouterr().out
+    figure = r"([\d,]+\.\d) (tons|MBH|kW)"
+    shown = {
+        (value, unit)
+        for line in text.splitlines()
+        if line.startswith(("Cooling plant:", "Heating plant:"))
+        for value, unit in re.findall(figure, line)
+    }
+    for line in (line for line in text.splitlines() if line.startswith("!")):
+        for phrase in ("year's peak (", "design load ("):
+            if phrase in line:
+                quoted = re.search(re.escape(phrase) + figure, line)
+                assert quoted and (quoted[1], quoted[2]) in shown, (line, shown)

@@ -424,6 +424,12 @@ class UnitText(str):
 _FIGURE = r"-?\d[\d,]*(?:\.\d+)?"
 
 
+#: A figure the model wrote with three or more decimals, before a unit kept in SI: the
+#: model keeps the digits an I-P conversion needs (78.631 kW -> 268.3 MBH, where 78.6 kW
+#: would give 268.2), and the SI text shows it rounded as the other figures are.
+_PRECISE = re.compile(r"(?P<a>-?\d[\d,]*\.\d{3,})(?P<rest> ?(?:kW|°C|kJ/kg)(?![\w/²³]))")
+
+
 def _figure_text(value: float) -> str:
     """A converted figure: one decimal from 10 up, three significant digits below."""
     if value != 0.0 and abs(value) < 10.0:
@@ -442,7 +448,8 @@ def display_text(text: str, system, quantities: dict[str, str] | None = None) ->
         A :class:`UnitText` carries its own I-P text, which is used as it is.
     system : UnitSystem or str
         "SI" or "IP". In SI the model's units stay, except m³/s, which reads as
-        L/s (the airflow unit of SI files and pages).
+        L/s (the airflow unit of SI files and pages); a figure written with three or
+        more decimals (kept for the I-P conversion) is rounded as shown figures are.
     quantities : dict of str to str, optional
         Core unit -> quantity of :data:`QUANTITIES` (default
         :data:`MESSAGE_QUANTITIES`; e.g. ``{"kW": "heating_power"}`` for a heating
@@ -468,6 +475,10 @@ def display_text(text: str, system, quantities: dict[str, str] | None = None) ->
         for unit, quantity in quantities.items()
         if unit_label(quantity, system) != unit and (ip or unit not in _SI_KEPT)
     }
+    if not ip:  # figures the model wrote finer than shown (kept for the I-P conversion)
+        text = _PRECISE.sub(
+            lambda m: _figure_text(float(m["a"].replace(",", ""))) + m["rest"], text
+        )
     if not changed:
         return text
     units = "|".join(re.escape(u) for u in sorted(changed, key=len, reverse=True))

@@ -290,31 +290,31 @@ def sizing_cautions(loads, capacity: float, design_load: float | None = None) ->
     short = int(hours_above(arr, cap))
     if short > 0:
         notes.append(
-            f"Capacity {cap:.0f} kW is below the year's peak of {peak:.0f} kW: {short} hour(s) "
+            f"Capacity {cap:.3f} kW is below the year's peak of {peak:.3f} kW: {short} hour(s) "
             f"and {float(energy_above(arr, cap)):.0f} kWh of load would be unmet. Check comfort, "
             "humidity and process needs in those hours."
         )
     if design_load is None:
         if peak > 0 and cap > OVERSIZE_CAUTION_RATIO * peak:
             notes.append(
-                f"Capacity {cap:.0f} kW is {cap / peak:.2f} times the year's peak of "
-                f"{peak:.0f} kW: expect short cycling and poor part-load control."
+                f"Capacity {cap:.3f} kW is {cap / peak:.2f} times the year's peak of "
+                f"{peak:.3f} kW: expect short cycling and poor part-load control."
             )
     else:
         design = float(check_range("design_load", design_load, 0.0, None, "kW"))
         reference = max(peak, design)
         if reference > 0 and cap > OVERSIZE_CAUTION_RATIO * reference:
             notes.append(
-                f"Capacity {cap:.0f} kW is {cap / reference:.2f} times the larger of the "
-                f"year's peak ({peak:.0f} kW) and the design load ({design:.0f} kW): review "
-                f"the margin, keeping at least the design load of {design:.0f} kW, and meet "
+                f"Capacity {cap:.3f} kW is {cap / reference:.2f} times the larger of the "
+                f"year's peak ({peak:.3f} kW) and the design load ({design:.3f} kW): review "
+                f"the margin, keeping at least the design load of {design:.3f} kW, and meet "
                 "the low loads with turndown (more or smaller machines, a modulating lead "
                 "machine)."
             )
         elif peak > 0 and cap > OVERSIZE_CAUTION_RATIO * peak:
             notes.append(
-                f"The year's peak ({peak:.0f} kW) is well below the design load "
-                f"({design:.0f} kW): the plant still needs at least the design load at the "
+                f"The year's peak ({peak:.3f} kW) is well below the design load "
+                f"({design:.3f} kW): the plant still needs at least the design load at the "
                 "design condition; plan the low loads with turndown (more or smaller "
                 "machines, a modulating lead machine), not with a smaller plant."
             )

@@ -373,12 +373,12 @@ class StagingResult:
             notes.append(
                 f"The plant cannot meet the load in {s['unmet_hours']} hour(s): "
                 f"{s['unmet_energy_kWh']:.0f} kWh unmet, "
-                f"up to {s['largest_unmet_kW']:.0f} kW short."
+                f"up to {s['largest_unmet_kW']:.1f} kW short."
             )
         if s["hours_below_lowest_stable_load"]:
             notes.append(
                 f"In {s['hours_below_lowest_stable_load']} hour(s) the load is below the lowest "
-                f"steady load of any machine ({s['lowest_stable_load_kW']:.0f} kW): a machine "
+                f"steady load of any machine ({s['lowest_stable_load_kW']:.1f} kW): a machine "
                 "will cycle on and off or need false loading. Consider a smaller machine, more "
                 "turndown or buffer volume."
             )

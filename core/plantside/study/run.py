@@ -228,7 +228,10 @@ def _plant_cautions(kind, hourly, capacity, design_load) -> list[str]:
     ]
     if kind == "heating":
         notes = [
-            UnitText(note, display_text(note, "IP", _HEATING_MESSAGE_QUANTITIES)) for note in notes
+            UnitText(
+                display_text(note, "SI"), display_text(note, "IP", _HEATING_MESSAGE_QUANTITIES)
+            )
+            for note in notes
         ]
     return notes
 
