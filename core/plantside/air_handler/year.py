@@ -149,6 +149,12 @@ def humidity_hours_above_limit(settings: AirHandlerSettings, result) -> Humidity
     return HumidityHours(with_control, without)
 
 
+def _hours(count, noun: str = "hour") -> str:
+    """ "1 hour", "6 hours": a count of hours as a caution says it."""
+    count = int(count)
+    return f"{count} {noun}" if count == 1 else f"{count} {noun}s"
+
+
 def hourly_cautions(settings: AirHandlerSettings, result) -> list[str]:
     """Plain-language cautions from the hourly results (dict or DataFrame).
 
@@ -178,9 +184,9 @@ def hourly_cautions(settings: AirHandlerSettings, result) -> list[str]:
     if np.any(high):
         cautions.append(
             f"Zone relative humidity is above {100 * limit:.0f} % "
-            f"in {int(high.sum())} operating hours (highest {100 * np.max(rh[high]):.0f} %): risk "
-            "of discomfort and mould. Check the coil leaving dew point, latent loads and outdoor "
-            "air."
+            f"in {_hours(high.sum(), 'operating hour')} "
+            f"(highest {100 * np.max(rh[high]):.1f} %): risk of discomfort and mould. Check the "
+            "coil leaving dew point, latent loads and outdoor air."
         )
     if settings.zone_relative_humidity_max is not None:
         hours = humidity_hours_above_limit(settings, result)
@@ -198,21 +204,21 @@ def hourly_cautions(settings: AirHandlerSettings, result) -> list[str]:
     warm = operating & (unmet > 0.05)
     if np.any(warm):
         cautions.append(
-            f"In {int(warm.sum())} hours the zone cooling load exceeds what the design airflow at "
+            f"In {_hours(warm.sum())} the zone cooling load exceeds what the design airflow at "
             f"the supply set point removes (up to {np.max(unmet[warm]):.1f} kW unmet)."
         )
     cold = operating & (unmet < -0.05)
     if np.any(cold):
         cautions.append(
-            f"In {int(cold.sum())} hours the zone heat loss exceeds what the unit delivers at its "
+            f"In {_hours(cold.sum())} the zone heat loss exceeds what the unit delivers at its "
             f"highest heating supply temperature (up to {-np.min(unmet[cold]):.1f} kW unmet)."
         )
     latent_unmet = np.asarray(result["zone_latent_unmet_kW"], dtype=float)
     moist = conditioning & (np.abs(latent_unmet) > 1e-6)
     if np.any(moist):
         cautions.append(
-            f"In {int(moist.sum())} operating hours part of the zone latent load cannot be removed "
-            "(dry coil and no outdoor air, or a negative latent load)."
+            f"In {_hours(moist.sum(), 'operating hour')} part of the zone latent load cannot be "
+            "removed (dry coil and no outdoor air, or a negative latent load)."
         )
     humid_night = night & (rh > limit + _RH_TOLERANCE)
     if np.any(humid_night):
@@ -220,7 +226,7 @@ def hourly_cautions(settings: AirHandlerSettings, result) -> list[str]:
         setback = settings.zone_heating_drybulb if setback is None else setback
         gain = np.max(latent_unmet[humid_night], initial=0.0)
         cautions.append(
-            f"In {int(humid_night.sum())} night-cycle hours the outdoor air is above "
+            f"In {_hours(humid_night.sum(), 'night-cycle hour')} the outdoor air is above "
             f"{100 * limit:.0f} % relative humidity at the {setback:g} °C set-back (highest "
             f"{100 * np.max(rh[humid_night]):.0f} %). The unit recirculates with its outdoor "
             "damper closed and heats: it removes none of the zone's unoccupied latent gain "
@@ -232,7 +238,8 @@ def hourly_cautions(settings: AirHandlerSettings, result) -> list[str]:
         low = operating & (adp < settings.apparatus_dew_point_min - 1e-9)
         if np.any(low):
             cautions.append(
-                f"{int(low.sum())} cooling hours need an apparatus dew point below "
+                f"{_hours(low.sum(), 'cooling hour')} "
+                f"{'needs' if low.sum() == 1 else 'need'} an apparatus dew point below "
                 f"{settings.apparatus_dew_point_min:g} °C (lowest {np.nanmin(adp[low]):.1f} °C): "
                 "the coil cannot reach the supply set point in those hours."
             )
