@@ -190,3 +190,11 @@ def test_sizing_cautions_quote_the_figures_the_plant_lines_show(path, capsys):
             if phrase in line:
                 quoted = re.search(re.escape(phrase) + figure, line)
                 assert quoted and (quoted[1], quoted[2]) in shown, (line, shown)
+
+
+def test_plant_cautions_say_which_plant(capsys):
+    # the SI office's cooling and heating plants both fall short of their year's peak:
+    # two cautions that read alike must say which plant each is about
+    assert main(["design", str(SCENARIOS / "linden_office_si.toml")]) == 0
+    cautions = [line for line in capsys.readouterr().out.splitlines() if "below the year" in line]
+    assert [line.split(":")[0] for line in cautions] == ["! Cooling plant", "! Heating plant"]

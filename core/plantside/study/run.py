@@ -221,8 +221,9 @@ def _plant_cautions(kind, hourly, capacity, design_load) -> list[str]:
     """
     if capacity <= 0:
         return []
+    plant = f"{kind.capitalize()} plant: "  # two plants' cautions read alike: say whose
     notes = [
-        note
+        plant + note
         for note in sizing_cautions(hourly, capacity, design_load)
         if note != SIZING_DISCLAIMER  # GENERAL_CAUTIONS opens every study with it
     ]
