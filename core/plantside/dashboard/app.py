@@ -186,9 +186,11 @@ class Dashboard:
         air_handler = GuardedDropdown(
             options=[(name, i) for i, name in enumerate(self.state.names)],
             value=self.state.inputs.air_handler,
+            description="Air handler",  # its <label for>, off screen (controls.py)
         )
         c.guard("air_handler", air_handler)  # what the page sends is checked first
         air_handler.add_class("plantside-air-handler")
+        air_handler.add_class("plantside-sr-label")
         air_handler.observe(c.guarded("air_handler", self._on_air_handler), names="value")
         self.air_handler_choice = air_handler
         group = lambda text: widgets.HTML(f"<div class='ps-group'>{text}</div>")  # noqa: E731
