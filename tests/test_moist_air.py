@@ -483,6 +483,26 @@ def test_dew_point_converges_over_the_whole_range():
     np.testing.assert_allclose(ma.dew_point_from_vapor_pressure(pws), t, atol=1e-6)
 
 
+def test_dew_point_table_solves_eq_36_to_1e_9_kelvin():
+    # The dew point is the temperature whose saturation pressure (Eqs. 5 and 6 of ASHRAE
+    # Fundamentals 2017 Ch. 1) is the vapour pressure (Eq. 36): at random vapour pressures
+    # over the whole range, including the nodes' midpoints and the triple point, the
+    # table's cubic pieces must solve it as closely as Newton iterations (1e-9 K).
+    rng = np.random.default_rng(36)
+    ln_pw = rng.uniform(np.log(ma._PWS_LOWEST), np.log(ma._PWS_HIGHEST), 200_000)
+    ln_pw[:3] = np.log([ma._PWS_TRIPLE, ma._PWS_TRIPLE * (1 + 1e-12), ma._PWS_0C])
+    dew_point = ma.dew_point_from_vapor_pressure(np.exp(ln_pw))
+    ln_pws, slope = ma._ln_pws_with_slope(dew_point)
+    error = np.abs(ln_pws - ln_pw) / slope
+    # Eqs. 5 and 6 differ by 7e-9 in ln pws at the triple point itself (8e-8 K)
+    triple = np.abs(dew_point - 0.01) < 1e-6
+    inside = (dew_point > -100.0) & (dew_point < 200.0) & ~triple
+    assert np.max(error[inside]) < 1e-9
+    assert np.max(error[triple]) < 1e-7
+    # Table 3: the triple point (either form's root, 8e-8 K apart)
+    assert dew_point[0] == pytest.approx(0.01, abs=1e-7)
+
+
 def test_air_state_constructors_agree():
     # One state, four ways in (ASHRAE 2017 Ch. 1 Eqs. 24, 33, 37, 32).
     base = ma.AirState.from_relative_humidity(26.0, 0.55, 95000.0)

@@ -164,14 +164,19 @@ def _ln_pws_water(kelvin):
 
 def _piecewise(drybulb, ice_form, water_form):
     """Evaluate the ice form at or below the triple point and the water form above,
-    computing only the branches the array needs."""
+    each only on the elements that need it."""
     kelvin = drybulb + ZERO_CELSIUS
     on_ice = drybulb <= TRIPLE_POINT_C
-    if not np.any(on_ice):
+    count = np.count_nonzero(on_ice)
+    if count == 0:
         return water_form(kelvin)
-    if np.all(on_ice):
+    if count == on_ice.size:
         return ice_form(kelvin)
-    return np.where(on_ice, ice_form(kelvin), water_form(kelvin))
+    flat, on_ice = kelvin.reshape(-1), on_ice.reshape(-1)
+    out = np.empty(flat.shape)
+    for form, index in ((ice_form, np.flatnonzero(on_ice)), (water_form, np.flatnonzero(~on_ice))):
+        out[index] = form(flat[index])
+    return out.reshape(kelvin.shape)
 
 
 def _ln_pws(drybulb):
@@ -210,21 +215,44 @@ def _ln_pws_with_slope_on_form(drybulb, k):
     (each form extrapolated past the triple point where an iterate strays there)."""
     kelvin = drybulb + ZERO_CELSIUS
     inverse = 1.0 / kelvin
-    slope = (
-        inverse * (k[6] - k[0] * inverse) + k[2] + kelvin * (k[7] + kelvin * (k[8] + kelvin * k[9]))
-    )
-    return _ln_pws_on_form(kelvin, k), slope
+    k0_over_t = k[0] * inverse
+    ln_pws = _ln_pws_polynomial(kelvin, k)
+    ln_pws += k0_over_t
+    # slope: k2 + T (2 k3 + T (3 k4 + T 4 k5)) + (k6 - k0/T) / T
+    slope = _horner(kelvin, (k[2], k[7], k[8], k[9]))
+    k0_over_t -= k[6]
+    k0_over_t *= inverse
+    slope -= k0_over_t
+    return ln_pws, slope
 
 
 def _ln_pws_on_form(kelvin, k):
     """ln(pws / Pa) of Eq. 5 (ice) or 6 (water) of [1], written once for both: ``k`` is
     :data:`_ICE_FORM`, :data:`_WATER_FORM`, or per element from :func:`_form_coefficients`."""
-    return (
-        k[0] / kelvin
-        + k[1]
-        + kelvin * (k[2] + kelvin * (k[3] + kelvin * (k[4] + kelvin * k[5])))
-        + k[6] * np.log(kelvin)
-    )
+    ln_pws = _ln_pws_polynomial(kelvin, k)
+    ln_pws += k[0] / kelvin
+    return ln_pws
+
+
+def _ln_pws_polynomial(kelvin, k):
+    """k1 + k2 T + k3 T^2 + k4 T^3 + k5 T^4 + k6 ln T of Eq. 5 or 6 (all but k0/T)."""
+    ln_pws = _horner(kelvin, k[1:6])
+    ln_pws += k[6] * np.log(kelvin)
+    return ln_pws
+
+
+def _horner(x, coefficients):
+    """c0 + x (c1 + x (c2 + ...)) for ``coefficients`` (c0, c1, ...), in place on one new
+    array; a scalar zero as the highest coefficient (Eq. 6 has no T^4 term) is skipped."""
+    *lower, top = coefficients
+    if np.ndim(top) == 0 and top == 0.0:
+        *lower, top = lower
+    value = x * top
+    for c in reversed(lower[1:]):
+        value += c
+        value *= x
+    value += lower[0]
+    return value
 
 
 #: Saturation pressure at 0 °C [Pa] as :func:`saturation_vapor_pressure` gives it (ice form).
@@ -726,11 +754,98 @@ def _dew_point_first_guess(alpha):
     return np.minimum(np.maximum(guess, DRYBULB_MIN_C), DRYBULB_MAX_C)
 
 
+def _by_form(on_ice, solve, *arrays):
+    """``solve(form, *arrays)`` on flat arrays, with the scalar coefficients of Eq. 5
+    (:data:`_ICE_FORM`) where ``on_ice`` and of Eq. 6 (:data:`_WATER_FORM`) elsewhere:
+    one call when every element is on one form, else one call per form on its elements
+    (scalar coefficients cost less than per-element ones gathered in every iteration)."""
+    count = int(np.count_nonzero(on_ice))
+    if count == 0:
+        return solve(_WATER_FORM, *arrays)
+    if count == on_ice.size:
+        return solve(_ICE_FORM, *arrays)
+    out = np.empty_like(arrays[0])
+    for form, index in (
+        (_ICE_FORM, np.flatnonzero(on_ice)),
+        (_WATER_FORM, np.flatnonzero(~on_ice)),
+    ):
+        out[index] = solve(form, *(a[index] for a in arrays))
+    return out
+
+
+def _dew_point_newton(form, td, target):
+    """Newton iterations on ln pws(td) = ``target`` (ln Pa) on one form of Eq. 5/6 of [1]
+    from the first guess ``td`` [°C] (overwritten), to the last bit. ln pws is increasing
+    and concave, so every step after the first lands at or above the root and descends
+    onto it; twelve steps are many more than the closed forms' 10 K at worst need."""
+    for _ in range(12):
+        ln_pws, slope = _ln_pws_with_slope_on_form(td, form)
+        ln_pws -= target
+        ln_pws /= slope
+        td -= ln_pws
+    return td
+
+
+def _dew_point_table(step):
+    """The inverse of the saturation pressure as a table of cubic pieces, one per interval
+    of ``step`` in ln pw [ln Pa] from below the lowest to above the highest saturation
+    pressure of the formulation (-100 to 200 °C), one node exactly at the triple point.
+
+    Returns the first node, the number of intervals and, per interval, the Hermite
+    coefficients (t0, m0, c2, c3) of t = t0 + u (m0 + u (c2 + u c3)), 0 <= u <= 1: the
+    exact dew points (Eq. 36 on Eq. 5 or 6, by Newton from the closed forms of Eqs. 37
+    and 38) and their slopes dt/d(ln pw) at both ends, each interval on one form.
+    """
+    below = int(np.ceil((_LN_PWS_TRIPLE - np.log(_PWS_LOWEST)) / step)) + 1
+    above = int(np.ceil((np.log(_PWS_HIGHEST) - _LN_PWS_TRIPLE) / step)) + 1
+    nodes = _LN_PWS_TRIPLE + step * np.arange(-below, above + 1)
+    on_ice = np.arange(nodes.size - 1) < below  # the interval's upper node <= triple point
+    ends = []
+    for ln_pw in (nodes[:-1], nodes[1:]):
+        guess = _dew_point_first_guess(ln_pw - np.log(1000.0))
+        td = _by_form(on_ice, _dew_point_newton, guess, ln_pw)
+        slope = _by_form(on_ice, lambda form, x: _ln_pws_with_slope_on_form(x, form)[1], td)
+        ends.append((td, step / slope))  # dt/du at the node, u = (ln pw - node) / step
+    (t0, m0), (t1, m1) = ends
+    c2 = 3.0 * (t1 - t0) - 2.0 * m0 - m1
+    c3 = 2.0 * (t0 - t1) + m0 + m1
+    return float(nodes[0]), nodes.size - 1, (t0, m0, c2, c3)
+
+
+_LN_PWS_TRIPLE = float(np.log(_PWS_TRIPLE))
+# Nodes 1/128 apart in ln pw are 0.08 to 0.22 K apart in t; a cubic with the exact values
+# and slopes at both ends is within h^4/384 max|d4t/du4| of the exact inverse, below 1e-11 K
+# (tests/test_moist_air.py compares it with Newton iterations to 1e-9 K).
+_DEW_TABLE_STEP = 1.0 / 128.0
+_DEW_TABLE_FIRST, _DEW_TABLE_INTERVALS, _DEW_TABLE = _dew_point_table(_DEW_TABLE_STEP)
+
+
+def _dew_point_from_table(ln_pw):
+    """Dew point [°C] of flat ``ln_pw`` (ln Pa) from the cubic pieces of
+    :data:`_DEW_TABLE`, held at -100 and 200 °C outside the formulation's range."""
+    u = ln_pw - _DEW_TABLE_FIRST
+    u *= 1.0 / _DEW_TABLE_STEP
+    np.clip(u, 0.0, _DEW_TABLE_INTERVALS, out=u)
+    piece = u.astype(np.intp)
+    np.minimum(piece, _DEW_TABLE_INTERVALS - 1, out=piece)
+    u -= piece
+    t0, m0, c2, c3 = (np.take(c, piece) for c in _DEW_TABLE)
+    c3 *= u
+    c3 += c2
+    c3 *= u
+    c3 += m0
+    c3 *= u
+    c3 += t0
+    return np.clip(c3, DRYBULB_MIN_C, DRYBULB_MAX_C, out=c3)
+
+
 def dew_point_from_vapor_pressure(vapor_pressure, *, check=True):
     """Dew point: the temperature at which the saturation pressure equals ``vapor_pressure``.
 
-    Solved by Newton iteration on ln pws for the whole array at once, started from the
-    handbook's closed-form approximation (Eqs. 37 and 38 of [1]).
+    The inverse of Eqs. 5 and 6 of [1] as a table of cubic pieces in ln pw, 1/128 apart,
+    with the exact dew point and its slope at both ends of each piece (solved once, on
+    import, by Newton iterations from the handbook's closed forms, Eqs. 37 and 38): within
+    1e-9 K of the root of Eq. 36 for the whole array at once, with no iteration per call.
 
     Parameters
     ----------
@@ -751,7 +866,7 @@ def dew_point_from_vapor_pressure(vapor_pressure, *, check=True):
     References
     ----------
     ASHRAE Handbook Fundamentals 2017, Ch. 1, Eq. 36 (pws(td) = pw) with Eqs. 5 and 6;
-    first guess from Eqs. 37 and 38.
+    the table's first guesses from Eqs. 37 and 38.
 
     Examples
     --------
@@ -761,32 +876,9 @@ def dew_point_from_vapor_pressure(vapor_pressure, *, check=True):
     pw = _as_float(vapor_pressure)
     if check:
         check_range("vapor_pressure", pw, _PWS_LOWEST, _PWS_HIGHEST, "Pa")
-    alpha = _ln_kpa(pw)
-    td = np.array(_dew_point_first_guess(alpha), dtype=float)
-    flat_td = td.reshape(-1)
-    # ln pw [ln Pa], the target of ln pws (equal to ln pw for pw in range)
-    flat_target = np.reshape(alpha + np.log(1000.0), -1)
-    # pws is increasing, so the form of the answer is known from pw: ice (Eq. 5) at or
-    # below the triple-point pressure, water (Eq. 6) above.
-    form = _form_coefficients(np.reshape(pw <= _PWS_TRIPLE, -1))
-    # Whole-array steps while most elements still move, then an active set.
-    active = None
-    for _ in range(40):
-        x = flat_td if active is None else flat_td[active]
-        target = flat_target if active is None else flat_target[active]
-        if active is None:
-            ln_pws, slope = _ln_pws_with_slope_on_form(x, form)
-        else:
-            ln_pws, slope = _ln_pws_with_slope(x)  # same root, no coefficients to gather
-        step = (ln_pws - target) / slope
-        x_new = np.minimum(np.maximum(x - step, DRYBULB_MIN_C), DRYBULB_MAX_C)
-        # ln pws is increasing and concave with |f''/(2 f')| = about 1/T < 0.006 /K, so
-        # after a Newton step s the error left is below 0.006 s^2: a step under 1e-3 K
-        # leaves less than 1e-8 K.
-        active = _store_step(flat_td, active, x_new, np.abs(step) >= 1e-3)
-        if active is not None and active.size == 0:
-            break
-    return _out(td)
+    # ln pw [ln Pa] (floored at 1e-3 Pa, below -100 °C)
+    ln_pw = np.log(np.maximum(pw, 1e-3)).reshape(-1)
+    return _out(_dew_point_from_table(ln_pw).reshape(pw.shape))
 
 
 def dew_point_from_humidity_ratio(humidity_ratio, pressure, *, check=True):
@@ -921,25 +1013,100 @@ def humidity_ratio_from_wet_bulb(drybulb, wet_bulb, pressure, *, check=True):
     return _out(w)
 
 
-def _wet_bulb_first_guess(t, w, p):
+def _wet_bulb_first_guess(t, w, p, pw):
     """Approximate wet bulb [°C]: Eq. 33 of [1] with Ws* linearised about the dew point.
 
-    The dew point comes from the closed form of Eqs. 37/38 and the slope of ln pws from
-    Clausius-Clapeyron (L/(Rv T^2), L over ice below 0 °C). Ws* is convex, so the
-    tangent under-estimates it and the guess mostly lies at or above the root, where
+    The dew point comes from the table of :func:`_dew_point_from_table` and the slope of
+    ln pws from Clausius-Clapeyron (L/(Rv T^2), L over ice below 0 °C). Ws* is convex, so
+    the tangent under-estimates it and the guess mostly lies at or above the root, where
     Newton descends monotonically; the guess only saves iterations, never the answer.
     """
-    pw = p * w / (MOLAR_MASS_RATIO + w)
-    td = _dew_point_first_guess(_ln_kpa(pw))
-    dln_pws = (
-        np.where(td < 0.0, CLAUSIUS_CLAPEYRON_ICE_K, CLAUSIUS_CLAPEYRON_WATER_K)
-        / (td + ZERO_CELSIUS) ** 2
-    )
+    td = _dew_point_from_table(np.log(np.maximum(pw, 1e-3)))
+    kelvin = td + ZERO_CELSIUS
+    dln_pws = np.where(td < 0.0, CLAUSIUS_CLAPEYRON_ICE_K, CLAUSIUS_CLAPEYRON_WATER_K)
+    dln_pws /= kelvin * kelvin
     slope = w * p / (p - pw) * dln_pws  # dWs/dt at the dew point [1/K]
     b = CP_LIQUID_WATER - CP_WATER_VAPOR
-    a = LATENT_HEAT_0C - b * td
-    numerator = w * b * td + CP_WATER_VAPOR * w * t + CP_DRY_AIR * t + a * slope * td
-    return numerator / (a * slope + CP_DRY_AIR + CP_LIQUID_WATER * w)
+    a_slope = (LATENT_HEAT_0C - b * td) * slope
+    numerator = w * b * td + CP_WATER_VAPOR * w * t + CP_DRY_AIR * t + a_slope * td
+    return numerator / (a_slope + CP_DRY_AIR + CP_LIQUID_WATER * w)
+
+
+def _wet_bulb_newton(x, t, w, p, hi, coefficients):
+    """Newton iterations on Eq. 33 or 35 of [1], ``x`` the first guess [°C] (overwritten)
+    and ``hi`` [°C] the upper end of the bracket of the root.
+
+    ``coefficients`` is (lo, a, b, c, k0 ... k9): the lower end of the bracket [°C], the
+    psychrometer equation's a, b, c (:data:`_WET_BULB_WATER` or :data:`_WET_BULB_ICE`)
+    and the saturation form at the root (:data:`_WATER_FORM` or :data:`_ICE_FORM`), each
+    a scalar or one value per element (see :data:`_WET_BULB_GROUPS`).
+    """
+    lo, a, b, c, *form = coefficients
+    # Multiplied through by its (positive) denominator, W(t*) = W reads
+    #   F(t*) = (a - b t*) Ws*(t*) + (1.006 + c W) t* - 1.006 t - W (a + 1.86 t) = 0.
+    linear = CP_DRY_AIR + c * w
+    constant = -CP_DRY_AIR * t - w * (a + CP_WATER_VAPOR * t)
+    np.minimum(np.maximum(x, lo, out=x), hi, out=x)
+    # On one form F is smooth, increasing and convex in t* (Ws* is convex; a - b t* > 0),
+    # so Newton from above the root descends monotonically onto it, and a step from
+    # below lands above it: clipped to the bracket [lo, hi], which holds the root, the
+    # plain Newton iteration converges without a bisection safeguard. (A root below
+    # -100 °C, very cold and dry air, converges onto lo = -100 °C.) Once most elements
+    # are done, the rest are iterated alone (an active set).
+    rows = (hi, p, linear, constant, lo, a, b, *form)
+    active = None
+    for _ in range(100):
+        if active is None:
+            xa, (hi_a, pa, linear_a, constant_a, lo_a, a_a, b_a, *form_a) = x, rows
+        else:
+            xa = x[active]
+            hi_a, pa, linear_a, constant_a, lo_a, a_a, b_a, *form_a = (
+                row[active] if np.ndim(row) else row for row in rows
+            )
+        pws, dln_pws = _ln_pws_with_slope_on_form(xa, form_a)
+        np.exp(pws, out=pws)
+        dry = pa - pws  # above 0.1 p inside the bracket
+        ws_star = pws
+        ws_star *= MOLAR_MASS_RATIO
+        ws_star /= dry
+        lever_ws = b_a * xa
+        np.subtract(a_a, lever_ws, out=lever_ws)
+        lever_ws *= ws_star
+        f = linear_a * xa
+        f += constant_a
+        f += lever_ws
+        # F' = (a - b t*) Ws* d(ln pws)/dt p/(p - pws) - b Ws* + 1.006 + c W  (> 1)
+        lever_ws *= dln_pws
+        lever_ws *= pa
+        lever_ws /= dry
+        lever_ws += linear_a
+        ws_star *= b_a
+        lever_ws -= ws_star
+        f /= lever_ws
+        x_new = xa - f
+        np.minimum(np.maximum(x_new, lo_a, out=x_new), hi_a, out=x_new)
+        # Newton converges quadratically: |F''/(2 F')| stays below 0.11 /K from -100 to
+        # 200 °C and 30 to 120 kPa (about 0.03 /K at room conditions), so after a
+        # Newton step under 1e-3 K the error left is below 1.1e-7 K: the element is done.
+        f = np.abs(np.subtract(x_new, xa, out=f), out=f)
+        active = _store_step(x, active, x_new, f >= 1e-3)
+        if active is not None and active.size == 0:
+            break
+    return x
+
+
+#: Per group of elements of the wet-bulb solver, the lower end of the bracket of the
+#: root [°C], the psychrometer equation's a, b, c and the saturation form at the root:
+#: 0 ice (Eq. 35 with Eq. 5, root below 0 °C), 1 water with its root in the narrow band
+#: from 0 to 0.01 °C (Eq. 33 with Eq. 5), 2 water (Eq. 33 with Eq. 6).
+_WET_BULB_GROUPS = np.array(
+    [
+        (DRYBULB_MIN_C, *_WET_BULB_ICE, *_ICE_FORM),
+        (0.0, *_WET_BULB_WATER, *_ICE_FORM),
+        (0.0, *_WET_BULB_WATER, *_WATER_FORM),
+    ]
+)
+_WET_BULB_COLUMNS = np.ascontiguousarray(_WET_BULB_GROUPS.T)
 
 
 def wet_bulb_from_humidity_ratio(drybulb, humidity_ratio, pressure, *, check=True):
@@ -990,68 +1157,48 @@ def wet_bulb_from_humidity_ratio(drybulb, humidity_ratio, pressure, *, check=Tru
     t, w, p = np.broadcast_arrays(t, w, p)
     shape = t.shape
     t, w, p = (np.array(a, dtype=float).ravel() for a in (t, w, p))
-    lo = np.full_like(t, DRYBULB_MIN_C)
     hi = t.copy()
     hot = t > 60.0
-    if np.any(hot):
+    if hot.any():
         # Above the boiling point at p, Ws* has no meaning; at pws = 0.9 p, Ws* = 5.6
         # and Eq. 33 gives W > 1 kg/kg for any dry bulb up to 200 °C, so the root lies
         # below that temperature.
         boiling = dew_point_from_vapor_pressure(0.9 * p[hot], check=False)
         hi[hot] = np.minimum(hi[hot], boiling)
+    pw = p * w / (MOLAR_MASS_RATIO + w)
+    x = _wet_bulb_first_guess(t, w, p, pw)
     # Near 0 °C Eqs. 33 and 35 can both have a root (they differ at the switch). Take
     # the wet bulb over water (Eq. 33) whenever it exists, the ice form otherwise.
     # Eq. 33 at twb = 0: W = (2501 Ws*(0) - 1.006 t) / (2501 + 1.86 t).
     ws_0c = MOLAR_MASS_RATIO * _PWS_0C / (p - _PWS_0C)
-    water = (t >= 0) & (
-        (LATENT_HEAT_0C * ws_0c - CP_DRY_AIR * t) / (LATENT_HEAT_0C + CP_WATER_VAPOR * t) <= w
-    )
-    lo = np.where(water, 0.0, lo)
-    hi = np.where(~water & (t >= 0), np.minimum(hi, -1e-9), hi)
-    lo = np.minimum(lo, hi)
+    water = (LATENT_HEAT_0C * ws_0c - CP_DRY_AIR * t) / (LATENT_HEAT_0C + CP_WATER_VAPOR * t) <= w
+    water &= t >= 0.0
     # Each element stays on one form of the psychrometer equation: Eq. 33 (water,
-    # a = 2501, b = 2.326, c = 4.186) or Eq. 35 (ice, a = 2830, b = 0.24, c = 2.1).
-    # Multiplied through by its (positive) denominator, W(t*) = W reads
-    #   F(t*) = (a - b t*) Ws*(t*) + (1.006 + c W) t* - 1.006 t - W (a + 1.86 t) = 0.
-    a, b, c = (np.where(water, x, y) for x, y in zip(_WET_BULB_WATER, _WET_BULB_ICE, strict=True))
-    linear = CP_DRY_AIR + c * w
-    constant = -CP_DRY_AIR * t - w * (a + CP_WATER_VAPOR * t)
-    # The saturation form (Eq. 5 or 6) at the root is known too: ice if the root is at
-    # or below the triple point, that is if F(0.01 °C) >= 0 (pws there is _PWS_TRIPLE).
+    # a = 2501, b = 2.326, c = 4.186) or Eq. 35 (ice, a = 2830, b = 0.24, c = 2.1). The
+    # saturation form (Eq. 5 or 6) at the root is known too: ice if the root is at or
+    # below the triple point, that is if F(0.01 °C) >= 0 (pws there is _PWS_TRIPLE).
+    a, b, c = _WET_BULB_WATER
     ws_triple = MOLAR_MASS_RATIO * _PWS_TRIPLE / (p - _PWS_TRIPLE)
-    f_triple = (a - b * TRIPLE_POINT_C) * ws_triple + linear * TRIPLE_POINT_C + constant
-    form = _form_coefficients(~water | (f_triple >= 0.0))
-    # On one form F is smooth, increasing and convex in t* (Ws* is convex; a - b t* > 0),
-    # so Newton from above the root descends monotonically onto it, and a step from
-    # below lands above it: clipped to the bracket [lo, hi], which holds the root, the
-    # plain Newton iteration converges without a bisection safeguard. (A root below
-    # -100 °C, very cold and dry air, converges onto lo = -100 °C.) Once most elements
-    # are done, the rest are iterated alone (an active set).
-    x = _wet_bulb_first_guess(t, w, p)
-    x = np.minimum(np.maximum(x, lo), hi)
-    rows = (lo, hi, p, a, b, linear, constant)
-    active = None
-    for _ in range(100):
-        if active is None:
-            xa, (lo_a, hi_a, pa, aa, ba, linear_a, constant_a), form_a = x, rows, form
-        else:
-            xa = x[active]
-            lo_a, hi_a, pa, aa, ba, linear_a, constant_a = (row[active] for row in rows)
-            form_a = tuple(k[active] if np.ndim(k) else k for k in form)
-        ln_pws, dln_pws = _ln_pws_with_slope_on_form(xa, form_a)
-        pws = np.exp(ln_pws)
-        dry = pa - pws  # above 0.1 p inside the bracket
-        ws_star = MOLAR_MASS_RATIO * pws / dry
-        lever = aa - ba * xa
-        f = lever * ws_star + linear_a * xa + constant_a
-        slope = lever * ws_star * dln_pws * pa / dry - ba * ws_star + linear_a  # > 1
-        x_new = np.minimum(np.maximum(xa - f / slope, lo_a), hi_a)
-        # Newton converges quadratically: |F''/(2 F')| stays below 0.11 /K from -100 to
-        # 200 °C and 30 to 120 kPa (about 0.03 /K at room conditions), so after a
-        # Newton step under 1e-3 K the error left is below 1.1e-7 K: the element is done.
-        active = _store_step(x, active, x_new, np.abs(x_new - xa) >= 1e-3)
-        if active is not None and active.size == 0:
-            break
+    f_triple = (a - b * TRIPLE_POINT_C) * ws_triple + (CP_DRY_AIR + c * w) * TRIPLE_POINT_C
+    f_triple -= CP_DRY_AIR * t + w * (a + CP_WATER_VAPOR * t)
+    water_root_on_ice = water & (f_triple >= 0.0)
+    # Three groups (_WET_BULB_GROUPS): ice (Eq. 35 with Eq. 5, the root between -100 °C
+    # and the dry bulb, below 0 °C), water with its root in the narrow band from 0 to
+    # 0.01 °C (Eq. 33 with Eq. 5), water (Eq. 33 with Eq. 6).
+    ice = ~water
+    hi[ice & (t >= 0.0)] = -1e-9
+    hi[water_root_on_ice] = np.minimum(hi[water_root_on_ice], TRIPLE_POINT_C)
+    # The groups of _WET_BULB_GROUPS: scalar coefficients when every element is in one
+    # group, else one value per element (one whole-array solve instead of one per group).
+    group = water.astype(np.intp)
+    group *= 2
+    group -= water_root_on_ice
+    counts = np.bincount(group, minlength=3)
+    if counts.max() == group.size:
+        coefficients = tuple(_WET_BULB_GROUPS[int(group[0])])
+    else:
+        coefficients = tuple(np.take(column, group) for column in _WET_BULB_COLUMNS)
+    x = _wet_bulb_newton(x, t, w, p, hi, coefficients)
     return _out(x.reshape(shape))
 
 
