@@ -11,4 +11,9 @@ mixing           adiabatic mixing of two air streams on a mass basis
 economizer       outdoor-air damper control and the ASHRAE 90.1 high limits
 energy_recovery  exhaust-air sensible and latent recovery
 coils            cooling and heating coil leaving states and loads
+heap             keeps freed array memory for reuse (glibc), applied on import
 """
+
+from plantside.air.heap import keep_freed_memory
+
+keep_freed_memory()
