@@ -17,6 +17,7 @@ import altair as alt
 import numpy as np
 import pandas as pd
 
+from plantside.charts.palette import INK, OUTLINE, SCENARIO_SWATCH
 from plantside.errors import InputRangeError
 
 __all__ = [
@@ -41,7 +42,9 @@ SCENARIOS = ("A", "B")
 SCENARIO_LABELS = {"A": "A (pinned)", "B": "B (current)"}
 
 _DASH = {"A": [9, 5], "B": [1, 0]}
-_OPACITY = {"A": 0.45, "B": 0.95}
+#: A's opacity keeps a bar's ink outline (``palette.OUTLINE``) at 3.8:1 on white (WCAG 2.1
+#: SC 1.4.11), while its fill reads as the lighter of the two.
+_OPACITY = {"A": 0.55, "B": 0.95}
 _SHAPE = {"A": "diamond", "B": "circle"}
 
 
@@ -129,18 +132,34 @@ def scenario_dash(frame: pd.DataFrame):
     return alt.StrokeDash(
         f"{SCENARIO_COLUMN}:N",
         scale=_legend_scale(_DASH, frame),
-        # long stroke symbols, so the dashes show in the legend
-        legend=_legend(symbolType="stroke", symbolSize=900, symbolStrokeWidth=3),
+        # long stroke symbols in the ink colour, so the dashes show in the legend
+        legend=_legend(
+            symbolType="stroke", symbolSize=900, symbolStrokeWidth=3, symbolStrokeColor=INK
+        ),
     )
 
 
 def scenario_opacity(frame: pd.DataFrame, legend: bool = True, **legend_options):
     """``opacity`` encoding: A light, B strong (for bars and areas); ``legend_options``
-    (e.g. ``orient="bottom"``) go to its legend."""
+    (e.g. ``orient="bottom"``) go to its legend.
+
+    The legend's swatches are :data:`~plantside.charts.palette.SCENARIO_SWATCH` (the coil
+    blue) at A's and B's opacity, outlined as the bars are. (Vega-Lite draws no legend
+    for ``fillOpacity``, so the whole mark fades, outline included: A's opacity is chosen
+    so the outline keeps 3:1.)
+    """
     return alt.Opacity(
         f"{SCENARIO_COLUMN}:N",
         scale=_legend_scale(_OPACITY, frame),
-        legend=_legend(**legend_options) if legend else None,
+        legend=_legend(
+            symbolType="square",
+            symbolFillColor=SCENARIO_SWATCH,
+            symbolStrokeColor=OUTLINE,
+            symbolStrokeWidth=1,
+            **legend_options,
+        )
+        if legend
+        else None,
     )
 
 

@@ -269,7 +269,7 @@ def _weights_title(data: pd.DataFrame) -> str | list[str]:
 
 
 #: Opacity of A's and B's building weights, as the histogram draws A and B (compare.py).
-_BUILDING_OPACITY = {"A": 0.45, "B": 0.95}
+_BUILDING_OPACITY = {"A": 0.55, "B": 0.95}
 
 
 def _over_white(colour: str, opacity: float) -> str:
@@ -450,7 +450,11 @@ def _part_load_panels(bins, weights, measure, total_width):
                 _weights_layer(_weights_data(weights), basis, total_width, 260),
             ],
             resolve=alt.Resolve(
-                scale={"color": "independent", "opacity": "independent", "xOffset": "independent"}
+                scale={
+                    "color": "independent",
+                    "opacity": "independent",
+                    "xOffset": "independent",
+                }
             ),
         )
     return concatenated(

@@ -43,7 +43,7 @@ __all__ = ["oa_sweep_chart"]
 _SERIES_COLOURS = {
     "Coil total": COIL,
     "Coil sensible": "#009E73",  # Okabe-Ito bluish green
-    "Coil latent": "#56B4E9",  # Okabe-Ito sky blue
+    "Coil latent": "#CC79A7",  # Okabe-Ito reddish purple (sky blue is under 3:1 on white)
     "Zone load": ZONE,
     "Year's peak coil load": PLANT,
 }

@@ -19,6 +19,25 @@ choice of colours and the roles are our own.
     sequential scheme). Hex values from memory, checked for colour-blind
     separation and ordered lightness in ``tests/test_charts.py``.
 
+Contrast (WCAG 2.1 AA)
+----------------------
+Colours are checked against :data:`BACKGROUND` with the relative luminance and
+contrast ratio of WCAG 2.1 [3] (``tests/test_palette_contrast.py``): text at
+least 4.5:1 (SC 1.4.3), lines, rules and points at least 3:1 (SC 1.4.11).
+Filled marks whose colour is lighter than that (bars, circles) carry an
+:data:`OUTLINE` of at least 3:1, the border of WCAG Technique G209 [4]. Two
+hues were darkened for this, keeping their hue: the zone orange and the
+vermillion of the plant capacity and the design process (which then also reads
+as text). The density scheme is the one exception: its lightest steps mean
+"few hours" and are meant to recede; the legend and the tooltips give the
+counts.
+
+[3] W3C, "Web Content Accessibility Guidelines (WCAG) 2.1", Recommendation,
+    2018: definitions "relative luminance" and "contrast ratio"; SC 1.4.3
+    Contrast (Minimum), SC 1.4.11 Non-text Contrast.
+[4] W3C, "Techniques for WCAG 2.1", G209: Provide sufficient contrast at the
+    boundaries between adjoining colors.
+
 Theme
 -----
 :data:`THEME_NAME` is registered with Altair (``alt.theme.enable("plantside")``
@@ -54,9 +73,11 @@ __all__ = [
     "MAX_WIDTH",
     "MIN_WIDTH",
     "MODE_COLOURS",
+    "OUTLINE",
     "PLANT",
     "PROCESS",
     "REFERENCE",
+    "SCENARIO_SWATCH",
     "STAGE",
     "STANDARD",
     "THEME_NAME",
@@ -80,18 +101,25 @@ INK_SOFT = "#5b6673"
 GRID = "#d5dae0"
 #: Chart background (white prints and projects best).
 BACKGROUND = "#ffffff"
+#: Border of filled marks (bars, circles) whose fill is lighter than 3:1 on the background
+#: (WCAG Technique G209 [4]): the ink, 15:1 on white, 3.8:1 still on pinned A's bars drawn
+#: at 0.55 opacity (``compare.py``).
+OUTLINE = INK
 
 # --- series roles (Okabe-Ito [1]) ----------------------------------------------------------
 #: Coil load, wherever it appears (Okabe-Ito blue).
 COIL = "#0072B2"
-#: Zone load, wherever it appears (Okabe-Ito orange).
-ZONE = "#E69F00"
+#: Zone load, wherever it appears: Okabe-Ito orange (#E69F00, 2.2:1 on white) darkened in
+#: linear RGB, hue kept, to 3.1:1 so a zone-load line reads on white (SC 1.4.11 [3]).
+ZONE = "#C38600"
 #: Plant (coincident) load (Okabe-Ito black, drawn as INK).
 PLANT = INK
-#: The design process on the psychrometric chart (Okabe-Ito vermillion).
-PROCESS = "#D55E00"
-#: Plant capacity and the current-setting marker (Okabe-Ito vermillion).
-REFERENCE = "#D55E00"
+#: Plant capacity and the current-setting marker: Okabe-Ito vermillion (#D55E00, 3.9:1)
+#: darkened to 5.5:1, so its labels read as text (SC 1.4.3 [3]) and it stays apart from the
+#: darkened zone orange for colour-blind readers. The dashboard's warning colour too.
+REFERENCE = "#B34700"
+#: The design process on the psychrometric chart (the same vermillion).
+PROCESS = REFERENCE
 #: Stage (machine) capacity lines: a mid grey.
 STAGE = "#6b747e"
 #: AHRI 550/590 rating weights beside the building's own (Okabe-Ito reddish purple).
@@ -109,7 +137,7 @@ COMPONENT_COLOURS = {
     "Economizer / recovery": "#88CCEE",  # cyan: a load taken away
     "Terminal reheat": "#332288",  # indigo
     "Dehumidification reheat": "#663333",  # dark red (Tol dark): reheat after the coil
-    "Preheat and heating coil": "#999933",  # olive
+    "Preheat and heating coil": "#777722",  # olive, darkened: apart from the zone orange
     "Condensate heat": "#DDDDDD",  # pale grey: a small correction
     "Distribution gain": "#661100",  # dark brown (Tol dark): pumps and pipes, plant view
     "Morning pick-up": "#004488",  # dark blue (Tol high-contrast): pull-down allowance
@@ -127,21 +155,27 @@ MODE_COLOURS = {
     "minimum_outdoor_air": "#0072B2",  # blue
     "free_cooling": "#009E73",  # bluish green
     "integrated": "#56B4E9",  # sky blue
-    "locked_out": "#D55E00",  # vermillion
+    "locked_out": REFERENCE,  # vermillion (darkened)
     "heating": "#CC79A7",  # reddish purple
-    "all_outdoor_air": "#E69F00",  # orange
+    "all_outdoor_air": ZONE,  # orange (darkened)
 }
 
-#: Colours for categories with no fixed role (Okabe-Ito order, yellow left out).
+#: Colours for categories with no fixed role (Okabe-Ito order). Yellow and sky blue are left
+#: out: below 3:1 on white, and sky blue darkened to 3:1 meets the bluish green for
+#: tritanopes. Each is at least 3:1 on white, so they serve for lines.
 CATEGORY_COLOURS = (
     "#0072B2",
-    "#E69F00",
+    ZONE,
     "#009E73",
     "#CC79A7",
-    "#D55E00",
-    "#56B4E9",
+    REFERENCE,
     "#000000",
 )
+
+#: Fill of the legend swatches of pinned "A" and current "B" where scenarios differ only
+#: by opacity (A 0.55, B 0.95: ``charts/compare.py``): the coil blue, as the building's own
+#: A and B bars of the IPLV weights draw them, never orange (orange means zone load).
+SCENARIO_SWATCH = COIL
 
 # --- density (Tol iridescent [2], every other step of 23 from the second) ------------------
 #: Sequential colours for hour counts (binned density), light = few hours, dark = many.
@@ -263,7 +297,8 @@ def theme_config() -> dict:
             "line": {"strokeWidth": 3},
             "rule": {"strokeWidth": 2},
             "point": {"size": 90, "filled": True},
-            "bar": {"stroke": BACKGROUND, "strokeWidth": 0.5},
+            # an outline on every bar, so a light fill still has a 3:1 border (G209 [4])
+            "bar": {"stroke": OUTLINE, "strokeWidth": 0.8},
             "range": {"category": list(CATEGORY_COLOURS), "ramp": list(DENSITY_SCHEME)},
             "concat": {"spacing": _CONCAT_SPACING},
         },

@@ -20,6 +20,7 @@ from plantside.charts.compare import SCENARIO_COLUMN, SCENARIO_LABELS, scenarios
 from plantside.charts.frames import MODE_LABELS, axis_title, frame_system, value_format
 from plantside.charts.palette import (
     INK_SOFT,
+    OUTLINE,
     WIDTH,
     chart_builder,
     concatenated,
@@ -86,15 +87,28 @@ def _panel(
         .mark_text(align="right", baseline="top", dx=-4, dy=6, color=INK_SOFT, fontSize=14)
         .encode(x=alt.X("x:Q"), y=alt.Y("y:Q"), text=alt.Text("t:N"))
     )
+    heating = x_domain[0] < 0
     points = alt.Chart(alt.NamedData(name="year"))
     if scenario is not None:
         points = points.transform_filter(alt.datum[SCENARIO_COLUMN] == scenario)
-    points = points.mark_circle(opacity=0.78, stroke="white", strokeWidth=0.6).encode(
+    # a cell lies wholly on one side of 0 (0 is a cell edge): heating cells are told as a
+    # heating load, a positive number, as the axis labels show it
+    points = points.transform_calculate(
+        zone_side="datum.zone_high <= 0 ? 'Zone heating load' : 'Zone cooling load'",
+        zone_from="min(abs(datum.zone_low), abs(datum.zone_high))",
+        zone_to="max(abs(datum.zone_low), abs(datum.zone_high))",
+    )
+    points = points.mark_circle(
+        fillOpacity=0.8, stroke=OUTLINE, strokeWidth=0.7, strokeOpacity=0.9
+    ).encode(
         x=alt.X(
             "zone_load:Q",
             title=power,
             scale=alt.Scale(domain=x_domain, nice=False),
-            axis=alt.Axis(values=_ticks(x_domain)),
+            # heating left of 0 as a positive load: the labels drop the sign
+            axis=alt.Axis(values=_ticks(x_domain), labelExpr="format(abs(datum.value), ',')")
+            if heating
+            else alt.Axis(values=_ticks(x_domain)),
         ),
         y=alt.Y(
             "coil_load:Q",
@@ -112,7 +126,8 @@ def _panel(
             legend=alt.Legend(
                 orient=legend,
                 symbolFillColor="#9aa3ad",
-                symbolStrokeWidth=0,
+                symbolStrokeColor=OUTLINE,
+                symbolStrokeWidth=0.7,
                 values=_legend_hours(size_max),
             ),
         ),
@@ -120,9 +135,11 @@ def _panel(
             "mode_label:N",
             title=legend_title,
             # below the panels: two columns, so the row is no wider than A and B
-            legend=alt.Legend(orient=legend, columns=2)
+            legend=alt.Legend(
+                orient=legend, symbolStrokeColor=OUTLINE, symbolStrokeWidth=0.7, columns=2
+            )
             if legend == "bottom"
-            else alt.Legend(orient=legend),
+            else alt.Legend(orient=legend, symbolStrokeColor=OUTLINE, symbolStrokeWidth=0.7),
             scale=alt.Scale(
                 domain=[MODE_LABELS.get(m, m) for m in modes],
                 range=[colours[m] for m in modes],
@@ -131,19 +148,39 @@ def _panel(
         order=alt.Order("hours:Q", sort="descending"),
         tooltip=[
             alt.Tooltip("mode_label:N", title=legend_title),
-            alt.Tooltip("zone_low:Q", title=f"{power}, from", format=fmt),
-            alt.Tooltip("zone_high:Q", title="to", format=fmt),
+            alt.Tooltip("zone_side:N", title="Zone"),
+            alt.Tooltip("zone_from:Q", title=f"{power}, from", format=fmt),
+            alt.Tooltip("zone_to:Q", title="to", format=fmt),
             alt.Tooltip("coil_low:Q", title=f"{coil_title}, from", format=fmt),
             alt.Tooltip("coil_high:Q", title="to", format=fmt),
             alt.Tooltip("hours:Q", title="Hours"),
         ],
     )
+    layers = [diagonal, diagonal_label, points]
+    if heating:
+        layers[:0] = _heating_cooling_marks(x_domain, y_domain)
     return layered(
-        [diagonal, diagonal_label, points],
+        layers,
         width=width,
         height=height,
         title=SCENARIO_LABELS[scenario] if scenario else alt.Undefined,
     )
+
+
+def _heating_cooling_marks(x_domain, y_domain) -> list:
+    """A rule at zero zone load and the words "heating" and "cooling" either side of it."""
+    rule = (
+        alt.Chart(alt.Data(values=[{"x": 0.0}]))
+        .mark_rule(color=INK_SOFT, strokeWidth=1.2)
+        .encode(x=alt.X("x:Q", scale=alt.Scale(domain=x_domain, nice=False)))
+    )
+    words = [
+        alt.Chart(alt.Data(values=[{"x": 0.0, "y": y_domain[1], "t": text}]))
+        .mark_text(align=align, baseline="top", dx=dx, dy=4, color=INK_SOFT, fontSize=14)
+        .encode(x=alt.X("x:Q"), y=alt.Y("y:Q"), text=alt.Text("t:N"))
+        for text, align, dx in (("heating", "right", -6), ("cooling", "left", 6))
+    ]
+    return [rule, *words]
 
 
 def _legend_hours(size_max: int) -> list[int]:
