@@ -89,14 +89,25 @@ from types import SimpleNamespace
 
 import numpy as np
 
-from plantside.air.economizer import MODE_ALL_OUTDOOR_AIR, MODE_HEATING, _damper_control
+from plantside.air.economizer import (
+    MODE_ALL_OUTDOOR_AIR,
+    MODE_HEATING,
+    MODE_OFF,
+    _damper_control,
+)
 from plantside.air.energy_recovery import recovery_fraction_for_mixed_drybulb
 from plantside.air.moist_air import (
     _ln_pws_water,
     saturation_humidity_ratio,
     saturation_vapor_pressure,
 )
-from plantside.air_handler.results import COIL_IDLE_K, HOURLY_COLUMNS, hourly_results
+from plantside.air_handler.results import (
+    _FLOW_AND_LOAD_COLUMNS,
+    _STATE_COLUMNS,
+    COIL_IDLE_K,
+    HOURLY_COLUMNS,
+    hourly_results,
+)
 from plantside.air_handler.settings import AirHandlerSettings, fan_power_fraction
 from plantside.air_handler.zone_loads import HourlyZoneLoads
 from plantside.constants import (
@@ -167,6 +178,7 @@ def air_handler_hours(
     minimum_outdoor_air_fraction=None,
     force_operating=False,
     check=True,
+    operating_hours_only=True,
 ):
     """Every state and load of an air handler for many hours at once.
 
@@ -190,6 +202,10 @@ def air_handler_hours(
         Run the fan in every hour whatever ``fan_schedule`` says (design points).
     check : bool
         Validate the inputs (once, here).
+    operating_hours_only : bool
+        Model only the hours the fan runs and fill the others (every state NaN, every
+        flow and load 0, the zone loads unmet), as the whole record gives them; False
+        models every hour (the same results to the pass tolerance, for tests).
 
     Returns
     -------
@@ -225,6 +241,12 @@ def air_handler_hours(
                 0.0,
                 1.0,
                 "(fraction)",
+            )
+
+    if operating_hours_only and not (force_operating or s.fan_schedule == "always"):
+        if not np.all(zone_loads.occupied):
+            return _fan_off_hours_filled(
+                settings, t_o, w_o, p, zone_loads, minimum_outdoor_air_fraction
             )
 
     # --- zone, airflow limits, fan (independent of humidity) --------------------------
@@ -458,6 +480,73 @@ def air_handler_hours(
     # dry bulb, sets the coil
     dew_point_governs = (w_s < w_s_by_drybulb) if dew_point_coil or humidity_control else False
     return hourly_results(SimpleNamespace(**locals()))
+
+
+def _fan_off_hours_filled(settings, t_o, w_o, p, zone_loads, minimum_outdoor_air_fraction):
+    """:func:`air_handler_hours` of the hours the fan runs, the others filled as
+    :func:`plantside.air_handler.results.hourly_results` leaves them (fan-off hours do
+    not depend on the outdoor air, so a sweep of fractions computes them once, here)."""
+    occupied = np.asarray(zone_loads.occupied, dtype=bool)
+    on = np.flatnonzero(occupied)
+    q_sens, q_lat = zone_loads.sensible, zone_loads.latent
+    sub = {}
+    if on.size:
+        loads = HourlyZoneLoads(
+            sensible=q_sens[on],
+            latent=q_lat[on],
+            internal_sensible=zone_loads.internal_sensible[on],
+            occupied=occupied[on],
+        )
+        sub = air_handler_hours(
+            settings,
+            t_o[..., on],
+            w_o[..., on],
+            p[..., on],
+            loads,
+            minimum_outdoor_air_fraction=minimum_outdoor_air_fraction,
+            force_operating=True,
+            check=False,
+        )
+    if sub:
+        shape = (*sub["coil_total_kW"].shape[:-1], occupied.size)
+    else:
+        shapes = [np.shape(a) for a in (t_o, w_o, p)]
+        if minimum_outdoor_air_fraction is not None:
+            shapes.append(np.shape(minimum_outdoor_air_fraction))
+        shape = np.broadcast_shapes(*shapes)
+    off_values = {
+        "occupied": occupied,
+        "operating": False,
+        "economizer_mode": MODE_OFF,
+        "coil_wet": False,
+        "outdoor_drybulb_C": t_o,
+        "outdoor_humidity_ratio_kgkg": w_o,
+        "outdoor_enthalpy_kJkg": _h(t_o, w_o),
+        "pressure_Pa": p,
+        "zone_sensible_unmet_kW": q_sens,
+        "zone_latent_unmet_kW": q_lat,
+        "apparatus_dew_point_required_C": np.nan,
+    }
+    out = {}
+    for key in (*HOURLY_COLUMNS, "apparatus_dew_point_required_C"):
+        if key in off_values:
+            value = off_values[key]
+        elif key in _STATE_COLUMNS:
+            value = np.nan
+        elif key in _FLOW_AND_LOAD_COLUMNS:
+            value = 0.0
+        else:
+            raise KeyError(f"no fan-off value for the hourly column {key!r}")
+        dtype = sub[key].dtype if sub else np.asarray(value).dtype
+        if key == "economizer_mode":
+            dtype = np.int8
+        full = np.empty(shape, dtype=dtype)
+        full[...] = value
+        if sub:
+            full[..., on] = sub[key]
+        out[key] = full
+    out["humidity_iteration_change"] = sub["humidity_iteration_change"] if sub else 0.0
+    return out
 
 
 def _saturation_humidity_ratio(t, p):
