@@ -14,6 +14,12 @@ A slider's range is what the state accepts for the air handler shown
 the one in use. A control that does not apply to the air handler shown is
 disabled (or hidden, for the leaving dew point of a coil that holds none).
 
+Each control is read by a screen reader under its visible label: a select or a
+checkbox through ipywidgets' description (the ``<label for>``, kept off screen
+where the box shows its own label), a slider handle and a row of toggle buttons
+through :class:`AccessibleName` (``accessible_names.js``). Each box shows a short
+help line under its control (:data:`HELP`).
+
 What the page sends is checked before any widget trait sees it
 (:class:`GuardedInput`): ipywidgets would otherwise coerce it (``true`` to 1,
 ``"1_0"`` to 10) or clamp it to the slider's range. A refused value leaves
@@ -30,13 +36,17 @@ traceback. Messages on the page are at most :data:`MAX_MESSAGE_CHARS` long.
 from __future__ import annotations
 
 import html
+import itertools
 import logging
 import math
 from collections.abc import Callable
 from contextlib import contextmanager
 from dataclasses import dataclass
+from pathlib import Path
 
+import anywidget
 import ipywidgets as widgets
+import traitlets
 
 from plantside.climate.bundled import bundled_climate_description
 from plantside.dashboard.state import ECONOMIZER_CHOICES, FAN_CHOICES, DashboardState, display_text
@@ -44,10 +54,12 @@ from plantside.errors import PlantsideError, excerpt
 from plantside.units import from_display, to_display
 
 __all__ = [
+    "HELP",
     "MAX_MESSAGE_CHARS",
     "MAX_UPLOAD_NAME_CHARS",
     "SLIDERS",
     "UNEXPECTED_MESSAGE",
+    "AccessibleName",
     "Controls",
     "GuardedButton",
     "GuardedCheckbox",
@@ -158,6 +170,21 @@ class GuardedButton(GuardedInput, widgets.Button):
     """A Button the page can only click: no state is taken from the page."""
 
     input_key = None
+
+
+class AccessibleName(GuardedInput, anywidget.AnyWidget):
+    """Invisible widget in a control's box: names its slider handle or button row.
+
+    ``label`` is the box's visible label; the script (``accessible_names.js``) sets it as
+    the ``aria-label`` of the box's slider handle (a ``<div role="slider">`` no
+    ``<label>`` can name) and of its toggle-button row, ties them to the box's help
+    line (``aria-describedby``), and names the file-upload buttons by their title,
+    without ipywidgets' "(0)" counter. The page may set nothing.
+    """
+
+    input_key = None
+    _esm = Path(__file__).with_name("accessible_names.js")
+    label = traitlets.Unicode("").tag(sync=True)
 
 
 class GuardedFileUpload(GuardedInput, widgets.FileUpload):
@@ -292,9 +319,31 @@ SLIDERS = {
 #: Choice controls of one air handler (disabled where they do not apply).
 _UNIT_CHOICES = ("economizer", "economizer_integrated")
 
+#: The help line under each control that is not a slider (sliders: ``SliderSpec.help``).
+#: The climate's help line is the site's own description.
+HELP = {
+    "economizer": "The high limit above which outdoor air no longer cools for free.",
+    "economizer_integrated": "Integrated: outdoor air keeps cooling while the coil runs.",
+    "fan_control": "Constant volume: airflow fixed. VAV: airflow follows the load.",
+    "design_percent": "Share of the year's hours above the design condition "
+    "(0.4 % = 35 h, 1 % = 88 h, 2 % = 175 h).",
+    "unit_system": "Units on show; a view setting, the scenario file keeps its own.",
+    "scenario": "Open a scenario file to study your own building.",
+    "pin": "Pin freezes these results as A; then move the controls to compare B with it.",
+}
+
+#: Numbers the help lines' element ids, unique on the page.
+_HELP_IDS = itertools.count(1)
+
 
 def _label(text: str) -> widgets.HTML:
     return widgets.HTML(value=f"<span class='plantside-label'>{text}</span>")
+
+
+def _help_html(text: str, element_id: str) -> str:
+    if not text:
+        return ""
+    return f"<div class='plantside-help' id='{element_id}'>{html.escape(text)}</div>"
 
 
 def _message() -> widgets.HTML:
@@ -315,8 +364,11 @@ class Controls:
     ----------
     widgets : dict of str to ipywidgets.Widget
         Control name -> the widget the user moves.
-    labels, messages : dict of str to ipywidgets.HTML
-        Control name -> its label (with unit) and its message area.
+    labels, helps, messages : dict of str to ipywidgets.HTML
+        Control name -> its label (with unit), its help line and its message area.
+    names : dict of str to AccessibleName
+        Control name -> the widget that names its slider handle or buttons for a
+        screen reader.
     boxes : dict of str to ipywidgets.VBox
         Control name -> label, widget and message stacked.
     """
@@ -330,6 +382,8 @@ class Controls:
         system = state.inputs.unit_system
         self.widgets: dict[str, widgets.Widget] = {}
         self.labels: dict[str, widgets.HTML] = {}
+        self.helps: dict[str, widgets.HTML] = {}
+        self.names: dict[str, AccessibleName] = {}
         self.messages: dict[str, widgets.HTML] = {}
         self.boxes: dict[str, widgets.VBox] = {}
         for name, spec in SLIDERS.items():
@@ -342,28 +396,37 @@ class Controls:
                 readout_format=spec.readout,
                 continuous_update=False,
                 description="",
-                tooltip=spec.help,
                 layout=widgets.Layout(width="96%"),
             )
             slider.add_class(f"plantside-{name.replace('_', '-')}")
             self.widgets[name] = slider
+        # selects are named by their description (a <label for>, kept off screen: the box
+        # shows the label above); the climate's description is its help line, not a title
         self.widgets["climate"] = GuardedDropdown(
-            options=self._climate_options(), value=state.inputs.climate, description=""
+            options=self._climate_options(),
+            value=state.inputs.climate,
+            description="Climate",
         )
         self.widgets["climate"].add_class("plantside-climate")
+        self.widgets["climate"].add_class("plantside-sr-label")
+        # the upload buttons show their title (the style sheet hides ipywidgets' "(0)")
         self.widgets["weather_upload"] = GuardedFileUpload(
             accept=".csv,text/csv",
             multiple=False,
             description="Upload hourly CSV",
+            tooltip="Upload hourly CSV",
             icon="",
             layout=widgets.Layout(width="auto"),
         )
         self.widgets["weather_upload"].add_class("plantside-weather-upload")
+        self.widgets["weather_upload"].add_class("plantside-upload")
         self.widgets["economizer"] = GuardedDropdown(
             options=[(label, key) for key, label in ECONOMIZER_CHOICES.items()],
             value=state.inputs.economizer,
+            description="Economizer control",
         )
         self.widgets["economizer"].add_class("plantside-economizer")
+        self.widgets["economizer"].add_class("plantside-sr-label")
         self.widgets["economizer_integrated"] = GuardedCheckbox(
             value=state.inputs.economizer_integrated,
             description="Integrated (runs with the cooling coil)",
@@ -396,10 +459,12 @@ class Controls:
             accept=".toml",
             multiple=False,
             description="Open scenario (TOML)",
+            tooltip="Open scenario (TOML)",
             icon="",
             layout=widgets.Layout(width="auto"),
         )
         self.widgets["scenario_upload"].add_class("plantside-scenario-upload")
+        self.widgets["scenario_upload"].add_class("plantside-upload")
         self.widgets["pin"] = GuardedButton(
             description="Pin as A", tooltip="Freeze these results to compare with"
         )
@@ -418,9 +483,18 @@ class Controls:
             "pin": "Compare",
         }
         self._label_text = label_text
+        self._help_ids: dict[str, str] = {}
         for name in (*SLIDERS, *label_text):
             text = label_text.get(name) or self._slider_label(name, system)
             self.labels[name] = _label(text)
+            help_text = SLIDERS[name].help if name in SLIDERS else HELP.get(name, "")
+            if name == "climate":
+                help_text = self._climate_tooltip(state.inputs.climate)
+            help_id = f"plantside-help-{next(_HELP_IDS)}"
+            self.helps[name] = widgets.HTML(value=_help_html(help_text, help_id))
+            self.helps[name].add_class("plantside-help-line")
+            self._help_ids[name] = help_id
+            self.names[name] = AccessibleName(label=text)
             self.messages[name] = _message()
             self.messages[name].add_class(f"plantside-message-{name.replace('_', '-')}")
         # the air handler choice is laid out by the dashboard; its message area is here
@@ -440,7 +514,9 @@ class Controls:
             "scenario": [self.widgets["scenario_upload"]],
             "pin": [widgets.HBox([self.widgets["pin"], self.widgets["unpin"]])],
         }.get(name, [self.widgets.get(name)])
-        box = widgets.VBox([self.labels[name], *parts, self.messages[name]])
+        box = widgets.VBox(
+            [self.labels[name], *parts, self.helps[name], self.messages[name], self.names[name]]
+        )
         box.add_class("plantside-control")
         self.boxes[name] = box
         self._show_applicable()
@@ -704,14 +780,17 @@ class Controls:
                     shown = min(max(shown, low), high)
                     if not abs(slider.value - shown) <= 1e-9:  # also replaces a NaN
                         slider.value = shown
-                self.labels[
-                    name
-                ].value = f"<span class='plantside-label'>{self._slider_label(name, system)}</span>"
+                text = self._slider_label(name, system)
+                self.labels[name].value = _label(text).value
+                self.names[name].label = text
             options = self._climate_options()
             if list(self.widgets["climate"].options) != options:
                 self.widgets["climate"].options = options
             self.widgets["climate"].value = state.inputs.climate
-            self.widgets["climate"].tooltip = self._climate_tooltip(state.inputs.climate)
+            help_text = self._climate_tooltip(state.inputs.climate)
+            help_html = _help_html(help_text, self._help_ids["climate"])
+            if self.helps["climate"].value != help_html:
+                self.helps["climate"].value = help_html
             for name in ("economizer", "economizer_integrated", "fan_control", "design_percent"):
                 if self.widgets[name].value != getattr(state.inputs, name):
                     self.widgets[name].value = getattr(state.inputs, name)
@@ -724,7 +803,9 @@ class Controls:
     def _show_applicable(self) -> None:
         """Disable the controls that do not apply to the air handler shown, saying why.
 
-        The leaving dew point is shown only for a coil that holds one.
+        The leaving dew point is shown only for a coil that holds one. A unit with no
+        economizer (100 % outdoor air) shows no economizer choice at all: one line says
+        it has none, and the economizer-operation box is hidden.
         """
         state = self.state
         for name in (*SLIDERS, *_UNIT_CHOICES):
@@ -732,14 +813,28 @@ class Controls:
             self.widgets[name].disabled = bool(reason)
             if name == "leaving_dew_point" and name in self.boxes:
                 self.boxes[name].layout.display = "none" if reason else None
+            if name in _UNIT_CHOICES:
+                self._show_economizer(name, reason)
+                continue
             if name not in self.labels:
                 continue
             if reason:
-                title = SLIDERS[name].label if name in SLIDERS else self._label_text[name]
-                text = f"{title}: not used ({reason})"
+                text = f"{SLIDERS[name].label}: not used ({reason})"
                 self.labels[name].value = _label(text).value
-            elif name in _UNIT_CHOICES:
-                self.labels[name].value = _label(self._label_text[name]).value
+                self.names[name].label = text
+
+    def _show_economizer(self, name: str, reason: str) -> None:
+        """Economizer choice ``name`` shown, or hidden with a line saying the unit has none."""
+        self.widgets[name].layout.display = "none" if reason else None
+        self.helps[name].layout.display = "none" if reason else None
+        if name == "economizer_integrated" and name in self.boxes:
+            self.boxes[name].layout.display = "none" if reason else None
+        if reason:
+            text = f"Economizer: none. {reason[:1].upper()}{reason[1:]}."
+        else:
+            text = self._label_text[name]
+        self.labels[name].value = _label(text).value
+        self.names[name].label = text
 
     @staticmethod
     def _climate_tooltip(climate: str) -> str:
