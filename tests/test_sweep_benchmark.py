@@ -114,6 +114,44 @@ def test_sweep_throughput_1_core_2_cores_and_dask(tmp_path, capsys):
     pd.testing.assert_frame_equal(one, dask, check_exact=False, rtol=1e-12)
 
 
+@pytest.mark.benchmark
+def test_sweep_case_with_design_conditions_kept(tmp_path):
+    """Per case: design conditions computed afresh (cache cleared before each case, as
+    every case did before the cache) against kept per climate, in the same run."""
+    from plantside.climate.design_conditions import clear_design_conditions_cache
+    from plantside.study.sweep_worker import run_batch
+
+    sweep = benchmark_sweep(tmp_path, 20)  # 4 outdoor-air fractions x 5 climates
+    cases = sweep.cases
+    run_batch(sweep, cases[:5])  # warm-up: weather read, modules imported
+
+    def afresh():
+        parts = []
+        for case in cases:
+            clear_design_conditions_cache()
+            parts.append(run_batch(sweep, [case]))
+        return pd.concat(parts, ignore_index=True)
+
+    def kept():
+        clear_design_conditions_cache()
+        return pd.concat([run_batch(sweep, [case]) for case in cases], ignore_index=True)
+
+    timings = {}
+    for name, run in (("afresh", afresh), ("kept", kept), ("afresh2", afresh), ("kept2", kept)):
+        started = time.process_time()
+        table = run()
+        timings[name] = (time.process_time() - started) / len(cases)
+        timings[f"{name}_table"] = table
+    fresh = min(timings["afresh"], timings["afresh2"])
+    cached = min(timings["kept"], timings["kept2"])
+    print(
+        f"\n[benchmark] sweep case, design conditions computed per case {1e3 * fresh:.1f} ms, "
+        f"kept per climate {1e3 * cached:.1f} ms (CPU per case, {len(cases)} cases over "
+        f"{len(BUNDLED_CLIMATES)} climates); speed-up {fresh / cached:.2f}x ({_load()})"
+    )
+    pd.testing.assert_frame_equal(timings["afresh_table"], timings["kept_table"])
+
+
 if __name__ == "__main__":
     import argparse
 

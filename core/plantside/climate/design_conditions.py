@@ -96,7 +96,10 @@ References
 
 from __future__ import annotations
 
+import hashlib
 import math
+import threading
+from collections import OrderedDict
 from dataclasses import dataclass, field
 from typing import NamedTuple
 
@@ -115,6 +118,7 @@ __all__ = [
     "DailyRange",
     "DesignCondition",
     "DesignConditions",
+    "clear_design_conditions_cache",
     "coincident_mean",
     "design_conditions_from_weather",
     "mean_daily_range",
@@ -499,12 +503,57 @@ def design_conditions_from_weather(
     References
     ----------
     ASHRAE Handbook Fundamentals 2017, Ch. 14, annual design conditions.
+
+    Notes
+    -----
+    The result is kept for the process (the last :data:`CACHE_SIZE` records, keyed on
+    the site name, a hash of the record's content and the settings), so the cases of a
+    sweep that share a climate compute it once per worker; the result is immutable.
     """
     check_range("drybulb_band", drybulb_band, 0.05, 5.0, "K")
     check_range("dew_point_band", dew_point_band, 0.05, 5.0, "K")
     check_range("enthalpy_band", enthalpy_band, 0.05, 10.0, "kJ/kg")
     check_range("wet_bulb_band", wet_bulb_band, 0.05, 5.0, "K")
     check_range("min_coincident_hours", min_coincident_hours, 1, 100, "h")
+    settings = (drybulb_band, dew_point_band, enthalpy_band, min_coincident_hours, wet_bulb_band)
+    key = (*_weather_identity(weather), *(float(x) for x in settings))
+    with _CACHE_LOCK:
+        if key in _CACHE:
+            _CACHE.move_to_end(key)
+            return _CACHE[key]
+    conditions = _design_conditions(weather, *settings)
+    with _CACHE_LOCK:
+        _CACHE[key] = conditions
+        while len(_CACHE) > CACHE_SIZE:
+            _CACHE.popitem(last=False)
+    return conditions
+
+
+#: Design conditions kept per process (one per climate and settings) [-].
+CACHE_SIZE = 16
+_CACHE: OrderedDict = OrderedDict()
+_CACHE_LOCK = threading.Lock()
+
+
+def clear_design_conditions_cache() -> None:
+    """Forget the design conditions kept by :func:`design_conditions_from_weather`."""
+    with _CACHE_LOCK:
+        _CACHE.clear()
+
+
+def _weather_identity(weather: Weather) -> tuple[str, int, str]:
+    """Site name, hours and a hash of everything the design conditions read."""
+    digest = hashlib.blake2b(digest_size=16)
+    for values in (weather.drybulb, weather.humidity_ratio, weather.pressure, weather.month):
+        array = np.ascontiguousarray(values)
+        digest.update(str((array.dtype.str, array.shape)).encode())
+        digest.update(array.tobytes())
+    return str(weather.site), int(weather.hours), digest.hexdigest()
+
+
+def _design_conditions(
+    weather, drybulb_band, dew_point_band, enthalpy_band, min_coincident_hours, wet_bulb_band
+):
     n = weather.hours
     if n < MIN_RECORD_HOURS:
         raise InputRangeError(
