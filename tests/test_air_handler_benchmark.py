@@ -1,15 +1,28 @@
 """Speed of the air-handler year, measured against baselines in the same run.
 
-Targets (printed, never asserted): one 8,760-hour year of one air handler at most 5 ms
-(median); a sweep of the minimum outdoor-air fraction 0-100 % in 101 steps over a year at
-most 0.5 s; the vectorised year at least 100x faster than a straightforward per-hour
-Python loop over the same model (scalar calls of the same function). The tests assert
-only that the fast and slow paths agree.
+Printed, never asserted (the tests assert only that the fast and slow paths agree):
+
+- one 8,760-hour year of one air handler, for the heavy unit below and for the default
+  settings, against a straightforward per-hour Python loop over the same model (scalar
+  calls of the same public function), as a ratio measured in the same run. The year is
+  timed in a fresh interpreter (as the command line and sweep workers run it) and in
+  this process, whose other allocations can hide the cost of returning freed memory
+  (plantside.air.heap). Target, on the fresh-process ratio: at least twice the ratio of
+  the code before the speed work (issue 15), measured with this file on the same 2-core
+  machine: heavy 698x (700x), so >= 1,400x; default settings 737x, so >= 1,470x. (In
+  this process the code before measured 1,375x and 2,107x: the heap state, not the code.)
+- a sweep of the minimum outdoor-air fraction 0-100 % in 101 steps over a year, as one
+  2-D call, against 101 separate years. Target: at most 40 % of the separate years'
+  time (ratio >= 2.5x; 1.7-1.9x before).
 """
 
 from __future__ import annotations
 
+import json
+import subprocess
+import sys
 import time
+from pathlib import Path
 
 import numpy as np
 import pytest
@@ -56,30 +69,21 @@ def case(office_zone):
     return weather, zone_loads_for_weather(office_zone, weather)
 
 
+#: Ratios of the per-hour loop's time to the vectorised year's (in a fresh process) before
+#: the speed work (issue 15), on the same 2-core machine; the targets are twice these.
+RATIO_BEFORE = {"heavy": 698.0, "default": 737.0}
+#: 101 separate years / the 2-D sweep before the speed work; the target is 2.5x.
+SWEEP_RATIO_TARGET = 2.5
+
+
 def _year(weather, loads, check=True):
     return air_handler_hours(
         SETTINGS, weather.drybulb, weather.humidity_ratio, weather.pressure, loads, check=check
     )
 
 
-def test_one_year_against_a_per_hour_loop(case):
-    weather, loads = case
-    _year(weather, loads)  # warm-up
-    core, core_cpu = _median_seconds(lambda: _year(weather, loads), 40)
-    frame, _ = _median_seconds(lambda: hourly_year(SETTINGS, weather, loads), 15)
-    # the same year with the default settings (fixed dry-bulb economizer, no recovery)
-    plain = AirHandlerSettings(supply_airflow=5.0, supply_fan_power=5.0)
-    default, default_cpu = _median_seconds(
-        lambda: air_handler_hours(
-            plain, weather.drybulb, weather.humidity_ratio, weather.pressure, loads
-        ),
-        40,
-    )
-    # The straightforward loop: one call of the same public function per hour. It runs
-    # over every 8th hour and is scaled to the year (the per-call cost does not depend on
-    # the hour); the ratio is printed against the full vectorised year.
-    sample = np.arange(0, weather.hours, 8)
-    vector = _year(weather, loads)
+def _per_hour_loop(settings, weather, loads, sample):
+    """One call of the same public function per hour of ``sample``: rows and seconds."""
     start = time.perf_counter()
     rows = []
     for i in sample:
@@ -91,22 +95,17 @@ def test_one_year_against_a_per_hour_loop(case):
         )
         rows.append(
             air_handler_hours(
-                SETTINGS,
+                settings,
                 weather.drybulb[i : i + 1],
                 weather.humidity_ratio[i : i + 1],
                 weather.pressure[i : i + 1],
                 one,
             )
         )
-    loop = (time.perf_counter() - start) * weather.hours / sample.size
-    print(
-        f"\n[benchmark] air-handler year, 8760 h: core median {1e3 * core:.2f} ms "
-        f"(CPU {1e3 * core_cpu:.2f} ms; target <= 5 ms); with DataFrame {1e3 * frame:.2f} ms; "
-        f"per-hour loop {loop:.2f} s (scaled from {sample.size} hours); "
-        f"ratio {loop / core:.0f}x (target >= 100x); default settings: core median "
-        f"{1e3 * default:.2f} ms (CPU {1e3 * default_cpu:.2f} ms)",
-        flush=True,
-    )
+    return rows, time.perf_counter() - start
+
+
+def _assert_loop_agrees(rows, vector, sample):
     # Agreement to the model's solution tolerance (humidity ~5e-7 kg/kg, dry bulbs ~1e-3 K,
     # so loads ~0.01 kW): one hour alone may stop after a different number of passes.
     tolerances = {
@@ -120,6 +119,91 @@ def test_one_year_against_a_per_hour_loop(case):
         np.testing.assert_allclose(looped, vector[key][sample], rtol=1e-3, atol=atol)
     modes = np.array([r["economizer_mode"][0] for r in rows])
     assert np.mean(modes == vector["economizer_mode"][sample]) > 0.999
+
+
+_FRESH_PROCESS = """
+import json, sys, time
+import numpy as np
+sys.path.insert(0, sys.argv[1])
+from air_handler_cases import synthetic_weather
+from plantside.air_handler.model import air_handler_hours
+from plantside.air_handler.settings import AirHandlerSettings
+from plantside.air_handler.zone_loads import ZoneLoadModel, zone_loads_for_weather
+weather = synthetic_weather()
+zone = ZoneLoadModel(  # the office_zone fixture of tests/conftest.py
+    cooling_design_sensible=60.0, cooling_design_latent=10.0, cooling_design_drybulb=33.0,
+    heating_design_load=40.0, heating_design_drybulb=-8.0, internal_fraction=0.5)
+loads = zone_loads_for_weather(zone, weather)
+units = {
+    "heavy": AirHandlerSettings(name="AHU-bench", supply_airflow=5.0, supply_fan_power=5.0,
+        economizer="differential_enthalpy", recovery_sensible_effectiveness=0.7),
+    "default": AirHandlerSettings(supply_airflow=5.0, supply_fan_power=5.0),
+}
+medians = {}
+for name, settings in units.items():
+    args = (settings, weather.drybulb, weather.humidity_ratio, weather.pressure, loads)
+    air_handler_hours(*args)
+    times = []
+    for _ in range(40):
+        start = time.perf_counter()
+        air_handler_hours(*args)
+        times.append(time.perf_counter() - start)
+    medians[name] = float(np.median(times))
+print(json.dumps(medians))
+"""
+
+
+def _fresh_process_medians():
+    """Median seconds of each unit's year in a new interpreter that does nothing else (as
+    the command line or a sweep worker runs it). In a long-lived process the figure
+    depends on what else is allocated: with glibc's default settings the freed memory
+    of each year is returned and faulted in again unless something holds the top of
+    the heap (plantside.air.heap)."""
+    done = subprocess.run(
+        [sys.executable, "-c", _FRESH_PROCESS, str(Path(__file__).parent)],
+        capture_output=True,
+        text=True,
+        check=True,
+    )
+    return json.loads(done.stdout.strip().splitlines()[-1])
+
+
+def test_one_year_against_a_per_hour_loop(case):
+    weather, loads = case
+    plain = AirHandlerSettings(supply_airflow=5.0, supply_fan_power=5.0)
+    units = {"heavy": SETTINGS, "default": plain}  # default: fixed dry bulb, no recovery
+    frame, _ = _median_seconds(lambda: hourly_year(SETTINGS, weather, loads), 15)
+    # The straightforward loop runs over every 8th hour and is scaled to the year (the
+    # per-call cost does not depend on the hour); the ratio is printed against the full
+    # vectorised year.
+    sample = np.arange(0, weather.hours, 8)
+    fresh = _fresh_process_medians()
+    lines = []
+    for name, settings in units.items():
+
+        def year(settings=settings):
+            return air_handler_hours(
+                settings, weather.drybulb, weather.humidity_ratio, weather.pressure, loads
+            )
+
+        vector = year()  # warm-up
+        core, core_cpu = _median_seconds(year, 40)
+        rows, seconds = _per_hour_loop(settings, weather, loads, sample)
+        loop = seconds * weather.hours / sample.size
+        target = 2.0 * RATIO_BEFORE[name]
+        lines.append(
+            f"{name}: core median {1e3 * fresh[name]:.2f} ms in a fresh process "
+            f"({1e3 * core:.2f} ms, CPU {1e3 * core_cpu:.2f} ms, in this one), per-hour loop "
+            f"{loop:.2f} s, ratio {loop / fresh[name]:.0f}x ({loop / core:.0f}x in this "
+            f"process; target >= {target:.0f}x, twice the {RATIO_BEFORE[name]:.0f}x before)"
+        )
+        _assert_loop_agrees(rows, vector, sample)
+    print(
+        f"\n[benchmark] air-handler year, 8760 h, against a per-hour loop of the same function "
+        f"(scaled from {sample.size} hours): " + "; ".join(lines) + f"; heavy unit with "
+        f"DataFrame {1e3 * frame:.2f} ms",
+        flush=True,
+    )
 
 
 def test_outdoor_air_sweep_against_separate_years(case):
@@ -145,8 +229,9 @@ def test_outdoor_air_sweep_against_separate_years(case):
     separate_time = time.perf_counter() - start
     print(
         f"\n[benchmark] outdoor-air sweep 101 x 8760: 2-D broadcast median {sweep_time:.3f} s "
-        f"(CPU {sweep_cpu:.3f} s; target <= 0.5 s); 101 separate years {separate_time:.3f} s; "
-        f"ratio {separate_time / sweep_time:.1f}x",
+        f"(CPU {sweep_cpu:.3f} s); 101 separate years {separate_time:.3f} s; "
+        f"ratio {separate_time / sweep_time:.1f}x (target >= {SWEEP_RATIO_TARGET:.1f}x: "
+        f"the sweep in at most {100 / SWEEP_RATIO_TARGET:.0f} % of the separate years' time)",
         flush=True,
     )
     for column, key in (
