@@ -192,3 +192,11 @@ def test_page_text_colours_reach_4_5_to_1():
     }
     for name, (ink, ground) in pairs.items():
         assert contrast_ratio(ink, ground) >= TEXT, (name, ink, ground)
+
+
+def test_page_and_charts_share_the_role_colours():
+    # a zone-load card on the page is the zone load's colour in the charts
+    v = {name: colour.lower() for name, colour in _css_variables().items()}
+    assert v["--ps-zone"] == palette.ZONE.lower()
+    assert v["--ps-accent"] == palette.COIL.lower()
+    assert v["--ps-warn"] == palette.REFERENCE.lower()
