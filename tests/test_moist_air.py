@@ -625,3 +625,20 @@ def test_array_with_some_invalid_elements_names_count_and_indices():
     assert info.value.indices == (2,)
     assert "1 of 4 elements" in str(info.value)
     assert "indices 2" in str(info.value)
+
+
+def test_unchecked_nan_propagates_without_warnings():
+    # Inner code passes check=False, and the air-handler states of fan-off hours are NaN:
+    # a NaN element gives NaN (and no warning or error), its neighbours their value.
+    import warnings
+
+    t = np.array([20.0, np.nan, 25.0, 10.0])
+    w = np.array([0.01, 0.01, np.nan, 0.005])
+    with warnings.catch_warnings():
+        warnings.simplefilter("error")
+        dew_point = ma.dew_point_from_humidity_ratio(w, P_STD, check=False)
+        wet_bulb = ma.wet_bulb_from_humidity_ratio(t, w, P_STD, check=False)
+    np.testing.assert_array_equal(np.isnan(dew_point), [False, False, True, False])
+    np.testing.assert_array_equal(np.isnan(wet_bulb), [False, True, True, False])
+    assert dew_point[0] == pytest.approx(ma.dew_point_from_humidity_ratio(0.01, P_STD))
+    assert wet_bulb[3] == pytest.approx(ma.wet_bulb_from_humidity_ratio(10.0, 0.005, P_STD))

@@ -826,9 +826,9 @@ def _dew_point_from_table(ln_pw):
     :data:`_DEW_TABLE`, held at -100 and 200 °C outside the formulation's range."""
     u = ln_pw - _DEW_TABLE_FIRST
     u *= 1.0 / _DEW_TABLE_STEP
+    # fmax/fmin pass over NaN (piece 0), so NaN stays only in u and in the result
+    piece = np.fmin(np.fmax(u, 0.0), _DEW_TABLE_INTERVALS - 1.0).astype(np.intp)
     np.clip(u, 0.0, _DEW_TABLE_INTERVALS, out=u)
-    piece = u.astype(np.intp)
-    np.minimum(piece, _DEW_TABLE_INTERVALS - 1, out=piece)
     u -= piece
     t0, m0, c2, c3 = (np.take(c, piece) for c in _DEW_TABLE)
     c3 *= u
