@@ -87,3 +87,23 @@ def test_no_chart_line_is_drawn_in_sky_blue_or_the_light_orange():
     for name in ("distribution", "oa_sweep"):
         text = json.dumps(build(name, frames_for(name, 0.25, "SI")).to_dict()).upper()
         assert "#56B4E9" not in text and "#E69F00" not in text, name
+
+
+def test_design_condition_lines_are_not_drawn_in_the_plant_black():
+    from plantside.charts import frames, oa_sweep_chart
+
+    fractions = [0.0, 0.5, 1.0]
+    names = ["Dry-bulb condition, 0.4 %", "Dew-point condition, 0.4 %", "Enthalpy condition, 0.4 %"]
+    sweep = frames.oa_sweep_frame(
+        fractions, {name: [10.0 + i, 20.0 + i, 30.0 + i] for i, name in enumerate(names)}, "SI"
+    )
+    spec = oa_sweep_chart(sweep).to_dict()
+    colours = [
+        c.lower()
+        for layer in _layers(spec)
+        for c in layer.get("encoding", {}).get("color", {}).get("scale", {}).get("range", [])
+    ]
+    assert len(set(colours)) == 3
+    # black (or the ink) means the plant load in every chart; orange zone load, blue coil load
+    for taken in ("#000000", palette.PLANT, palette.ZONE, palette.COIL):
+        assert taken.lower() not in colours

@@ -49,8 +49,13 @@ _SERIES_COLOURS = {
 }
 
 
+#: Colours of series with no role (the design conditions): reddish purple, vermillion, then
+#: bluish green; black last, since black is the plant load's colour elsewhere.
+_SPARE = (CATEGORY_COLOURS[3], CATEGORY_COLOURS[4], CATEGORY_COLOURS[2], CATEGORY_COLOURS[5])
+
+
 def _scale(names) -> alt.Scale:
-    spare = iter(CATEGORY_COLOURS[3:] * 3)
+    spare = iter(_SPARE * 3)
     return alt.Scale(
         domain=list(names), range=[_SERIES_COLOURS.get(n) or next(spare) for n in names]
     )
