@@ -107,3 +107,13 @@ def test_design_condition_lines_are_not_drawn_in_the_plant_black():
     # black (or the ink) means the plant load in every chart; orange zone load, blue coil load
     for taken in ("#000000", palette.PLANT, palette.ZONE, palette.COIL):
         assert taken.lower() not in colours
+
+
+def test_every_chart_describes_itself_for_a_screen_reader():
+    # Vega writes a spec's description as the drawing's aria-label (WCAG 2.1 SC 1.1.1)
+    for name in ("design", "year", "distribution", "psychrometric", "oa_sweep"):
+        spec = build(name, frames_for(name, 0.25, "SI")).to_dict()
+        title = spec["title"]["text"]
+        title = " ".join(title) if isinstance(title, list) else title
+        assert spec["description"].startswith(title.split(" ")[0]), name
+        assert len(spec["description"]) > len(title) * 0.8, name

@@ -151,6 +151,14 @@ def test_axe_finds_no_serious_violation_and_every_control_is_named(
         shown = upload["shown"].strip('"')
         assert shown and not re.search(r"\(\d+\)", shown), upload
         assert upload["name"] == shown and upload["width"] > 60, upload
+    # each chart's drawing is named by its title and subtitle, not "Vega visualization"
+    names = page.evaluate(
+        "() => [...document.querySelectorAll('.plantside-chart .vega-embed')]"
+        ".map(e => e.getAttribute('aria-label') || '')"
+    )
+    assert len(names) >= 5
+    for name in names:
+        assert name and name != "Vega visualization" and len(name) > 20, name
     stem = notebook.removesuffix(".ipynb")
     page.screenshot(path=str(screenshots_folder / f"accessibility_{stem}_1280.png"))
 

@@ -380,7 +380,8 @@ def themed(
     Returns
     -------
     altair chart
-        ``chart`` itself, with title, background, padding and config set.
+        ``chart`` itself, with title, description (title and subtitle, the text a
+        screen reader reads for the drawing), background, padding and config set.
         It can no longer be layered or concatenated (Altair's rule for
         configured charts), so build compositions before calling this.
     """
@@ -401,6 +402,8 @@ def themed(
     # else holds it; the complete spec is validated in the tests.
     finished = chart
     finished.title = alt.TitleParams(**params)
+    # what a screen reader says for the drawing (Vega sets it as the chart's aria-label)
+    finished.description = ". ".join([title, *(_as_lines(subtitle) if subtitle else [])])
     finished.background = BACKGROUND
     finished.padding = _PADDING
     finished.config = _config()
