@@ -9,6 +9,7 @@ from __future__ import annotations
 
 import json
 
+import pytest
 from plantside.charts import palette
 from test_charts import build, combined, frames_for
 
@@ -117,3 +118,27 @@ def test_every_chart_describes_itself_for_a_screen_reader():
         title = " ".join(title) if isinstance(title, list) else title
         assert spec["description"].startswith(title.split(" ")[0]), name
         assert len(spec["description"]) > len(title) * 0.8, name
+
+
+@pytest.mark.parametrize(("system", "unit"), [("IP", "gr/lb"), ("SI", "g/kg")])
+def test_the_dehumidification_condition_names_its_humidity_ratio(system, unit):
+    from plantside.charts.labels import condition_text
+    from plantside.cli.main import _condition_text
+    from plantside.climate.design_conditions import DesignCondition
+
+    # 20 °C dew point, 0.0150 kg/kg = 105.0 gr/lb = 15.0 g/kg (1 lb = 7000 gr, NIST SP 811)
+    condition = DesignCondition(
+        kind="dehumidification",
+        percent=0.4,
+        drybulb=35.0,
+        wet_bulb=25.0,
+        dew_point=20.0,
+        humidity_ratio=0.0150,
+        enthalpy=73.6,
+        pressure=101325.0,
+        label="",
+    )
+    shown = condition_text(condition, system)
+    assert ("105.0 gr/lb" if system == "IP" else "15.0 g/kg") in shown
+    assert unit in _condition_text(condition, system)  # the command line says it too
+    assert _condition_text(condition, system) == shown

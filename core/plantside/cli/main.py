@@ -54,6 +54,8 @@ def _condition_text(condition, system) -> str:
     if condition.kind == "cooling":
         text += f" / {_fmt('temperature', condition.wet_bulb, system)} MCWB"
     elif condition.kind in ("dehumidification", "enthalpy"):
+        if condition.kind == "dehumidification":  # as the dashboard: DP / W / MCDB
+            text += f" / {_fmt('humidity_ratio', condition.humidity_ratio, system)}"
         text += f" / {_fmt('temperature', condition.drybulb, system)} MCDB"
     return text.replace("  ", " ").strip()
 
