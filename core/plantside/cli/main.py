@@ -7,6 +7,7 @@ Commands (``plantside COMMAND --help`` for each)::
                                                     hourly results, coil schedule CSV,
                                                     summary JSON
     plantside charts  SCENARIO --out DIR            every chart as PNG and SVG
+    plantside report  SCENARIO --out FILE.html      the design report (prints to PDF)
     plantside climates                              the bundled fictional climates
     plantside sweep   SWEEP --out DIR [--workers N | --scheduler ADDR]
                                                     batch of cases -> one table
@@ -25,6 +26,7 @@ from pathlib import Path
 
 import numpy as np
 
+from plantside.cli.report import add_report_parser
 from plantside.cli.sweep import add_sweep_parser
 from plantside.errors import NAME_EXCERPT_CHARS, PlantsideError, excerpt
 from plantside.units import display_text, to_display
@@ -376,6 +378,7 @@ def build_parser() -> argparse.ArgumentParser:
     climates.add_argument("--json", action="store_true")
     climates.set_defaults(func=_cmd_climates)
     add_sweep_parser(sub)
+    add_report_parser(sub)
     return parser
 
 
