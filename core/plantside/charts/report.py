@@ -29,7 +29,13 @@ from plantside.charts.export import chart_bytes
 from plantside.charts.labels import condition_text
 from plantside.charts.report_inputs import inputs_html
 from plantside.charts.report_style import REPORT_CSS
-from plantside.charts.study_frames import CHARTS, ChartView, chart_frames, study_chart, study_chart_views
+from plantside.charts.study_frames import (
+    CHARTS,
+    ChartView,
+    chart_frames,
+    study_chart,
+    study_chart_views,
+)
 from plantside.charts.tables import coil_schedule_table, html_table, water_side_html
 from plantside.errors import PlantsideError
 from plantside.study.figures import PART_LOAD_THRESHOLD, climate_label, first_recirculating_unit
@@ -221,7 +227,7 @@ def _schedule_html(result, system) -> str:
     keys = list(table.columns[:3])
     parts = []
     for columns, caption in (
-        (list(table.columns[:_AIR_COLUMNS]), "Coil schedule: air (the governing row sets the coil)"),
+        (list(table.columns[:_AIR_COLUMNS]), "Coil schedule: air (the governing row sets it)"),
         (keys + list(table.columns[_AIR_COLUMNS:]), "Coil schedule: loads"),
     ):
         part = table[columns].copy()
@@ -355,6 +361,8 @@ def design_report_html(
     derivations = _no_derivation
 
     what = ", ".join(_view_name(key, view) for key, view, _ in chosen)
+    if None in keys:  # the plant view's psychrometric and outdoor-air charts show one unit
+        what += f" (the plant's unit charts show {views[None].unit.name})"
     meta = [
         ("Study", title),
         ("Site", f"{result.weather.site} ({climate}; {result.weather.hours:,} h of weather)"),
@@ -402,8 +410,8 @@ def design_report_html(
         f"<div class='ps-keep'>{_plants_table(result, system)}</div></section>"
         f"<section id='cautions'><h2>Cautions for these inputs</h2>"
         f"{_cautions_html(result, notes, system)}</section>"
-        f"<section id='schedule'><h2>Coil schedule</h2><div class='ps-wide ps-schedule'>{schedule}</div>"
-        "</section>"
+        "<section id='schedule'><h2>Coil schedule</h2>"
+        f"<div class='ps-wide ps-schedule'>{schedule}</div></section>"
         f"<section id='water'><h2>Water side</h2><div class='ps-wide'>"
         f"{_water_html(result, system)}</div></section>"
         f"{''.join(chart_sections)}"

@@ -165,14 +165,12 @@ def inputs_html(scenario, pinned_scenario=None) -> str:
     """
     system = scenario.unit_system
     saved = scenario_to_dict(scenario)
-    site = [(key, _file_value(value), _site_unit(key, system)) for key, value in saved["site"].items()]
+    site = [(k, _file_value(v), _site_unit(k, system)) for k, v in saved["site"].items()]
     plant = saved["plant"]
     parts = [
         f"<p>Numbers in the scenario's own unit system ({html.escape(str(system))}), named as "
         "the scenario file names them (README, 'Scenario files').</p>",
-        _pairs_table(
-            [("title", saved["title"], "")] + site, "Site and design conditions ([site])"
-        ),
+        _pairs_table([("title", saved["title"], ""), *site], "Site and design conditions ([site])"),
         _pairs_table(
             [
                 (k, _file_value(v), "%" if k.endswith("_percent") else "")
