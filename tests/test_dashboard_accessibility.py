@@ -13,6 +13,7 @@ setting the user cannot see").
 
 from __future__ import annotations
 
+import math
 import re
 from pathlib import Path
 
@@ -132,3 +133,15 @@ def test_upload_buttons_show_their_title_without_the_counter(plant):
         assert "plantside-upload" in widget._dom_classes
     assert re.search(r"\.plantside-upload \{ font-size: 0 !important; \}", css)
     assert re.search(r"\.plantside-upload::before \{ content: attr\(title\)", css)
+
+
+def test_every_slider_holds_a_number_for_every_air_handler(scenario):
+    # a slider sent NaN is not drawn on the page (noUiSlider needs a start value), and
+    # stays an error box when a unit that has the setting is chosen
+    dashboard = Dashboard(scenario, view="plant")
+    for index in range(len(scenario.air_handlers)):
+        dashboard.air_handler_choice.value = index
+        for name in SLIDERS:
+            slider = dashboard.controls.widgets[name]
+            assert math.isfinite(slider.value), (index, name, slider.value)
+            assert slider.min <= slider.value <= slider.max, (index, name)

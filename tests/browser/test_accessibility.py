@@ -93,6 +93,8 @@ def test_axe_finds_no_serious_violation_and_every_control_is_named(
     page = new_page(1280, 800)
     open_dashboard(page, dashboard_server, notebook)
     page.wait_for_timeout(1000)  # the controls' names are set once the boxes are drawn
+    # every widget is drawn, the hidden ones too (no "Click to show javascript error" box)
+    assert page.locator(".jupyter-widgets-error-widget").count() == 0
     violations = axe_violations(page)
     print(f"\naxe-core on {notebook}: {len(violations)} rule(s) with findings")
     for violation in violations:
@@ -254,3 +256,16 @@ def test_every_control_works_from_the_keyboard(dashboard_server, new_page):
         ".querySelector('.plantside-label').innerText"
     )
     assert "100 % outdoor-air" in line, line
+    # every control the other unit shows is drawn (a slider sent no number was an error box)
+    page.mouse.click(2, 2)
+    tab_to(page, lambda f: "plantside-air-handler" in f["control"], "the air-handler choice")
+    for key in ("ArrowDown",) * 6:
+        if "OA-" not in page.evaluate(selected):
+            break
+        page.keyboard.press(key)
+    page.wait_for_function(
+        "() => document.querySelector('.plantside-economizer').closest('.plantside-control')"
+        ".querySelector('.plantside-label').innerText === 'Economizer control'",
+        timeout=WIDGET_TIMEOUT_MS,
+    )
+    assert page.locator(".jupyter-widgets-error-widget").count() == 0

@@ -389,7 +389,7 @@ class Controls:
         for name, spec in SLIDERS.items():
             low, high, step = self._limits(name, system)
             slider = GuardedFloatSlider(
-                value=min(max(spec.to_display(state.shown_value(name), system), low), high),
+                value=self._slider_value(name, system, low, high),
                 min=low,
                 max=high,
                 step=step,
@@ -525,6 +525,18 @@ class Controls:
     def _slider_label(self, name: str, system: str) -> str:
         spec = SLIDERS[name]
         return f"{spec.label} [{spec.unit(system)}]"
+
+    def _slider_value(self, name: str, system: str, low: float, high: float) -> float:
+        """What slider ``name`` shows (display units): the state's value, within its range.
+
+        A control with no value for the air handler shown (the leaving dew point of a coil
+        that holds none; its box is hidden, the slider disabled) shows the range's low end:
+        a slider given no number is not drawn at all on the page (noUiSlider refuses it),
+        and stays broken when a unit that has the setting is chosen.
+        """
+        value = self.state.shown_value(name)
+        shown = math.nan if value is None else SLIDERS[name].to_display(value, system)
+        return min(max(shown, low), high) if math.isfinite(shown) else low
 
     def _slider_si(self, name: str, shown: float, system: str) -> float:
         """The SI value of slider ``name`` showing ``shown`` (display units).
@@ -767,17 +779,16 @@ class Controls:
         state = self.state
         system = state.inputs.unit_system
         with self.muted():
-            for name, spec in SLIDERS.items():
+            for name in SLIDERS:
                 slider = self.widgets[name]
                 low, high, step = self._limits(name, system)
-                shown = spec.to_display(state.shown_value(name), system)
+                shown = self._slider_value(name, system, low, high)
                 with slider.hold_sync():
                     if (slider.min, slider.max, slider.step) != (low, high, step):
                         slider.max = max(high, slider.min)
                         slider.min = low
                         slider.max = high
                         slider.step = step
-                    shown = min(max(shown, low), high)
                     if not abs(slider.value - shown) <= 1e-9:  # also replaces a NaN
                         slider.value = shown
                 text = self._slider_label(name, system)
