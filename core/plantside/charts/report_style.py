@@ -43,7 +43,9 @@ table.ps-table th, table.ps-table td {{
 table.ps-table thead th {{ background: #eef1f4; text-align: left; }}
 table.ps-table td {{ text-align: right; font-variant-numeric: tabular-nums; }}
 table.ps-table tbody th {{ text-align: left; font-weight: 600; }}
-table.ps-inputs td, .ps-schedule td:nth-child(-n+3) {{ text-align: left; }}
+table.ps-inputs td, table.ps-table td:first-child, .ps-schedule td:nth-child(-n+3) {{
+  text-align: left;
+}}
 table.ps-figures td.ps-note {{ text-align: left; color: {INK_SOFT}; }}
 .ps-wide {{ overflow-x: auto; }}
 .ps-a {{ color: {INK_SOFT}; white-space: nowrap; }}
