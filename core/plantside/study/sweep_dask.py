@@ -1,21 +1,50 @@
 """Running a sweep's batches on a Dask cluster (the optional ``cluster`` extra).
 
-The sweep is scattered once to every worker (broadcast) and each batch submitted with
-``pure=False``. A task whose worker died is rerun by Dask up to the scheduler's
-``allowed-failures``, then ends in ``KilledWorker``; :func:`run_dask` submits that batch
-once more, then records its cases failed.
+The sweep (its base scenario and cases, a few kB) is scattered once to every worker
+(broadcast); each task is one batch of cases (``pure=False``) and names the scattered
+copy, so nothing but the batch travels with it. Batches are handed out as workers free
+up, at most one more than the cluster's worker threads in flight (:data:`IN_FLIGHT_EXTRA`):
+a worker that finishes early takes the next batch, as a local pool's worker does,
+instead of the scheduler placing every batch up front and moving them about later. The
+largest batches go first, so the last ones to finish are short. Workers started with
+``--preload plantside.study.sweep_worker`` (``preload=[WORKER_MODULE]`` for a
+:class:`~dask.distributed.LocalCluster`) have the model imported before the first batch.
+
+A task whose worker died is rerun by Dask up to the scheduler's ``allowed-failures``,
+then ends in ``KilledWorker``; :func:`run_dask` submits that batch once more, then
+records its cases failed. A task the scheduler dropped because every copy of the
+scattered sweep died with its workers is submitted again with a fresh copy (up to
+:data:`MAX_LOST_COPIES` times; not counted as the batch's try).
 """
 
 from __future__ import annotations
 
+from concurrent.futures import CancelledError
+
 from plantside.errors import InputRangeError
 from plantside.study.sweep_worker import WORKER_DIED, failed_rows
 
-__all__ = ["CONNECT_TIMEOUT", "cluster_workers", "open_client", "run_dask"]
+__all__ = [
+    "CONNECT_TIMEOUT",
+    "IN_FLIGHT_EXTRA",
+    "WORKER_MODULE",
+    "cluster_workers",
+    "open_client",
+    "run_dask",
+]
 
 
 #: How long to wait for a Dask scheduler to answer.
 CONNECT_TIMEOUT = "20s"
+#: Batches in flight beyond the cluster's worker threads: one waits ready on a worker
+#: while the others run, so no worker idles for the round trip to this client.
+IN_FLIGHT_EXTRA = 1
+#: Times a batch is resubmitted because the workers holding the scattered sweep all
+#: died before it ran (the scheduler drops such a task; it is not the batch's fault).
+MAX_LOST_COPIES = 3
+#: The module the workers run batches from: preload it on the workers
+#: (``dask worker ... --preload plantside.study.sweep_worker``) to import it once, up front.
+WORKER_MODULE = "plantside.study.sweep_worker"
 
 
 def _dask():
@@ -53,25 +82,48 @@ def run_dask(sweep, batches, client, on_done, run_batch):
     """Run ``batches`` on a Dask cluster; ``on_done(frame)`` for each, as they finish.
 
     ``run_batch(sweep, batch)`` is what each task runs (see
-    :func:`plantside.study.sweep_local.run_local`).
+    :func:`plantside.study.sweep_local.run_local`). Batches are submitted largest first
+    and at most :func:`cluster_workers` + :data:`IN_FLIGHT_EXTRA` at a time (the count
+    read again as batches finish, so workers that join are used).
 
     A task whose worker died (Dask itself first reruns it elsewhere, up to the
     scheduler's ``allowed-failures``, then reports ``KilledWorker``) is submitted once
     more; if that ends the same way its cases are recorded failed (``WORKER_DIED``).
     """
     distributed = _dask()
+    waiting = sorted(batches, key=len, reverse=True)  # (stable: sweep order within a size)
+    waiting.reverse()  # popped from the end
     futures: dict = {}  # future -> (batch, tries)
+    lost: dict = {}  # id(batch) -> times its task was dropped with a lost copy of the sweep
     scattered = []  # every copy of the sweep sent, held so that none is released early
     try:
         [shared] = client.scatter([sweep], broadcast=True, hash=False)
         scattered.append(shared)
-        for batch in batches:
-            futures[client.submit(run_batch, shared, batch, pure=False)] = (batch, 1)
-        pending = set(futures)
-        while pending:
-            finished, pending = distributed.wait(pending, return_when="FIRST_COMPLETED")
+
+        def top_up() -> None:
+            room = cluster_workers(client) + IN_FLIGHT_EXTRA - len(futures)
+            for _ in range(min(room, len(waiting))):
+                batch = waiting.pop()
+                futures[client.submit(run_batch, scattered[-1], batch, pure=False)] = (batch, 1)
+
+        top_up()
+        while futures:
+            try:
+                finished, _ = distributed.wait(list(futures), return_when="FIRST_COMPLETED")
+            except CancelledError:  # wait() raises for a dropped task: take it from here
+                finished = [f for f in futures if f.status in ("cancelled", "finished", "error")]
             for future in finished:
                 batch, tries = futures.pop(future)
+                if future.status == "cancelled":  # its copy of the sweep died with its worker
+                    lost[id(batch)] = lost.get(id(batch), 0) + 1
+                    if lost[id(batch)] > MAX_LOST_COPIES:
+                        on_done(failed_rows(sweep, batch, *WORKER_DIED))
+                        continue
+                    if scattered[-1].status != "finished":
+                        scattered += client.scatter([sweep], broadcast=True, hash=False)
+                    again = client.submit(run_batch, scattered[-1], batch, pure=False)
+                    futures[again] = (batch, tries)  # not the batch's doing: same try
+                    continue
                 # (a result lost with a dead worker is recomputed: exception() waits for it)
                 error = future.exception()
                 if error is None:
@@ -84,7 +136,7 @@ def run_dask(sweep, batches, client, on_done, run_batch):
                     scattered += client.scatter([sweep], broadcast=True, hash=False)
                     again = client.submit(run_batch, scattered[-1], batch, pure=False)
                     futures[again] = (batch, tries + 1)
-                    pending.add(again)
+            top_up()
     except BaseException:
         for future in futures:
             if future.status == "finished":
