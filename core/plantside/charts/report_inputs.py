@@ -105,6 +105,10 @@ def _matrix(names, rows, caption: str, pinned=None) -> str:
     )
 
 
+#: Air-handler settings in a unit of their own in both unit systems (README, "[[air_handler]]").
+_FIXED_UNITS = {"supply_fan_power": "kW"}
+
+
 def _unit_rows(scenario) -> list[tuple[str, str, list[str]]]:
     """Every air-handler setting and zone-load field, one row each, in the file's units."""
     system = scenario.unit_system
@@ -116,7 +120,7 @@ def _unit_rows(scenario) -> list[tuple[str, str, list[str]]]:
         rows.append(
             (
                 f.name,
-                field_unit(f.name, system),
+                _FIXED_UNITS.get(f.name) or field_unit(f.name, system),
                 [setting_text(f.name, getattr(s.settings, f.name), system) for s in specs],
             )
         )
