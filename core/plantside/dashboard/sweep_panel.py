@@ -1,0 +1,416 @@
+"""A small sweep from the plant page: outdoor-air fraction x climate, with its chart.
+
+:class:`SweepPanel` holds one widget the dashboard places, ``box``. The user picks an
+air handler, a range of minimum outdoor-air fractions and a number of steps, and the
+climates (the bundled sites and the page's own weather file); *Run sweep* starts it.
+The cases run one by one in a background thread of the kernel, so the page stays
+live (each browser session is a kernel of its own, so other sessions never wait);
+a progress bar and a line ("12 of 30 cases") follow it, *Stop* ends it after the case
+in hand, and the finished cases are kept. Then a chart of the results is drawn, and a
+table lists the cases the model refused (their field and reason, never a traceback).
+
+The calculation is that of ``plantside sweep``: the sweep is built by
+:func:`plantside.study.sweep.sweep_from_dict` (the ``[sweep]`` table a file would
+hold, validated the same way) from the page's current scenario
+(:meth:`~plantside.dashboard.state.DashboardState.current_scenario`), run by
+:func:`plantside.study.sweep_run.run_sweep` in this process into a temporary folder,
+and drawn by :func:`plantside.charts.sweep.sweep_charts`. At most
+:data:`MAX_PANEL_CASES` cases run from the page; larger sweeps belong to the command.
+"""
+
+from __future__ import annotations
+
+import html
+import shutil
+import tempfile
+import threading
+from dataclasses import replace
+from pathlib import Path
+
+import altair as alt
+import ipywidgets as widgets
+import numpy as np
+import pandas as pd
+
+from plantside.charts.sweep import sweep_charts
+from plantside.climate.bundled import BUNDLED_CLIMATES
+from plantside.errors import PlantsideError, excerpt
+from plantside.study.figures import first_recirculating_unit
+from plantside.study.sweep import sweep_from_dict
+from plantside.study.sweep_cases import ClimateChoice, _file_digest, _resolved
+from plantside.study.sweep_folder import results_table
+from plantside.study.sweep_run import run_sweep
+from plantside.study.sweep_worker import CASE_FAILED
+
+__all__ = ["MAX_PANEL_CASES", "SweepPanel"]
+
+#: Most cases a sweep started from the page may have (a case takes a few tenths of a
+#: second, so 60 is half a minute or so); larger sweeps: ``plantside sweep``.
+MAX_PANEL_CASES = 60
+#: Steps of the outdoor-air fraction the page offers.
+MIN_STEPS, MAX_STEPS = 2, 21
+#: The field the sweep varies (per air handler, or ``*`` for all).
+FIELD = "minimum_outdoor_air_fraction"
+#: Words for the sweep's standard charts (:func:`plantside.charts.sweep.sweep_charts`).
+CHART_NAMES = {
+    "sweep_plant_capacity": "Cooling plant design capacity",
+    "sweep_plant_capacity_map": "Cooling plant design capacity, map",
+}
+CAUTION = (
+    "A sweep compares cases of the same model; it does not size equipment. Check the "
+    "chosen case in full (its cautions, humidity and part-load hours) and follow local "
+    "codes and a licensed engineer's review."
+)
+
+
+class _StopRequestedError(Exception):
+    """Raised from the progress callback when the user pressed Stop."""
+
+
+class SweepPanel:
+    """Run a small outdoor-air fraction x climate sweep from the page.
+
+    Parameters
+    ----------
+    state : DashboardState
+        The page's state; the sweep starts from its current scenario (the controls'
+        values) when *Run sweep* is pressed.
+
+    Attributes
+    ----------
+    box : ipywidgets.VBox
+        Everything the panel shows.
+    table : pandas.DataFrame or None
+        The last sweep's table (as ``plantside sweep`` writes it), finished cases only.
+    sweep : Sweep or None
+        The last sweep run.
+    charts : dict
+        The last sweep's charts by file name (as ``plantside sweep --charts`` saves them).
+    """
+
+    def __init__(self, state):
+        self.state = state
+        self.table: pd.DataFrame | None = None
+        self.sweep = None
+        self.charts: dict = {}
+        self._thread: threading.Thread | None = None
+        self._stop = threading.Event()
+        scenario = state.scenario
+        units = [
+            (f"{spec.settings.name}", str(i + 1))
+            for i, spec in enumerate(scenario.air_handlers)
+            if not spec.settings.all_outdoor_air
+        ]
+        if len(units) == len(scenario.air_handlers) and len(units) > 1:
+            units.append(("All air handlers", "*"))
+        first = str(first_recirculating_unit(scenario) + 1)
+        self.unit = widgets.Dropdown(
+            options=units or [(scenario.air_handlers[0].settings.name, "1")],
+            value=first if any(v == first for _, v in units) else (units or [("", "1")])[0][1],
+            description="Air handler",
+            style={"description_width": "10em"},
+        )
+        self.fraction = widgets.FloatRangeSlider(
+            value=(0.1, 0.5),
+            min=0.0,
+            max=1.0,
+            step=0.05,
+            readout_format=".2f",
+            description="Outdoor-air fraction",
+            style={"description_width": "10em"},
+            continuous_update=False,
+        )
+        self.steps = widgets.BoundedIntText(
+            value=5,
+            min=MIN_STEPS,
+            max=MAX_STEPS,
+            description="Steps",
+            style={"description_width": "10em"},
+            layout=widgets.Layout(width="16em"),
+        )
+        self.climates = {}
+        own = self._own_climate()
+        for name in BUNDLED_CLIMATES:
+            self.climates[name] = widgets.Checkbox(
+                value=name == state.inputs.climate, description=name, indent=False
+            )
+        if own is not None:
+            self.climates[own.label] = widgets.Checkbox(
+                value=True, description=f"{own.label} (this page's weather file)", indent=False
+            )
+        self._own = own
+        self.count = widgets.HTML()
+        self.run_button = widgets.Button(description="Run sweep", button_style="primary")
+        self.stop_button = widgets.Button(description="Stop", disabled=True)
+        self.progress = widgets.IntProgress(value=0, min=0, max=1, description="")
+        self.progress_text = widgets.HTML("")
+        self.message = widgets.HTML("")
+        self.chart_choice = widgets.Dropdown(options=[], description="Chart")
+        self.chart_box = widgets.VBox([])
+        self.failed = widgets.HTML("")
+        self.run_button.on_click(lambda _: self.start())
+        self.stop_button.on_click(lambda _: self.stop())
+        for control in (self.unit, self.fraction, self.steps, *self.climates.values()):
+            control.observe(lambda _: self._show_count(), names="value")
+        self.chart_choice.observe(lambda _: self._show_chart(), names="value")
+        note = ""
+        if own is None and str(state.inputs.climate).startswith("upload: "):
+            note = (
+                "<div class='plantside-help'>An uploaded weather file is not swept here; "
+                "put it in a folder and run <code>plantside sweep</code> with "
+                "<code>climate_folder</code>.</div>"
+            )
+        self.box = widgets.VBox(
+            [
+                widgets.HTML(
+                    "<h3>Sweep: outdoor-air fraction × climate</h3>"
+                    f"<div class='plantside-help'>{html.escape(CAUTION)}</div>"
+                ),
+                self.unit,
+                self.fraction,
+                self.steps,
+                widgets.HTML("<b>Climates</b>"),
+                widgets.VBox(list(self.climates.values())),
+                widgets.HTML(note),
+                self.count,
+                widgets.HBox([self.run_button, self.stop_button]),
+                widgets.HBox([self.progress, self.progress_text]),
+                self.message,
+                self.chart_choice,
+                self.chart_box,
+                self.failed,
+            ]
+        )
+        self.box.add_class("plantside-sweep")
+        self.chart_choice.layout.display = "none"
+        self._show_count()
+
+    # ------------------------------------------------------------------ planning
+    def _own_climate(self) -> ClimateChoice | None:
+        """The page's weather file read from disk (a scenario's ``weather_file``), if any."""
+        climate = str(self.state.inputs.climate)
+        if climate in BUNDLED_CLIMATES or not climate.startswith("file: "):
+            return None
+        try:
+            path = _resolved(self.state.scenario, climate.split(": ", 1)[1])
+            if not path.is_file():
+                return None
+            return ClimateChoice(path.stem, weather_file=str(path), digest=_file_digest(path))
+        except (OSError, ValueError):
+            return None
+
+    def chosen_climates(self) -> list[str]:
+        """The ticked climates, in the order shown."""
+        return [name for name, box in self.climates.items() if box.value]
+
+    def case_count(self) -> int:
+        """Cases the current choices make (steps x climates)."""
+        return int(self.steps.value) * len(self.chosen_climates())
+
+    def _show_count(self) -> None:
+        count, climates = self.case_count(), len(self.chosen_climates())
+        text = f"{int(self.steps.value)} fractions × {climates} climate(s) = {count} cases"
+        if count > MAX_PANEL_CASES:
+            text += f": more than the {MAX_PANEL_CASES} a sweep from the page may run"
+        self.count.value = f"<div class='plantside-help'>{html.escape(text)}</div>"
+
+    def build_sweep(self):
+        """The sweep of the current choices, as ``plantside sweep`` would read it.
+
+        Raises
+        ------
+        PlantsideError
+            A choice out of range (no climate, too many cases, a value the model refuses),
+            the message naming the field and what is allowed.
+        """
+        from plantside.errors import InputRangeError
+
+        low, high = (float(v) for v in self.fraction.value)
+        steps = int(self.steps.value)
+        chosen = self.chosen_climates()
+        if not chosen:
+            raise InputRangeError(
+                "climates",
+                "Climates: none ticked; tick at least one climate",
+                "at least one climate",
+            )
+        if not (MIN_STEPS <= steps <= MAX_STEPS):
+            raise InputRangeError(
+                "steps",
+                f"Steps: {steps} is outside {MIN_STEPS} to {MAX_STEPS}",
+                f"{MIN_STEPS} to {MAX_STEPS}",
+            )
+        if not (0.0 <= low < high <= 1.0):
+            raise InputRangeError(
+                "outdoor-air fraction",
+                f"Outdoor-air fraction: the range {low:g} to {high:g} is empty or outside 0 to 1; "
+                "choose two different ends from 0 to 1",
+                "a range inside 0 to 1 whose ends differ",
+            )
+        count = steps * len(chosen)
+        if count > MAX_PANEL_CASES:
+            raise InputRangeError(
+                "cases",
+                f"Cases: {steps} fractions × {len(chosen)} climates = {count} cases is more than "
+                f"the {MAX_PANEL_CASES} a sweep from the page may run; take fewer steps or "
+                "climates, or run larger sweeps with `plantside sweep`",
+                f"at most {MAX_PANEL_CASES} cases",
+            )
+        base = self.state.current_scenario()
+        bundled = [name for name in chosen if name in BUNDLED_CLIMATES]
+        table = {
+            "title": f"Outdoor-air sweep of {base.title}",
+            "axes": {
+                f"air_handler[{self.unit.value}].{FIELD}": {
+                    "start": low,
+                    "stop": high,
+                    "num": steps,
+                }
+            },
+        }
+        own = self._own if self._own is not None and self._own.label in chosen else None
+        if bundled:
+            table["climates"] = bundled
+        elif own is not None:  # the base scenario's own weather file only
+            return sweep_from_dict(table, base, "dashboard sweep", base.base_dir)
+        sweep = sweep_from_dict(table, base, "dashboard sweep", base.base_dir)
+        if own is not None:
+            sweep = replace(sweep, climates=(*sweep.climates, own))
+        return sweep
+
+    # ------------------------------------------------------------------ running
+    @property
+    def running(self) -> bool:
+        """True while a sweep runs."""
+        return self._thread is not None and self._thread.is_alive()
+
+    def start(self) -> bool:
+        """Start the sweep of the current choices in a background thread.
+
+        Returns False (with the message shown) when the choices are refused or a sweep
+        is already running.
+        """
+        if self.running:
+            return False
+        try:
+            sweep = self.build_sweep()
+        except PlantsideError as error:
+            self._say(str(error), warn=True)
+            return False
+        self.sweep = sweep
+        self._stop.clear()
+        self.progress.max = sweep.size
+        self.progress.value = 0
+        self.progress_text.value = f"0 of {sweep.size} cases"
+        self._say("Running…")
+        self.run_button.disabled = True
+        self.stop_button.disabled = False
+        self._thread = threading.Thread(target=self._work, args=(sweep,), daemon=True)
+        self._thread.start()
+        return True
+
+    def stop(self) -> None:
+        """Stop after the case in hand; the finished cases are kept and drawn."""
+        self._stop.set()
+
+    def join(self, timeout: float | None = None) -> bool:
+        """Wait for the running sweep (tests, scripts); True when it has ended."""
+        if self._thread is not None:
+            self._thread.join(timeout)
+        return not self.running
+
+    def _progress(self, done: int, total: int) -> None:
+        self.progress.value = int(done)
+        self.progress_text.value = f"{int(done)} of {int(total)} cases"
+        if self._stop.is_set() and done < total:
+            raise _StopRequestedError
+
+    def _work(self, sweep) -> None:
+        folder = Path(tempfile.mkdtemp(prefix="plantside-sweep-"))
+        stopped = False
+        try:
+            try:
+                run = run_sweep(
+                    sweep, folder / "out", workers=1, batch_size=1, progress=self._progress
+                )
+                table = run.table
+            except _StopRequestedError:
+                stopped = True
+                table = results_table(folder / "out", sweep)
+            self._finish(sweep, table, stopped)
+        except PlantsideError as error:
+            self._say(f"The sweep could not run: {error}", warn=True)
+        except Exception as error:  # never a traceback on the page
+            self._say(f"The sweep stopped on an unexpected error: {excerpt(error, 300)}", warn=True)
+        finally:
+            shutil.rmtree(folder, ignore_errors=True)
+            self.run_button.disabled = False
+            self.stop_button.disabled = True
+
+    def _finish(self, sweep, table: pd.DataFrame, stopped: bool) -> None:
+        self.table = table
+        failed = table[table["status"] == CASE_FAILED]
+        ran = table[table["status"] != CASE_FAILED]  # failed cases have no results
+        system = self.state.inputs.unit_system
+        self.charts = sweep_charts(ran, [a.column for a in sweep.axes], system=system)
+        words = f"{len(table)} of {sweep.size} cases finished"
+        if stopped:
+            words = f"Stopped: {words}; the finished ones are shown"
+        if len(failed):
+            words += f"; {len(failed)} failed (listed below)"
+        self._say(words + ".", warn=bool(stopped or len(failed)))
+        self.failed.value = _failed_html(failed, sweep)
+        options = [(_chart_name(name, sweep), name) for name in self.charts]
+        self.chart_choice.options = options
+        self.chart_choice.layout.display = None if options else "none"
+        if options:
+            preferred = [v for _, v in options if v == "sweep_plant_capacity"]
+            self.chart_choice.value = preferred[0] if preferred else options[0][1]
+        self._show_chart()
+
+    def _show_chart(self) -> None:
+        chart = self.charts.get(self.chart_choice.value)
+        if chart is None:
+            self.chart_box.children = ()
+            return
+        view = alt.JupyterChart(chart, embed_options={"actions": False, "renderer": "canvas"})
+        view.add_class("plantside-chart-sweep")
+        self.chart_box.children = (view,)
+
+    def _say(self, text: str, warn: bool = False) -> None:
+        mark = "⚠ " if warn else ""
+        css = "plantside-message" if warn else "plantside-help"
+        self.message.value = f"<div class='{css}' role='status'>{mark}{html.escape(text)}</div>"
+
+
+def _chart_name(name: str, sweep) -> str:
+    if name in CHART_NAMES:
+        return CHART_NAMES[name]
+    if name.startswith("sweep_coil_load_"):
+        index = int(name.rsplit("_", 1)[1]) - 1
+        units = sweep.base.air_handlers
+        if 0 <= index < len(units):
+            return f"Design coil load: {units[index].settings.name}"
+    return name
+
+
+def _failed_html(failed: pd.DataFrame, sweep) -> str:
+    """The refused cases as rows: climate, fraction, field and reason."""
+    if failed.empty:
+        return ""
+    column = sweep.axes[0].column
+    rows = "".join(
+        "<tr>"
+        f"<td>{html.escape(str(row['climate']))}</td>"
+        f"<td>{'' if np.isnan(row[column]) else f'{row[column]:.3g}'}</td>"
+        f"<td>failed</td>"
+        f"<td>{html.escape(str(row['error_field']))}</td>"
+        f"<td>{html.escape(str(row['error_message']))}</td>"
+        "</tr>"
+        for _, row in failed.iterrows()
+    )
+    return (
+        "<table class='plantside-table'><caption>Cases the model refused</caption>"
+        "<tr><th>Climate</th><th>Outdoor-air fraction</th><th>Status</th><th>Field</th>"
+        f"<th>Reason</th></tr>{rows}</table>"
+    )

@@ -1,0 +1,141 @@
+"""The plant page's sweep panel runs the same calculation as ``plantside sweep``.
+
+The reference is the command's own path: a sweep file with the same base scenario,
+climates and outdoor-air fractions, read by :func:`plantside.study.sweep.load_sweep` and
+run by :func:`plantside.study.sweep_run.run_sweep` (itself checked case by case against
+:func:`plantside.study.run.run_study` in ``tests/test_sweep.py``); the charts are those
+``plantside sweep --charts`` saves (:func:`plantside.charts.sweep.sweep_charts`).
+"""
+
+from __future__ import annotations
+
+import html
+import time
+from dataclasses import replace
+from pathlib import Path
+
+import numpy as np
+import pandas as pd
+import pytest
+from plantside.charts.sweep import sweep_charts
+from plantside.dashboard.state import DashboardState
+from plantside.dashboard.sweep_panel import MAX_PANEL_CASES, SweepPanel
+from plantside.study.scenario import load_scenario
+from plantside.study.sweep import load_sweep
+from plantside.study.sweep_run import run_sweep
+
+ROOT = Path(__file__).parents[1]
+CLINIC = ROOT / "example_data" / "scenarios" / "quillon_clinic.toml"
+OFFICE = ROOT / "example_data" / "scenarios" / "linden_office_si.toml"
+
+
+@pytest.fixture(scope="module")
+def state():
+    return DashboardState(load_scenario(CLINIC), view="plant")
+
+
+def _tick(panel, names):
+    for name, box in panel.climates.items():
+        box.value = name in names
+
+
+def test_tiny_sweep_equals_the_command_and_draws_its_charts(state, tmp_path):
+    panel = SweepPanel(state)
+    unit = panel.unit.value
+    climates = ["Salvia Flats", "Korva Plains"]
+    _tick(panel, climates)
+    panel.fraction.value = (0.2, 0.4)
+    panel.steps.value = 2
+    assert panel.start()
+    assert panel.join(timeout=300)
+    assert panel.progress.value == panel.progress.max == 4
+    assert panel.progress_text.value == "4 of 4 cases"
+    assert not panel.run_button.disabled and panel.stop_button.disabled
+    # the command, from a sweep file with the same choices
+    path = tmp_path / "sweep.toml"
+    path.write_text(
+        f'[sweep]\nbase = "{CLINIC.as_posix()}"\nclimates = ["Salvia Flats", "Korva Plains"]\n'
+        f'[sweep.axes]\n"air_handler[{unit}].minimum_outdoor_air_fraction" = '
+        "{ start = 0.2, stop = 0.4, num = 2 }\n",
+        encoding="utf-8",
+    )
+    sweep = load_sweep(path)
+    command = run_sweep(sweep, tmp_path / "out", workers=1).table
+    assert list(panel.table["case_id"]) == list(command["case_id"])
+    assert (panel.table["status"] == "ok").all()
+    pd.testing.assert_frame_equal(panel.table, command, check_exact=False, rtol=1e-12)
+    system = state.inputs.unit_system  # the page's units (the clinic is written in I-P)
+    expected = sweep_charts(command, [a.column for a in sweep.axes], system=system)
+    assert set(panel.charts) == set(expected)
+    for name, chart in expected.items():
+        assert panel.charts[name].to_dict() == chart.to_dict()
+    assert panel.chart_choice.value == "sweep_plant_capacity"
+    assert len(panel.chart_box.children) == 1
+    assert "4 of 4 cases finished" in panel.message.value
+
+
+def test_more_than_the_limit_is_refused_with_the_limit_named(state):
+    panel = SweepPanel(state)
+    _tick(panel, ["Salvia Flats", "Korva Plains", "Port Calder"])
+    panel.steps.value = 21  # 63 cases
+    assert panel.case_count() == 63 > MAX_PANEL_CASES
+    assert not panel.start()
+    assert not panel.running
+    assert f"the {MAX_PANEL_CASES} a sweep from the page may run" in panel.message.value
+    assert "63 cases" in panel.message.value
+    assert f"more than the {MAX_PANEL_CASES}" in panel.count.value
+    # nothing the user chose is lost
+    assert panel.steps.value == 21 and len(panel.chosen_climates()) == 3
+
+
+def test_no_climate_is_refused_by_name(state):
+    panel = SweepPanel(state)
+    _tick(panel, [])
+    assert not panel.start()
+    assert (
+        "Climates: none ticked" in panel.message.value
+        and "at least one climate" in panel.message.value
+    )
+
+
+# As in tests/test_sweep.py: supply air at 11 °C with a bypass factor of 0.3 needs, by the
+# bypass-factor line t_adp = (t_supply - BF t_mix) / (1 - BF) (common practice), an
+# apparatus dew point below the coil's 3 °C floor when 60 % outdoor air meets Salvia
+# Flats' cooling design condition, but not with 15 % nor in Linden Vale: one case of four
+# is refused by run_study itself, the three others compute.
+def test_a_refused_case_is_a_failed_row_not_a_traceback():
+    scenario = load_scenario(OFFICE)
+    spec = scenario.air_handlers[0]
+    spec = replace(spec, settings=replace(spec.settings, supply_drybulb=11.0, bypass_factor=0.3))
+    panel = SweepPanel(DashboardState(replace(scenario, air_handlers=(spec,)), view="plant"))
+    _tick(panel, ["Linden Vale", "Salvia Flats"])
+    panel.fraction.value = (0.15, 0.6)
+    panel.steps.value = 2
+    assert panel.start() and panel.join(timeout=300)
+    table = panel.table.set_index(["climate", "air_handler[1].minimum_outdoor_air_fraction"])
+    assert list(table["status"]) == ["ok", "failed", "ok", "ok"]
+    refused = table.loc[("Salvia Flats", 0.6)]
+    assert refused["error_field"] == "apparatus_dew_point"
+    shown = html.unescape(panel.failed.value)
+    assert "Salvia Flats" in shown and refused["error_message"] in shown
+    assert "1 failed (listed below)" in panel.message.value
+    assert "Traceback" not in panel.message.value + panel.failed.value
+    # the chart is drawn from the three cases that ran
+    assert panel.charts and panel.chart_box.children
+    assert np.isfinite(table[table["status"] == "ok"]["cooling_design_capacity_kW"]).all()
+
+
+def test_stop_keeps_the_finished_cases(state):
+    panel = SweepPanel(state)
+    _tick(panel, ["Salvia Flats", "Korva Plains"])
+    panel.steps.value = 10  # 20 cases
+    assert panel.start()
+    deadline = time.monotonic() + 120
+    while panel.progress.value < 1 and time.monotonic() < deadline:
+        time.sleep(0.02)
+    panel.stop()
+    assert panel.join(timeout=120)
+    assert 1 <= len(panel.table) < 20
+    assert (panel.table["status"] == "ok").all()
+    assert "Stopped" in panel.message.value
+    assert not panel.run_button.disabled
