@@ -89,6 +89,7 @@ class SweepPanel:
     """
 
     def __init__(self, state):
+        alt.JupyterChart.enable_offline()  # the page fetches nothing from a network (as app.py)
         self.state = state
         self.table: pd.DataFrame | None = None
         self.sweep = None
@@ -253,7 +254,7 @@ class SweepPanel:
                 "cases",
                 f"Cases: {steps} fractions × {len(chosen)} climates = {count} cases is more than "
                 f"the {MAX_PANEL_CASES} a sweep from the page may run; take fewer steps or "
-                "climates, or run larger sweeps with `plantside sweep`",
+                "climates, or run larger sweeps with the command plantside sweep",
                 f"at most {MAX_PANEL_CASES} cases",
             )
         base = self.state.current_scenario()
@@ -291,6 +292,7 @@ class SweepPanel:
         is already running.
         """
         if self.running:
+            self._say("A sweep is running: Stop it, or wait for it, before starting another.")
             return False
         try:
             sweep = self.build_sweep()
@@ -299,6 +301,10 @@ class SweepPanel:
             return False
         self.sweep = sweep
         self._stop.clear()
+        self.table, self.charts = None, {}  # the last sweep's results go: these are not theirs
+        self.chart_box.children = ()
+        self.chart_choice.layout.display = "none"
+        self.failed.value = ""
         self.progress.max = sweep.size
         self.progress.value = 0
         self.progress_text.value = f"0 of {sweep.size} cases"
