@@ -90,9 +90,11 @@ def mutated_sweeps(draw):
         if kind == "axis":
             axes = sweep.setdefault("axes", {})
             if isinstance(axes, dict):
-                axes[draw(st.sampled_from(AXIS_FIELDS))] = draw(AXIS_VALUES)
+                # copies: st.just draws the same object each time, and later steps edit
+                # it (an example then differs when replayed: FlakyStrategyDefinition)
+                axes[draw(st.sampled_from(AXIS_FIELDS))] = _copy(draw(AXIS_VALUES))
         elif kind == "climates":
-            sweep[draw(st.sampled_from(["climates", "climate_folder"]))] = draw(CLIMATES)
+            sweep[draw(st.sampled_from(["climates", "climate_folder"]))] = _copy(draw(CLIMATES))
         elif kind == "base":
             sweep["base"] = draw(st.one_of(st.sampled_from(BASES), values))
         elif kind == "key":
