@@ -792,8 +792,8 @@ def _dew_point_table(step):
     of ``step`` in ln pw [ln Pa] from below the lowest to above the highest saturation
     pressure of the formulation (-100 to 200 °C), one node exactly at the triple point.
 
-    Returns the first node, the number of intervals and, per interval, the Hermite
-    coefficients (t0, m0, c2, c3) of t = t0 + u (m0 + u (c2 + u c3)), 0 <= u <= 1: the
+    Returns the first node, the number of intervals and, per interval (one row each),
+    the Hermite coefficients (t0, m0, c2, c3) of t = t0 + u (m0 + u (c2 + u c3)), 0 <= u <= 1: the
     exact dew points (Eq. 36 on Eq. 5 or 6, by Newton from the closed forms of Eqs. 37
     and 38) and their slopes dt/d(ln pw) at both ends, each interval on one form.
     """
@@ -810,7 +810,7 @@ def _dew_point_table(step):
     (t0, m0), (t1, m1) = ends
     c2 = 3.0 * (t1 - t0) - 2.0 * m0 - m1
     c3 = 2.0 * (t0 - t1) + m0 + m1
-    return float(nodes[0]), nodes.size - 1, (t0, m0, c2, c3)
+    return float(nodes[0]), nodes.size - 1, np.stack((t0, m0, c2, c3), axis=1)
 
 
 _LN_PWS_TRIPLE = float(np.log(_PWS_TRIPLE))
@@ -830,14 +830,14 @@ def _dew_point_from_table(ln_pw):
     piece = np.fmin(np.fmax(u, 0.0), _DEW_TABLE_INTERVALS - 1.0).astype(np.intp)
     np.clip(u, 0.0, _DEW_TABLE_INTERVALS, out=u)
     u -= piece
-    t0, m0, c2, c3 = (np.take(c, piece) for c in _DEW_TABLE)
-    c3 *= u
-    c3 += c2
-    c3 *= u
-    c3 += m0
-    c3 *= u
-    c3 += t0
-    return np.clip(c3, DRYBULB_MIN_C, DRYBULB_MAX_C, out=c3)
+    c = np.take(_DEW_TABLE, piece, axis=0)  # one row of the piece's four coefficients
+    t = c[:, 3] * u
+    t += c[:, 2]
+    t *= u
+    t += c[:, 1]
+    t *= u
+    t += c[:, 0]
+    return np.clip(t, DRYBULB_MIN_C, DRYBULB_MAX_C, out=t)
 
 
 def dew_point_from_vapor_pressure(vapor_pressure, *, check=True):
@@ -1033,14 +1033,15 @@ def _wet_bulb_first_guess(t, w, p, pw, td):
     return numerator / (a_slope + CP_DRY_AIR + CP_LIQUID_WATER * w)
 
 
-def _wet_bulb_newton(x, t, w, p, hi, coefficients):
+def _wet_bulb_newton(x, t, w, p, hi, coefficients, skip=None):
     """Newton iterations on Eq. 33 or 35 of [1], ``x`` the first guess [°C] (overwritten)
     and ``hi`` [°C] the upper end of the bracket of the root.
 
     ``coefficients`` is (lo, a, b, c, k0 ... k9): the lower end of the bracket [°C], the
     psychrometer equation's a, b, c (:data:`_WET_BULB_WATER` or :data:`_WET_BULB_ICE`)
     and the saturation form at the root (:data:`_WATER_FORM` or :data:`_ICE_FORM`), each
-    a scalar or one value per element (see :data:`_WET_BULB_GROUPS`).
+    a scalar or one value per element (see :data:`_WET_BULB_GROUPS`). Elements at the
+    flat indices ``skip`` (solved elsewhere) are stepped but never iterated for.
     """
     lo, a, b, c, *form = coefficients
     # Multiplied through by its (positive) denominator, W(t*) = W reads
@@ -1088,11 +1089,112 @@ def _wet_bulb_newton(x, t, w, p, hi, coefficients):
         np.minimum(np.maximum(x_new, lo_a, out=x_new), hi_a, out=x_new)
         # Newton converges quadratically: |F''/(2 F')| stays below 0.11 /K from -100 to
         # 200 °C and 30 to 120 kPa (about 0.03 /K at room conditions), so after a
-        # Newton step under 1e-3 K the error left is below 1.1e-7 K: the element is done.
+        # Newton step under 9e-3 K the error left is below 0.11 * (9e-3)^2 = 8.9e-6 K,
+        # within WET_BULB_TOLERANCE_K: the element is done.
         f = np.abs(np.subtract(x_new, xa, out=f), out=f)
-        active = _store_step(x, active, x_new, f >= 1e-3)
+        moving = f >= _WET_BULB_DONE_STEP
+        if active is None and skip is not None:
+            moving[skip] = False
+        active = _store_step(x, active, x_new, moving)
         if active is not None and active.size == 0:
             break
+    return x
+
+
+#: The wet-bulb solver's accuracy [K]: every returned wet bulb lies within this of the
+#: root of Eq. 33/35 of [1]. A hundredth of the tolerance psychrolib bisects its wet bulb
+#: to (PSYCHROLIB_TOLERANCE = 0.001 K in SI, psychrolib 2.5 GetTWetBulbFromHumRatio),
+#: the reference implementation of the same equations (its answer lies within 5e-4 K
+#: of the root); far inside the 0.1 K within which CoolProp's HAPropsSI (a real-gas
+#: model) agrees at room conditions (tests/test_moist_air.py). A tighter figure would
+#: cost Newton steps and buy nothing any source states.
+WET_BULB_TOLERANCE_K = 1e-5
+#: A Newton step below this [K] leaves an error under 0.11 /K * step^2 < 8.9e-6 K.
+_WET_BULB_DONE_STEP = 9e-3
+#: Grid of the wet-bulb first-guess tables [°C]: dry bulb from -40 to 60 °C and dew-point
+#: depression (dry bulb minus dew point) from 0 to 40 K, both 0.5 K apart.
+_WB_TABLE_T0, _WB_TABLE_STEP, _WB_TABLE_NT, _WB_TABLE_ND = -40.0, 0.5, 201, 81
+_WB_TABLE_SIZE = _WB_TABLE_NT * _WB_TABLE_ND
+#: Wet-bulb tables by station pressure [Pa] (a site's year has one), 8 at most.
+_WB_TABLES: dict[float, np.ndarray] = {}
+_WB_TABLES_MAX = 8
+
+
+def _wet_bulb_tables(p):
+    """Roots [°C] of Eq. 33 with Eq. 6 (water) and of Eq. 35 with Eq. 5 (ice) of [1] at
+    the pressure ``p`` [Pa] on the grid of :data:`_WB_TABLE_T0` ..., as one row of four
+    bilinear coefficients per cell: the water table, then the ice table, each row-major
+    in (dry bulb, depression). Each form is solved on the whole grid (past 0 °C too), so
+    both are smooth and bilinear interpolation in either stays within a few 1e-4 K (5e-3
+    K where the dew point crosses the triple point). Solved once per pressure by
+    :func:`_wet_bulb_newton` to its full accuracy (about 2 ms), then kept."""
+    tables = _WB_TABLES.get(p)
+    if tables is None:
+        t = _WB_TABLE_T0 + _WB_TABLE_STEP * np.arange(_WB_TABLE_NT)
+        depression = _WB_TABLE_STEP * np.arange(_WB_TABLE_ND)
+        t, td = np.meshgrid(t, depression, indexing="ij")
+        t = t.ravel()
+        td = t - td.ravel()
+        w = humidity_ratio_from_dew_point(td, p, check=False)
+        pw = p * w / (MOLAR_MASS_RATIO + w)
+        tables = np.zeros((2, _WB_TABLE_NT, _WB_TABLE_ND, 4))
+        for k, group in enumerate((2, 0)):
+            _, *rest = _WET_BULB_GROUPS[group]
+            x = _wet_bulb_first_guess(t, w, p, pw, td)
+            x = _wet_bulb_newton(x, t, w, p, t, (DRYBULB_MIN_C, *rest))
+            x = x.reshape(_WB_TABLE_NT, _WB_TABLE_ND)
+            # per cell, f = c0 + c1 v + u (c2 + c3 v) with u, v from 0 to 1 across it
+            c = tables[k, :-1, :-1]
+            c[..., 0] = x[:-1, :-1]
+            c[..., 1] = x[:-1, 1:] - x[:-1, :-1]
+            c[..., 2] = x[1:, :-1] - x[:-1, :-1]
+            c[..., 3] = x[1:, 1:] - x[1:, :-1] - c[..., 1]
+        tables = tables.reshape(-1, 4)
+        if len(_WB_TABLES) >= _WB_TABLES_MAX:
+            del _WB_TABLES[next(iter(_WB_TABLES))]
+        _WB_TABLES[p] = tables
+    return tables
+
+
+def _wet_bulb_table_guess(t, td, p, on_ice):
+    """First guess of the wet bulb [°C] from the dry bulb ``t`` and dew point ``td``
+    [°C] (flat arrays), bilinear in the tables of :func:`_wet_bulb_tables` at the
+    scalar pressure ``p`` [Pa], the ice table where ``on_ice`` (a bool array, or a bool
+    for all). Within a few 1e-4 K of the root on the grid (-40 to 60 °C, up to 40 K of
+    dew-point depression), so that one Newton step reaches WET_BULB_TOLERANCE_K. None
+    when the pressure varies or an element lies off the grid (the closed form of
+    :func:`_wet_bulb_first_guess` serves then)."""
+    if np.ndim(p):
+        return None
+    u = t - _WB_TABLE_T0
+    u *= 1.0 / _WB_TABLE_STEP
+    v = t - td
+    v *= 1.0 / _WB_TABLE_STEP
+    if not (
+        u.min() >= 0.0
+        and u.max() < _WB_TABLE_NT - 1
+        and v.min() >= 0.0
+        and v.max() < _WB_TABLE_ND - 1
+    ):
+        return None
+    table = _wet_bulb_tables(float(p))
+    i = u.astype(np.intp)
+    j = v.astype(np.intp)
+    u -= i
+    v -= j
+    i *= _WB_TABLE_ND
+    i += j
+    if np.ndim(on_ice):
+        i += on_ice * _WB_TABLE_SIZE
+    elif on_ice:
+        i += _WB_TABLE_SIZE
+    c = np.take(table, i, axis=0)  # one row of the cell's four coefficients
+    x = c[:, 3] * v
+    x += c[:, 2]
+    x *= u
+    v *= c[:, 1]
+    x += v
+    x += c[:, 0]
     return x
 
 
@@ -1133,7 +1235,9 @@ def wet_bulb_from_humidity_ratio(drybulb, humidity_ratio, pressure, *, check=Tru
     Returns
     -------
     numpy.ndarray
-        Thermodynamic wet-bulb temperature [°C], converged to about 1e-7 K or better.
+        Thermodynamic wet-bulb temperature [°C], within :data:`WET_BULB_TOLERANCE_K`
+        (1e-5 K) of the root: a hundredth of psychrolib's convergence tolerance
+        (PSYCHROLIB_TOLERANCE, 0.001 K), the reference implementation of these equations.
 
     Notes
     -----
@@ -1146,8 +1250,10 @@ def wet_bulb_from_humidity_ratio(drybulb, humidity_ratio, pressure, *, check=Tru
 
     References
     ----------
-    ASHRAE Handbook Fundamentals 2017, Ch. 1, Eqs. 33 and 35; first guess from Eqs. 37
-    and 38.
+    ASHRAE Handbook Fundamentals 2017, Ch. 1, Eqs. 33 and 35; first guess bilinear in a
+    table of this solver's own roots over (dry bulb, dew-point depression) kept per
+    station pressure (:func:`_wet_bulb_tables`), or Eq. 33 linearised about the dew
+    point (Eqs. 37 and 38) off the table's grid or where the pressure varies.
 
     Examples
     --------
@@ -1187,7 +1293,6 @@ def wet_bulb_from_humidity_ratio(drybulb, humidity_ratio, pressure, *, check=Tru
         p_hot = p[hot] if np.ndim(p) else np.full(np.count_nonzero(hot), p)
         boiling = dew_point_from_vapor_pressure(0.9 * p_hot, check=False)
         hi[hot] = np.minimum(hi[hot], boiling)
-    x = _wet_bulb_first_guess(t, w, p, pw, td)
     # Near 0 °C Eqs. 33 and 35 can both have a root (they differ at the switch). Take
     # the wet bulb over water (Eq. 33) whenever it exists, the ice form otherwise.
     # Eq. 33 at twb = 0: W = (2501 Ws*(0) - 1.006 t) / (2501 + 1.86 t).
@@ -1215,11 +1320,31 @@ def wet_bulb_from_humidity_ratio(drybulb, humidity_ratio, pressure, *, check=Tru
     group *= 2
     group -= water_root_on_ice
     counts = np.bincount(group, minlength=3)
-    if counts.max() == group.size:
-        coefficients = tuple(_WET_BULB_GROUPS[int(group[0])])
-    else:
-        coefficients = tuple(np.take(column, group) for column in _WET_BULB_COLUMNS)
-    x = _wet_bulb_newton(x, t, w, p, hi, coefficients)
+    x = _wet_bulb_table_guess(t, td, p, ice if 0 < counts[0] < group.size else counts[0] > 0)
+    if x is None:
+        x = _wet_bulb_first_guess(t, w, p, pw, td)
+    major = int(np.argmax(counts))
+    coefficients = tuple(_WET_BULB_GROUPS[major])
+    if counts[major] == group.size:
+        x = _wet_bulb_newton(x, t, w, p, hi, coefficients)
+        return _out(x.reshape(shape))
+    # The largest group on the whole array with scalar coefficients, the others after
+    # it, alone, with one coefficient per element (in place on x; the others' guesses
+    # are taken first, as the first solve leaves their elements unconverged).
+    minor = np.flatnonzero(group != major)
+    x_minor = x[minor]
+    x = _wet_bulb_newton(x, t, w, p, hi, coefficients, skip=minor)
+    present = [g for g in range(3) if counts[g] and g != major]
+    if len(present) == 1:
+        coefficients = tuple(_WET_BULB_GROUPS[present[0]])
+    else:  # per element only where the two groups differ
+        group_minor = group[minor]
+        coefficients = tuple(
+            np.take(column, group_minor) if column[0] != column[1] else column[present[0]]
+            for column in _WET_BULB_COLUMNS[:, present]
+        )
+    p_minor = p[minor] if np.ndim(p) else p
+    x[minor] = _wet_bulb_newton(x_minor, t[minor], w[minor], p_minor, hi[minor], coefficients)
     return _out(x.reshape(shape))
 
 
