@@ -24,9 +24,11 @@ from typing import NamedTuple
 
 import numpy as np
 
+from plantside.constants import CP_LIQUID_WATER
 from plantside.plant.efficiency import iplv_band_weights
 from plantside.plant.part_load import part_load_bins
 from plantside.plant.staging import stage_machines
+from plantside.plant.water import water_density
 from plantside.study.figures import (
     PART_LOAD_THRESHOLD,
     HeadlineFigures,
@@ -857,16 +859,47 @@ def chart_derivations(
             u,
         )
 
-    if water_side is not None:
-        water = _water_derivation(water_side, u)
-        if water is not None:
-            out["water"] = water
+    if water_side is not None and water_side.chiller_options and scenario.water_side is not None:
+        out["water"] = _water_derivation(water_side, scenario.water_side.chilled_water, u)
     return out
 
 
-def _water_derivation(water_side, u: _Units) -> Derivation | None:
-    """The chilled-water flow of the first cooling option at its design load."""
-    rows = getattr(water_side, "rows", None)
-    if rows is None or len(rows) == 0:
-        return None
-    return None
+def _water_derivation(water_side, chilled_water, u: _Units) -> Derivation:
+    """The first cooling option's design chilled-water flow from its design load."""
+    name, year = water_side.chiller_options[0]
+    load = float(year.design["design_load_kW"])
+    flow = float(year.design["chilled_water_flow_m3s"])
+    supply = float(chilled_water.supply_temperature)
+    delta = float(chilled_water.design_delta_t)
+    mean = supply + delta / 2.0
+    rho = float(water_density(mean))
+    shown, flow_unit = u("water_flow", flow), u.label("water_flow")
+    steps = [
+        (
+            f"mean water temperature t = t_supply + ΔT/2 = {number_text(supply)} + "
+            f"{number_text(delta)}/2 °C = {number_text(mean)} °C; ρ(t) = {number_text(rho)} kg/m³",
+            Check("a + b / 2", {"a": supply, "b": delta}, mean),
+        ),
+        (
+            f"V = Q / (ρ·c_p·ΔT) = {number_text(load)} kW / ({number_text(rho)} kg/m³ × "
+            f"{CP_LIQUID_WATER:g} kJ/(kg·K) × {number_text(delta)} K) = {flow:.5f} m³/s",
+            Check("q / (r * c * d)", {"q": load, "r": rho, "c": CP_LIQUID_WATER, "d": delta}, flow),
+        ),
+        (
+            f"V = {flow:.5f} m³/s = {number_text(shown)} {flow_unit}",
+            Check("", {}, shown),
+        ),
+    ]
+    return _derivation(
+        "water",
+        f"Design chilled-water flow of {name} (its design load at the design temperature "
+        "difference)",
+        f"{number_text(shown)} {flow_unit}",
+        steps,
+        (),
+        "Heat balance of the water Q = ρ c_p V ΔT; c_p of liquid water from ASHRAE Handbook "
+        "Fundamentals 2017 Ch. 1 (Eq. 33), ρ(t) from plantside.plant.water.water_density; "
+        "the temperatures are the scenario's [plant.chilled_water]",
+        shown,
+        u,
+    )
