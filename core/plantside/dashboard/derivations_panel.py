@@ -1,0 +1,114 @@
+"""The dashboard's "How this is worked out" disclosures: one per headline figure and chart.
+
+:class:`DerivationsPanel` holds an ``ipywidgets.HTML`` with the headline figures'
+disclosures (:attr:`DerivationsPanel.figures`) and one per chart
+(:meth:`DerivationsPanel.for_chart`). :meth:`DerivationsPanel.update` refreshes
+them from the state's current result and units: the derivations read the numbers of
+that result (:func:`plantside.charts.derivation_html.view_derivations`, the same
+figures, loads and design points the cards and charts show) and only build strings;
+an unchanged result and unit system is skipped.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Callable
+
+import ipywidgets as widgets
+
+from plantside.charts.derivation_html import derivation_html, derivations_html, view_derivations
+from plantside.charts.study_frames import ChartView
+from plantside.errors import InputRangeError, PlantsideError
+from plantside.study.derivations import CHART_KEYS, HEADLINE_KEYS
+from plantside.study.figures import ViewLoads
+
+__all__ = ["DerivationsPanel"]
+
+
+class DerivationsPanel:
+    """The derivations of the figures and charts on show.
+
+    Parameters
+    ----------
+    state : DashboardState
+        The dashboard's state (its ``result``, ``scenario`` and ``inputs``).
+    plant : bool
+        True on the plant page (the plant's figures), False on an air handler's.
+    water_side : callable, optional
+        Returns the water side of the state's result (the water-side panel's
+        ``water_side``, so it is run once); without it there is no ``"water"``
+        disclosure.
+    """
+
+    def __init__(self, state, plant: bool, water_side: Callable | None = None):
+        if bool(plant) != (state.view == "plant"):
+            raise InputRangeError(
+                "plant",
+                f"plant = {plant!r} on a state whose view is {state.view!r}",
+                "True with the plant view, False with an air handler's",
+            )
+        self.state = state
+        self.plant = bool(plant)
+        self._water_side = water_side
+        self.figures = widgets.HTML("")
+        self.figures.add_class("plantside-derivations")
+        self._charts = {name: widgets.HTML("") for name in CHART_KEYS}
+        for box in self._charts.values():
+            box.add_class("plantside-derivations")
+        self._key = None
+        self.derivations: dict = {}
+        self.update()
+
+    def for_chart(self, name: str) -> widgets.HTML:
+        """The disclosure under chart ``name`` (one of
+        :data:`plantside.study.derivations.CHART_KEYS`)."""
+        if name not in self._charts:
+            raise KeyError(f"unknown chart {name!r}; one of {', '.join(CHART_KEYS)}")
+        return self._charts[name]
+
+    def _view(self, result) -> ChartView:
+        shown = result.unit
+        return ChartView(
+            plant=self.plant,
+            figures=result.figures,
+            loads=ViewLoads(result.coil_load, result.zone_load),
+            unit=shown.study,
+            sweep=shown.design.sweep,
+            outdoor_air_fraction=shown.inputs.outdoor_air_fraction,
+            weather=result.climate.weather,
+            climate=result.climate.source,
+        )
+
+    def update(self) -> bool:
+        """Refresh from the state's current result and unit system.
+
+        Returns
+        -------
+        bool
+            True when the disclosures were rebuilt (False: the same result and units).
+        """
+        state = self.state
+        result = state.result
+        system = state.inputs.unit_system
+        if self._key is not None and self._key[0] is result and self._key[1] == system:
+            return False
+        water = None
+        if self.plant and self._water_side is not None:
+            try:
+                water = self._water_side()
+            except PlantsideError:  # the water-side panel says why; no disclosure here
+                water = None
+        units = [unit.study for unit in result.units]
+        self.derivations = view_derivations(
+            state.scenario, units, self._view(result), system, water_side=water
+        )
+        self.figures.value = derivations_html(
+            (self.derivations[k] for k in HEADLINE_KEYS), plant=self.plant
+        )
+        for name, box in self._charts.items():
+            box.value = (
+                derivation_html(self.derivations[name], plant=self.plant)
+                if name in self.derivations
+                else ""
+            )
+        self._key = (result, system)  # the result itself: an id could be reused
+        return True
