@@ -155,3 +155,40 @@ def test_a_batch_whose_worker_dies_is_resubmitted_once_then_recorded_failed(
     assert (again.computed, again.skipped, again.failed) == (1, 11, 0)
     single = run_sweep(sweep, tmp_path / "single", workers=1)
     pd.testing.assert_frame_equal(again.table, single.table, check_exact=False, rtol=1e-12)
+
+
+def test_tasks_dropped_with_the_only_copy_of_the_sweep_are_resubmitted(
+    sweep, tmp_path, monkeypatch
+):
+    # One worker: when it dies, the scattered sweep dies with it and the scheduler drops
+    # the task queued behind the dying one (its input is gone: CancelledError, not
+    # KilledWorker). That task is resubmitted with a fresh copy, not counted as its try;
+    # only the batch that kills its worker twice is recorded failed.
+    import functools
+    import os
+
+    import dask
+    import plantside.study.sweep_run as sweep_run
+    import sweep_faults
+
+    doomed = sweep.cases[2]
+    dying = functools.partial(
+        sweep_faults.dying_run_batch, frozenset({doomed.case_id}), None, os.getpid()
+    )
+    with (
+        dask.config.set({"distributed.scheduler.allowed-failures": 0}),
+        distributed.LocalCluster(
+            host="127.0.0.1",
+            n_workers=1,
+            threads_per_worker=1,
+            processes=True,
+            dashboard_address=None,
+        ) as local,
+        distributed.Client(local) as client,
+    ):
+        monkeypatch.setattr(sweep_run, "run_batch", dying)
+        run = run_sweep(sweep, tmp_path / "out", client=client, batch_size=1)
+    table = run.table.set_index("case_id")
+    assert (run.computed, run.failed, len(table)) == (12, 1, 12)
+    assert table.loc[doomed.case_id, "status"] == "failed"
+    assert (table.drop(doomed.case_id)["status"] == "ok").all()

@@ -19,6 +19,7 @@ scattered sweep died with its workers is submitted again with a fresh copy (up t
 
 from __future__ import annotations
 
+import time
 from concurrent.futures import CancelledError
 
 from plantside.errors import InputRangeError
@@ -112,9 +113,23 @@ def run_dask(sweep, batches, client, on_done, run_batch):
                 finished, _ = distributed.wait(list(futures), return_when="FIRST_COMPLETED")
             except CancelledError:  # wait() raises for a dropped task: take it from here
                 finished = [f for f in futures if f.status in ("cancelled", "finished", "error")]
+                if not finished:  # the statuses are not in yet
+                    time.sleep(0.05)
             for future in finished:
                 batch, tries = futures.pop(future)
-                if future.status == "cancelled":  # its copy of the sweep died with its worker
+                # (a result lost with a dead worker is recomputed: exception() waits for it;
+                # if the sweep it needs died too, the task is dropped: CancelledError)
+                frame = None
+                try:
+                    if future.status == "cancelled":
+                        raise CancelledError
+                    error = future.exception()
+                    if error is None:
+                        frame = future.result()
+                except CancelledError:
+                    error = CancelledError()
+                if isinstance(error, CancelledError):
+                    # its copy of the sweep died with its worker: not the batch's doing
                     lost[id(batch)] = lost.get(id(batch), 0) + 1
                     if lost[id(batch)] > MAX_LOST_COPIES:
                         on_done(failed_rows(sweep, batch, *WORKER_DIED))
@@ -122,12 +137,10 @@ def run_dask(sweep, batches, client, on_done, run_batch):
                     if scattered[-1].status != "finished":
                         scattered += client.scatter([sweep], broadcast=True, hash=False)
                     again = client.submit(run_batch, scattered[-1], batch, pure=False)
-                    futures[again] = (batch, tries)  # not the batch's doing: same try
+                    futures[again] = (batch, tries)  # the same try
                     continue
-                # (a result lost with a dead worker is recomputed: exception() waits for it)
-                error = future.exception()
                 if error is None:
-                    on_done(future.result())
+                    on_done(frame)
                 elif not isinstance(error, distributed.KilledWorker):
                     future.result()  # an unexpected error: raise it
                 elif tries > 1:
