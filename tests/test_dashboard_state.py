@@ -32,7 +32,7 @@ from plantside.dashboard.state import (
     display_text,
 )
 from plantside.errors import InputRangeError
-from plantside.study.scenario import load_scenario, loads_scenario
+from plantside.study.scenario import dumps_scenario, load_scenario, loads_scenario
 from plantside.units import tons_from_kw
 
 EXAMPLE = Path(__file__).resolve().parents[1] / "example_data" / "scenarios" / "quillon_clinic.toml"
@@ -814,3 +814,96 @@ def test_model_text_reads_in_the_units_on_show():
     assert display_text(text, "IP") == (
         "supply 37.4 °F is outside 39.2 to 74.3 °F; 10.0 tons unmet; 3.41 ton·h; 0.5 K"
     )
+
+
+# --------------------------------------------------------------------------- the plant
+def test_plant_option_chooser_sets_the_machines_and_names_them(scenario):
+    state = DashboardState(scenario, view="plant")
+    design = state.result.figures.design_coil_load
+    assert state.option_names("cooling") == tuple(o.name for o in scenario.cooling_options)
+    assert state.result.figures.option_name == scenario.cooling_options[0].name
+    assert state.set("cooling_option", 1)
+    chosen = scenario.cooling_options[1]
+    figures = state.result.figures
+    assert figures.option_name == chosen.name
+    # each machine is its fraction of the plant design capacity (the scenario's definition
+    # of an option; design capacity = design load x (1 + margin / 100))
+    capacity = design * (1 + scenario.cooling_margin_percent / 100)
+    np.testing.assert_allclose(
+        figures.machine_capacities, np.asarray(chosen.capacity_fractions) * capacity, rtol=1e-12
+    )
+    assert figures.design_coil_load == design  # the option stages the plant, it does not size it
+    assert state.last_update["recomputed"] == ()  # no year was recomputed for it
+    # the stage lines and the efficiency chart name the option
+    dashboard = Dashboard(scenario, view="plant")
+    dashboard.state.set("cooling_option", 2)
+    lines = {r["line"] for r in chart_rows(dashboard, "distribution") if r.get("line")}
+    assert any(scenario.cooling_options[2].name in line for line in lines), lines
+    assert scenario.cooling_options[2].name in dashboard.stamp()
+
+
+@pytest.mark.parametrize(
+    ("control", "value"),
+    [
+        ("cooling_option", 9),
+        ("cooling_option", -1),
+        ("cooling_option", True),
+        ("cooling_option", "1"),
+        ("heating_option", 5),
+        ("cooling_margin_percent", 80.0),
+        ("cooling_margin_percent", -1.0),
+        ("cooling_margin_percent", float("nan")),
+        ("cooling_margin_percent", True),
+        ("heating_margin_percent", "10"),
+    ],
+)
+def test_plant_controls_refuse_bad_values_and_keep_the_input(scenario, control, value):
+    state = DashboardState(scenario, view="plant")
+    before = state.inputs
+    assert not state.set(control, value)
+    assert state.inputs == before
+    message = state.messages[control]
+    kind = control.split("_")[0]
+    assert kind in message.lower()  # names the field
+    if "margin" in control and not isinstance(value, bool | str):
+        assert "0 to 50 %" in message  # and the allowed range, in %
+
+
+def test_sizing_margin_sizes_the_plant_is_stamped_and_saved(scenario):
+    state = DashboardState(scenario, view="plant")
+    design = state.result.figures.design_coil_load
+    assert state.inputs.cooling_margin_percent == scenario.cooling_margin_percent
+    assert state.set("cooling_margin_percent", 25.0)
+    figures = state.result.figures
+    # design capacity = design load x (1 + margin / 100) (the scenario file's definition)
+    assert figures.recommended_capacity == pytest.approx(design * 1.25, rel=1e-12)
+    assert figures.design_coil_load == design
+    assert state.last_update["recomputed"] == ()
+    assert not state.stale
+    assert "cooling margin 25 %" in state.result.inputs.stamp(state.scenario, True)
+    saved = loads_scenario(dumps_scenario(state.current_scenario()), "saved.toml")
+    assert saved.cooling_margin_percent == 25.0
+    assert state.set("heating_margin_percent", 30.0)
+    plants = state.plants()
+    assert plants.heating.design_capacity == pytest.approx(plants.heating.design_load * 1.3)
+
+
+def test_the_plants_are_those_of_the_study_of_the_saved_scenario(scenario):
+    """The plant part of the page equals ``plantside design`` of the scenario it would save
+    (the study's own run_study, not a second calculation)."""
+    from plantside.study.run import run_study
+
+    state = DashboardState(scenario, view="plant", air_handler=first_recirculating_unit(scenario))
+    assert state.set("cooling_margin_percent", 20.0)
+    assert state.set("design_percent", 1.0)
+    assert state.set("outdoor_air_fraction", 0.4)
+    plants = state.plants()
+    study = run_study(state.current_scenario())
+    for kind in ("cooling", "heating"):
+        mine, theirs = getattr(plants, kind), getattr(study, kind)
+        assert mine.design_load == pytest.approx(theirs.design_load, rel=1e-9), kind
+        assert mine.design_capacity == pytest.approx(theirs.design_capacity, rel=1e-9), kind
+        np.testing.assert_allclose(mine.hourly_load, theirs.hourly_load, rtol=1e-9, atol=1e-9)
+        pd.testing.assert_frame_equal(mine.stage_hours, theirs.stage_hours)
+    assert plants.cooling.design_load == pytest.approx(state.result.figures.design_coil_load)
+    assert state.plants() is plants  # once per result

@@ -370,8 +370,9 @@ class Dashboard:
             return (*base, designs)
         if name == "year":
             return (*base, units, result.inputs.air_handler)
-        if name == "distribution":
-            return (*base, units, designs)
+        if name == "distribution":  # the plant option's machines: its stage lines and weights
+            machines = (result.figures.option_name, result.figures.machine_capacities)
+            return (*base, units, designs, machines)
         if name == "psychrometric":
             return (*base, id(shown.design), result.climate.source, result.inputs.air_handler)
         return (
@@ -486,7 +487,7 @@ class Dashboard:
         now = self.state.result.figures
         pinned_result = self.state.pinned_result()
         pinned = pinned_result.figures if pinned_result is not None else None
-        margin = self.state.scenario.cooling_margin_percent
+        margin = self.state.result.inputs.cooling_margin_percent  # as set on the page
 
         def power(v):
             return _quantity("power", v, system)

@@ -169,6 +169,8 @@ class DashboardState(ControlRules, ControlMessages, ResultAssembly):
             design_percent=float(scenario.cooling_design_percent),
             climate=climate,
             unit_system=UnitSystem.parse(scenario.unit_system).value,
+            cooling_margin_percent=float(scenario.cooling_margin_percent),
+            heating_margin_percent=float(scenario.heating_margin_percent),
         )
         self._zone_loads: dict[tuple[str, int], object] = {}
         self._climates = {}  # placed at this scenario's site (the sun on glazed zones)
@@ -261,10 +263,11 @@ class DashboardState(ControlRules, ControlMessages, ResultAssembly):
         """True when the result on show is not that of the current inputs."""
         shown = self.result.inputs
         current = self.inputs
-        return (shown.units, shown.design_percent, shown.climate) != (
+        return (shown.units, shown.design_percent, shown.climate, shown.plant_key()) != (
             current.units,
             current.design_percent,
             current.climate,
+            current.plant_key(),
         )
 
     def load_scenario(self, scenario: Scenario) -> None:
@@ -301,7 +304,7 @@ class DashboardState(ControlRules, ControlMessages, ResultAssembly):
             if climate in BUNDLED_CLIMATES
             else {"climate": None, "weather_file": climate.split(": ", 1)[-1]}
         )
-        return replace(scenario, cooling_design_percent=self.inputs.design_percent, **site)
+        return replace(self.inputs.plant_scenario(scenario), **site)
 
     # ---------------------------------------------------------------- climates
     def add_weather_file(self, name: str, content: bytes) -> str:

@@ -21,10 +21,18 @@ from plantside.charts.labels import ECONOMIZER_CHOICES, FAN_CHOICES, inputs_stam
 from plantside.climate.bundled import BUNDLED_CLIMATES
 from plantside.climate.design_conditions import COOLING_PERCENTS
 from plantside.errors import InputRangeError
-from plantside.study.figures import control_values
+from plantside.study.figures import control_values, plant_option_specs
 from plantside.units import UnitSystem, to_display
 
-__all__ = ["CONTROLS", "UNIT_CONTROLS", "ControlRules", "DashboardInputs", "UnitInputs"]
+__all__ = [
+    "CONTROLS",
+    "MARGIN_MAX_PERCENT",
+    "PLANT_CONTROLS",
+    "UNIT_CONTROLS",
+    "ControlRules",
+    "DashboardInputs",
+    "UnitInputs",
+]
 
 
 #: Controls that belong to one air handler.
@@ -37,10 +45,23 @@ UNIT_CONTROLS = (
     "bypass_factor",
     "leaving_dew_point",
 )
+#: Controls of the plant: sizing margins [%] and the plant option shown (an index).
+PLANT_CONTROLS = (
+    "cooling_margin_percent",
+    "heating_margin_percent",
+    "cooling_option",
+    "heating_option",
+)
+#: Highest sizing margin the margin controls offer [%] (a scenario's larger margin
+#: widens its control); margins above a few tens of percent are oversizing, not margin
+#: (common practice (no source)).
+MARGIN_MAX_PERCENT = 50.0
 #: Every control -> what it makes the state recompute.
 CONTROLS: dict[str, str] = {
     **dict.fromkeys(UNIT_CONTROLS, "unit"),
     "design_percent": "design",
+    # the plant's sizing and the option its stage lines draw: the figures only, no year
+    **dict.fromkeys(PLANT_CONTROLS, "plant"),
     "climate": "climate",
     "air_handler": "view",
     "unit_system": "none",
@@ -185,6 +206,9 @@ class DashboardInputs:
     ``units`` holds one :class:`UnitInputs` per air handler; ``air_handler``
     is the index of the one the controls show. The air-handler controls are
     also readable directly (``inputs.outdoor_air_fraction``) for the one shown.
+    ``cooling_margin_percent`` and ``heating_margin_percent`` [%] size the plants
+    (the scenario's, until moved); ``cooling_option`` and ``heating_option`` index the
+    plant option whose machines the stage lines and efficiency chart draw.
     """
 
     units: tuple[UnitInputs, ...]
@@ -192,6 +216,23 @@ class DashboardInputs:
     design_percent: float
     climate: str
     unit_system: str
+    cooling_margin_percent: float = 10.0
+    heating_margin_percent: float = 10.0
+    cooling_option: int = 0
+    heating_option: int = 0
+
+    def plant_key(self) -> tuple:
+        """The plant controls' values (what a plant-only change moves)."""
+        return tuple(getattr(self, name) for name in PLANT_CONTROLS)
+
+    def plant_scenario(self, scenario):
+        """``scenario`` with the design condition and sizing margins set here."""
+        return replace(
+            scenario,
+            cooling_design_percent=self.design_percent,
+            cooling_margin_percent=self.cooling_margin_percent,
+            heating_margin_percent=self.heating_margin_percent,
+        )
 
     @property
     def unit(self) -> UnitInputs:
@@ -221,13 +262,23 @@ class DashboardInputs:
             (spec.settings, unit.apply(spec.settings))
             for unit, spec in zip(self.units, scenario.air_handlers, strict=True)
         ]
-        return inputs_stamp(
+        text = inputs_stamp(
             self.climate,
             self.design_percent,
             units,
             shown=self.air_handler,
             plant_view=plant_view,
             system=system or self.unit_system,
+        )
+        return f"{text} · {self.plant_stamp(scenario)}"
+
+    def plant_stamp(self, scenario) -> str:
+        """The sizing margins and the plant options shown, for the stamp."""
+        cooling = plant_option_specs(scenario.cooling_options, "cooling")[self.cooling_option]
+        heating = plant_option_specs(scenario.heating_options, "heating")[self.heating_option]
+        return (
+            f"cooling margin {self.cooling_margin_percent:g} %, option {cooling.name} · "
+            f"heating margin {self.heating_margin_percent:g} %, option {heating.name}"
         )
 
 
@@ -366,6 +417,16 @@ class ControlRules:
                     f"{shown(low)} to {shown(high)}",
                 )
 
+    def margin_max(self, kind: str) -> float:
+        """Highest sizing margin the ``kind`` ("cooling"/"heating") control accepts [%]."""
+        return max(MARGIN_MAX_PERCENT, float(getattr(self.scenario, f"{kind}_margin_percent")))
+
+    def option_names(self, kind: str) -> tuple[str, ...]:
+        """The scenario's ``kind`` plant options by name (one 100 % machine if it has none)."""
+        return tuple(
+            s.name for s in plant_option_specs(getattr(self.scenario, f"{kind}_options"), kind)
+        )
+
     def climate_choices(self) -> tuple[str, ...]:
         """Bundled fictional sites, then uploaded files."""
         return tuple(BUNDLED_CLIMATES) + tuple(self.uploaded)
@@ -411,6 +472,28 @@ class ControlRules:
                 f"design condition {number:g} % is not one of 0.4, 1, 2 %",
                 "0.4, 1 or 2 %",
             )
+        if control in ("cooling_margin_percent", "heating_margin_percent"):
+            kind = control.split("_")[0]
+            return _finite_float(
+                f"{kind.capitalize()} sizing margin", value, 0.0, self.margin_max(kind), "%"
+            )
+        if control in ("cooling_option", "heating_option"):
+            kind = control.split("_")[0]
+            names = self.option_names(kind)
+            if isinstance(value, bool) or not isinstance(value, int | np.integer):
+                raise InputRangeError(
+                    f"{kind.capitalize()} plant option",
+                    f"{kind} plant option {value!r:.40} is not an option number",
+                    f"0..{len(names) - 1}",
+                )
+            if not 0 <= int(value) < len(names):
+                raise InputRangeError(
+                    f"{kind.capitalize()} plant option",
+                    f"{kind} plant option {value} does not exist; the scenario has "
+                    f"{len(names)}: {', '.join(names)}",
+                    f"0..{len(names) - 1}",
+                )
+            return int(value)
         if control == "climate":
             return _choice("Climate", value, self.climate_choices())
         if control == "air_handler":

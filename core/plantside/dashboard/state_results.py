@@ -24,7 +24,7 @@ from plantside.dashboard.state_inputs import DashboardInputs, UnitInputs
 from plantside.errors import InputRangeError
 from plantside.study.design_sweep import DESIGN_KINDS, design_outdoor_air_sweep
 from plantside.study.figures import HeadlineFigures, headline_figures, view_loads
-from plantside.study.run import AirHandlerResult, run_air_handler
+from plantside.study.run import AirHandlerResult, StudyResult, assemble_plants, run_air_handler
 
 __all__ = ["ClimatePart", "DashboardResult", "DesignPart", "ResultAssembly", "UnitResult"]
 
@@ -201,14 +201,45 @@ class ResultAssembly:
             units.append(UnitResult(spec.settings.name, unit_inputs, design, study.hourly, study))
         return self._assemble(inputs, climate, tuple(units))
 
+    def plants(self, result: DashboardResult | None = None) -> StudyResult:
+        """The cooling and heating plants of ``result`` (default: the one on show).
+
+        The study's own :func:`plantside.study.run.assemble_plants` of the air handlers'
+        years, with the design condition and margins set on the page (as
+        ``plantside design`` of the saved scenario gives them). Computed when first
+        asked for (the plant's part of the page), once per result.
+        """
+        result = self.result if result is None else result
+        cache = self.__dict__.setdefault("_plants", {})
+        key = id(result)
+        if key not in cache or cache[key][0] is not result:
+            if len(cache) > 4:
+                cache.clear()
+            cache[key] = (
+                result,
+                assemble_plants(
+                    result.inputs.plant_scenario(self.scenario),
+                    result.climate.weather,
+                    result.climate.conditions,
+                    tuple(unit.study for unit in result.units),
+                ),
+            )
+        return cache[key][1]
+
     def _assemble(self, inputs, climate, units) -> DashboardResult:
         """The view's figures and loads, by the study layer's functions (as the CLI's)."""
-        scenario = self.scenario
+        scenario = inputs.plant_scenario(self.scenario)  # with the margins set on the page
         studies = [unit.study for unit in units]
         index = inputs.air_handler if self.view == "air_handler" else None
         loads = view_loads(studies, scenario.distribution_gain_percent, index)
         figures = headline_figures(
-            scenario, studies, climate.conditions, inputs.design_percent, index, loads
+            scenario,
+            studies,
+            climate.conditions,
+            inputs.design_percent,
+            index,
+            loads,
+            cooling_option=inputs.cooling_option,
         )
         numbers = (
             figures.design_zone_load,

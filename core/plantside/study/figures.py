@@ -250,6 +250,7 @@ def headline_figures(
     cooling_percent: float | None = None,
     air_handler: int | None = None,
     loads: ViewLoads | None = None,
+    cooling_option: int = 0,
 ) -> HeadlineFigures:
     """The headline figures of the plant (``air_handler=None``) or of one air handler.
 
@@ -268,6 +269,9 @@ def headline_figures(
         Index of the air handler whose figures are wanted; None for the plant.
     loads : ViewLoads, optional
         :func:`view_loads` of the same view, when already computed.
+    cooling_option : int, optional
+        Index of the scenario's cooling plant option whose machines are given
+        (``option_name``, ``machine_capacities``); default the first.
 
     Returns
     -------
@@ -292,7 +296,7 @@ def headline_figures(
         design_zone = float(zone_load(point.loads))
         design_loads = design_load_breakdown([unit], kind, None)
     capacity = float(design_capacity_from_design_load(design_coil, scenario.cooling_margin_percent))
-    spec = plant_option_specs(scenario.cooling_options, "cooling")[0]
+    spec = plant_option_specs(scenario.cooling_options, "cooling")[cooling_option]
     option = PlantOption.from_fractions(
         spec.name, max(capacity, 1e-6), spec.capacity_fractions, spec.minimum_turndown
     )
