@@ -669,3 +669,19 @@ def test_wet_bulb_table_path_agrees_with_the_closed_form_path():
         assert np.median(np.abs(guess - on_table[grid])) < 1e-3
         assert np.max(np.abs(guess - on_table[grid])) < 0.05
     assert len(ma._WB_TABLES) <= ma._WB_TABLES_MAX
+
+
+def test_wet_bulb_with_all_three_groups_of_the_solver():
+    # Ice roots, water roots in the 0 to 0.01 °C band (Eq. 33 with the ice form Eq. 5)
+    # and water roots: whichever group is largest, each element is the root of its own
+    # equation (ASHRAE 2017 Ch. 1, Eqs. 33/35), as when solved one at a time.
+    band = ma.humidity_ratio_from_wet_bulb(5.0, 0.005, P_STD)  # root at 0.005 °C
+    cases = [(-10.0, 0.0005), (5.0, float(band)), (25.0, 0.01)]
+    alone = [float(ma.wet_bulb_from_humidity_ratio(t, w, P_STD)) for t, w in cases]
+    assert 0.0 <= alone[1] <= 0.01
+    for counts in ((5, 1, 1), (1, 5, 1), (1, 1, 5), (3, 3, 0), (0, 3, 4)):
+        t = np.repeat([c[0] for c in cases], counts)
+        w = np.repeat([c[1] for c in cases], counts)
+        expected = np.repeat(alone, counts)
+        wet_bulb = ma.wet_bulb_from_humidity_ratio(t, w, P_STD)
+        np.testing.assert_allclose(wet_bulb, expected, atol=2 * ma.WET_BULB_TOLERANCE_K)

@@ -1339,9 +1339,10 @@ def wet_bulb_from_humidity_ratio(drybulb, humidity_ratio, pressure, *, check=Tru
         coefficients = tuple(_WET_BULB_GROUPS[present[0]])
     else:  # per element only where the two groups differ
         group_minor = group[minor]
+        first, second = present
         coefficients = tuple(
-            np.take(column, group_minor) if column[0] != column[1] else column[present[0]]
-            for column in _WET_BULB_COLUMNS[:, present]
+            np.take(column, group_minor) if column[first] != column[second] else column[first]
+            for column in _WET_BULB_COLUMNS
         )
     p_minor = p[minor] if np.ndim(p) else p
     x[minor] = _wet_bulb_newton(x_minor, t[minor], w[minor], p_minor, hi[minor], coefficients)
