@@ -18,6 +18,7 @@ import numpy as np
 import pandas as pd
 import pytest
 from plantside.charts.sweep import sweep_charts
+from plantside.climate.bundled import BUNDLED_CLIMATES
 from plantside.dashboard.state import DashboardState
 from plantside.dashboard.sweep_panel import MAX_PANEL_CASES, SweepPanel
 from plantside.study.scenario import load_scenario
@@ -139,3 +140,40 @@ def test_stop_keeps_the_finished_cases(state):
     assert (panel.table["status"] == "ok").all()
     assert "Stopped" in panel.message.value
     assert not panel.run_button.disabled
+
+
+def test_the_pages_own_weather_file_is_a_climate_and_runs_as_the_command(tmp_path):
+    # a scenario naming a weather CSV on disk: the panel offers that file (ticked) beside
+    # the bundled climates; swept alone it is the base scenario's own climate, as a sweep
+    # file with no climates runs it
+    lab = ROOT / "example_data" / "scenarios" / "mesa_lab_weather_file.toml"
+    state = DashboardState(load_scenario(lab), view="plant")
+    panel = SweepPanel(state)
+    own = [name for name in panel.climates if name not in BUNDLED_CLIMATES]
+    assert len(own) == 1 and panel.chosen_climates() == own
+    panel.fraction.value = (0.2, 0.3)
+    panel.steps.value = 2
+    assert panel.start() and panel.join(timeout=300)
+    path = tmp_path / "sweep.toml"
+    path.write_text(
+        f'[sweep]\nbase = "{lab.as_posix()}"\n[sweep.axes]\n'
+        f'"air_handler[{panel.unit.value}].minimum_outdoor_air_fraction" = [0.2, 0.3]\n',
+        encoding="utf-8",
+    )
+    command = run_sweep(load_sweep(path), tmp_path / "out", workers=1).table
+    pd.testing.assert_frame_equal(panel.table, command, check_exact=False, rtol=1e-12)
+
+
+def test_a_scenario_loaded_on_the_page_gives_its_air_handlers(state):
+    panel = SweepPanel(state)
+    before = panel.unit.options
+    office = load_scenario(OFFICE)
+    state.load_scenario(office)
+    try:
+        assert panel.unit.options != before
+        assert [label for label, _ in panel.unit.options] == [
+            spec.settings.name for spec in office.air_handlers
+        ]
+        assert panel.build_sweep().base.title == office.title
+    finally:
+        state.load_scenario(load_scenario(CLINIC))

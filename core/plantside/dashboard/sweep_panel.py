@@ -96,20 +96,8 @@ class SweepPanel:
         self.charts: dict = {}
         self._thread: threading.Thread | None = None
         self._stop = threading.Event()
-        scenario = state.scenario
-        units = [
-            (f"{spec.settings.name}", str(i + 1))
-            for i, spec in enumerate(scenario.air_handlers)
-            if not spec.settings.all_outdoor_air
-        ]
-        if len(units) == len(scenario.air_handlers) and len(units) > 1:
-            units.append(("All air handlers", "*"))
-        first = str(first_recirculating_unit(scenario) + 1)
         self.unit = widgets.Dropdown(
-            options=units or [(scenario.air_handlers[0].settings.name, "1")],
-            value=first if any(v == first for _, v in units) else (units or [("", "1")])[0][1],
-            description="Air handler",
-            style={"description_width": "10em"},
+            options=[("", "1")], description="Air handler", style={"description_width": "10em"}
         )
         self.fraction = widgets.FloatRangeSlider(
             value=(0.1, 0.5),
@@ -129,17 +117,10 @@ class SweepPanel:
             style={"description_width": "10em"},
             layout=widgets.Layout(width="16em"),
         )
-        self.climates = {}
-        own = self._own_climate()
-        for name in BUNDLED_CLIMATES:
-            self.climates[name] = widgets.Checkbox(
-                value=name == state.inputs.climate, description=name, indent=False
-            )
-        if own is not None:
-            self.climates[own.label] = widgets.Checkbox(
-                value=True, description=f"{own.label} (this page's weather file)", indent=False
-            )
-        self._own = own
+        self.climates: dict[str, widgets.Checkbox] = {}
+        self._own: ClimateChoice | None = None
+        self._climate_box = widgets.VBox([])
+        self._note = widgets.HTML("")
         self.count = widgets.HTML()
         self.run_button = widgets.Button(description="Run sweep", button_style="primary")
         self.stop_button = widgets.Button(description="Stop", disabled=True)
@@ -151,16 +132,9 @@ class SweepPanel:
         self.failed = widgets.HTML("")
         self.run_button.on_click(lambda _: self.start())
         self.stop_button.on_click(lambda _: self.stop())
-        for control in (self.unit, self.fraction, self.steps, *self.climates.values()):
+        for control in (self.unit, self.fraction, self.steps):
             control.observe(lambda _: self._show_count(), names="value")
         self.chart_choice.observe(lambda _: self._show_chart(), names="value")
-        note = ""
-        if own is None and str(state.inputs.climate).startswith("upload: "):
-            note = (
-                "<div class='plantside-help'>An uploaded weather file is not swept here; "
-                "put it in a folder and run <code>plantside sweep</code> with "
-                "<code>climate_folder</code>.</div>"
-            )
         self.box = widgets.VBox(
             [
                 widgets.HTML(
@@ -171,8 +145,8 @@ class SweepPanel:
                 self.fraction,
                 self.steps,
                 widgets.HTML("<b>Climates</b>"),
-                widgets.VBox(list(self.climates.values())),
-                widgets.HTML(note),
+                self._climate_box,
+                self._note,
                 self.count,
                 widgets.HBox([self.run_button, self.stop_button]),
                 widgets.HBox([self.progress, self.progress_text]),
@@ -184,6 +158,52 @@ class SweepPanel:
         )
         self.box.add_class("plantside-sweep")
         self.chart_choice.layout.display = "none"
+        self._scenario = None
+        self._follow_page()
+        state.listeners.append(lambda _: self._follow_page())
+
+    def _follow_page(self) -> None:
+        """Air handlers of the page's scenario and its weather file among the climates
+        (on start, and after a scenario is loaded or another climate picked)."""
+        state = self.state
+        scenario = state.scenario
+        if scenario is not self._scenario:
+            self._scenario = scenario
+            units = [
+                (spec.settings.name, str(i + 1))
+                for i, spec in enumerate(scenario.air_handlers)
+                if not spec.settings.all_outdoor_air
+            ] or [(scenario.air_handlers[0].settings.name, "1")]
+            if len(units) == len(scenario.air_handlers) > 1:
+                units.append(("All air handlers", "*"))
+            first = str(first_recirculating_unit(scenario) + 1)
+            self.unit.options = units
+            self.unit.value = first if any(v == first for _, v in units) else units[0][1]
+        own = self._own_climate()
+        if not self.climates or own != self._own:
+            ticked = set(self.chosen_climates()) or {str(state.inputs.climate)}
+            boxes = {}
+            for name in BUNDLED_CLIMATES:
+                boxes[name] = self.climates.get(name) or widgets.Checkbox(
+                    value=name in ticked, description=name, indent=False
+                )
+            if own is not None:
+                boxes[own.label] = widgets.Checkbox(
+                    value=True, description=f"{own.label} (this page's weather file)", indent=False
+                )
+            for name, box in boxes.items():
+                if name not in self.climates:
+                    box.observe(lambda _: self._show_count(), names="value")
+            self.climates, self._own = boxes, own
+            self._climate_box.children = tuple(boxes.values())
+        uploaded = own is None and str(state.inputs.climate).startswith("upload: ")
+        self._note.value = (
+            "<div class='plantside-help'>An uploaded weather file is not swept here; put it "
+            "in a folder and run <code>plantside sweep</code> with <code>climate_folder</code>."
+            "</div>"
+            if uploaded
+            else ""
+        )
         self._show_count()
 
     # ------------------------------------------------------------------ planning
