@@ -276,6 +276,30 @@ def test_cautions_standard_and_the_studys_naming_the_air_handler(clinic, clinic_
         assert word in clinic_report
 
 
+def _sections(text: str) -> dict[str, str]:
+    """Each view's section of the page, by its anchor (``plant``, ``unit-0``, ...)."""
+    parts = re.split(r"<section class='ps-section' id='([^']+)'>", text)
+    return dict(zip(parts[1::2], parts[2::2], strict=True))
+
+
+def test_every_figure_and_chart_says_how_it_is_worked_out(clinic, clinic_report):
+    from plantside.study.derivations import HEADLINE_KEYS
+
+    page = parse(clinic_report)
+    sections = _sections(clinic_report)
+    assert set(sections) == {"plant", "inputs"} | {f"unit-{i}" for i in range(3)}
+    units = {"power": "tons", "energy": "ton·h", "hours": "h", None: ""}
+    for view in ["plant", "unit-0", "unit-1", "unit-2"]:
+        found = dict(re.findall(r"data-derivation='(\w+)' open>.*?<b>([^<]*)</b>", sections[view]))
+        assert set(found) == set(HEADLINE_KEYS) | set(CHARTS), view  # each one, opened
+        cells = _figures(page, view)
+        for field, _, quantity, _ in HEADLINE_FIGURES:  # the derivation ends on the figure
+            shown = html.unescape(cells[field]["text"])
+            assert html.unescape(found[field]) == f"{shown} {units[quantity]}".strip(), field
+    assert "data-derivation='water' open" in clinic_report  # under the water-side tables
+    assert clinic_report.count("<details") == 4 * (len(HEADLINE_KEYS) + len(CHARTS)) + 1
+
+
 def test_coil_schedule_and_water_side_tables(clinic_report):
     assert "Coil schedule: air" in clinic_report and "Coil schedule: loads" in clinic_report
     assert "Chilled-water plant options" in clinic_report

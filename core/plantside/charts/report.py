@@ -25,6 +25,7 @@ from datetime import datetime
 from plantside import __version__
 from plantside.air_handler.coil_schedule import coil_schedule
 from plantside.charts.compare import combine_scenarios
+from plantside.charts.derivation_html import DERIVATION_STYLE, report_derivations
 from plantside.charts.export import chart_bytes
 from plantside.charts.labels import condition_text
 from plantside.charts.report_inputs import inputs_html
@@ -282,16 +283,19 @@ def _cautions_html(result, notes, system) -> str:
     )
 
 
-def _water_html(result, system) -> str:
+def _water_side(result):
+    """The study's water side (as ``plantside design --json``), or the error saying why not."""
     try:
-        tables = water_side_html(run_water_side(result), result.scenario.water_side, system)
+        return run_water_side(result)
     except PlantsideError as error:  # said in place of the tables
-        return f"<p>⚠ {html.escape(display_text(str(error), system))}</p>"
+        return error
+
+
+def _water_html(result, water, system) -> str:
+    if isinstance(water, PlantsideError):
+        return f"<p>⚠ {html.escape(display_text(str(water), system))}</p>"
+    tables = water_side_html(water, result.scenario.water_side, system)
     return tables or "<p>The scenario has no water-side tables ([plant.chilled_water], ...).</p>"
-
-
-def _no_derivation(name, key, view) -> str:
-    return ""
 
 
 def design_report_html(
@@ -358,7 +362,17 @@ def design_report_html(
         pinned_views = dict(study_chart_views(pinned, pinned_climate, shown))
     chosen = [(key, views[key], pinned_views.get(key)) for key in keys]
     title = scenario.title
-    derivations = _no_derivation
+    water = _water_side(result)
+    hook = report_derivations(
+        result,
+        system,
+        water_side=None if isinstance(water, PlantsideError) else water,
+        opened=True,  # the printed page shows what a click would
+    )
+
+    def derivations(name, key, view) -> str:
+        # the disclosures' style sheet is in the page's head, once
+        return hook(name, key, view).replace(DERIVATION_STYLE, "")
 
     what = ", ".join(_view_name(key, view) for key, view, _ in chosen)
     if None in keys:  # the plant view's psychrometric and outdoor-air charts show one unit
@@ -386,7 +400,9 @@ def design_report_html(
     for key, view, before in chosen:
         chart_sections.append(
             f"<section class='ps-section' id='{_anchor(key)}'>"
-            f"<h2>{html.escape(_view_name(key, view))}: charts</h2>"
+            f"<h2>{html.escape(_view_name(key, view))}: figures and charts</h2>"
+            f"<h3>How the headline figures are worked out</h3>{derivations('figures', key, view)}"
+            "<h3>Charts</h3>"
             f"{_charts_html(key, view, before, system, title, when, caches, derivations)}"
             "</section>"
         )
@@ -395,7 +411,10 @@ def design_report_html(
         ("cautions", "Cautions for these inputs"),
         ("schedule", "Coil schedule"),
         ("water", "Water side"),
-        *((_anchor(key), f"{_view_name(key, view)}: charts") for key, view, _ in chosen),
+        *(
+            (_anchor(key), f"{_view_name(key, view)}: figures and charts")
+            for key, view, _ in chosen
+        ),
         ("inputs", "Inputs"),
     ]
     toc_html = "".join(f"<li><a href='#{a}'>{html.escape(t)}</a></li>" for a, t in toc)
@@ -406,14 +425,13 @@ def design_report_html(
         f"<main><div class='ps-caution' role='note'><p><b>Caution.</b></p>{caution}</div>"
         f"<nav class='ps-toc' aria-label='Contents'><b>Contents</b><ol>{toc_html}</ol></nav>"
         f"<section id='figures'><h2>Headline figures</h2>{_figures_table(chosen, system)}"
-        f"{derivations('figures', None, None)}"
         f"<div class='ps-keep'>{_plants_table(result, system)}</div></section>"
         f"<section id='cautions'><h2>Cautions for these inputs</h2>"
         f"{_cautions_html(result, notes, system)}</section>"
         "<section id='schedule'><h2>Coil schedule</h2>"
         f"<div class='ps-wide ps-schedule'>{schedule}</div></section>"
         f"<section id='water'><h2>Water side</h2><div class='ps-wide'>"
-        f"{_water_html(result, system)}</div></section>"
+        f"{_water_html(result, water, system)}</div>{derivations('water', None, None)}</section>"
         f"{''.join(chart_sections)}"
         f"<section class='ps-section' id='inputs'><h2>Inputs</h2>"
         f"{inputs_html(scenario, pinned.scenario if pinned is not None else None)}</section></main>"
@@ -425,5 +443,5 @@ def design_report_html(
         "<!DOCTYPE html>\n<html lang='en'><head><meta charset='utf-8'>"
         "<meta name='viewport' content='width=device-width, initial-scale=1'>"
         f"<title>Design report: {html.escape(title)}</title>"
-        f"<style>{REPORT_CSS}</style></head><body>{body}</body></html>\n"
+        f"<style>{REPORT_CSS}</style>{DERIVATION_STYLE}</head><body>{body}</body></html>\n"
     )
