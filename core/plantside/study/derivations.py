@@ -275,8 +275,11 @@ def _governing_points(units, kind: str, air_handler: int | None):
     return [(unit.name, unit.cooling_design.points[kind]) for unit in chosen]
 
 
-def _coil_steps(name: str, point, u: _Units, power_unit: str) -> list[tuple[str, Check]]:
-    """An air handler's coil load at a design point from its air states."""
+def _coil_steps(
+    name: str, point, u: _Units, power_unit: str, total_text: str | None = None
+) -> list[tuple[str, Check]]:
+    """An air handler's coil load at a design point from its air states; the last step
+    ends on ``total_text`` (default: the total as the steps print numbers)."""
     row = point.row
     m_si = float(row["supply_mass_flow_kgs"])
     h1_si = float(row["coil_entering_enthalpy_kJkg"])
@@ -297,7 +300,8 @@ def _coil_steps(name: str, point, u: _Units, power_unit: str) -> list[tuple[str,
     latent = u("power", point.loads["coil_latent_kW"])
     split = (
         f"{name}: Q_coil = Q_sensible + Q_latent = {number_text(sensible)} + "
-        f"{number_text(latent)} {power_unit} = {number_text(total)} {power_unit}"
+        f"{number_text(latent)} {power_unit} = "
+        f"{total_text or number_text(total) + ' ' + power_unit}"
     )
     return [
         (text, Check(formula, {"m": m, "h1": h1, "h2": h2, "qw": qw}, total)),
@@ -354,8 +358,7 @@ def headline_derivations(
     zone, zone_text = u.figure("power", figures.design_zone_load)
     if plant:
         terms = [(name, u("power", table.loc[kind, f"{name}_zone_kW"])) for name, _ in points]
-        text, check = _sum_step("Q_zone", terms, zone, pu, zone_text)
-        steps = [(text, check)]
+        steps = []
         for name, point in points:
             s, lat = (u("power", point.loads[k]) for k in ("zone_sensible_kW", "zone_latent_kW"))
             steps.append(
@@ -367,6 +370,7 @@ def headline_derivations(
                     ),
                 )
             )
+        steps.append(_sum_step("Q_zone", terms, zone, pu, zone_text))
     else:
         name, point = points[0]
         s, lat = (u("power", point.loads[k]) for k in ("zone_sensible_kW", "zone_latent_kW"))
@@ -394,7 +398,7 @@ def headline_derivations(
     coil, coil_text = u.figure("power", figures.design_coil_load)
     steps = []
     for name, point in points:
-        steps += _coil_steps(name, point, u, pu)
+        steps += _coil_steps(name, point, u, pu, None if plant else coil_text)
     source = _COIL_SOURCE
     if plant:
         terms = [(name, u("power", table.loc[kind, f"{name}_coil_total_kW"])) for name, _ in points]
@@ -599,7 +603,8 @@ def headline_derivations(
                 Check("f * c", {"f": PART_LOAD_THRESHOLD, "c": capacity}, threshold),
             ),
             (
-                f"hours with Q(h) > {number_text(threshold)} {pu}: {hours:,} of {hourly.size:,}",
+                f"of the {hourly.size:,} h, those with Q(h) > {number_text(threshold)} {pu}: "
+                f"{hours:,} h",
                 Check("", {}, float(hours)),
             ),
         ],
@@ -849,7 +854,8 @@ def chart_derivations(
         out["sweep"] = _derivation(
             "sweep",
             f"Design coil load of {unit.name} against outdoor-air fraction ({first.size} "
-            "fractions, each a full design run at every design condition)",
+            f"fraction{'s' if first.size > 1 else ''}, each a full design run at every design "
+            "condition)",
             f"set: {100 * fraction:.0f} % outdoor air",
             steps,
             (),
