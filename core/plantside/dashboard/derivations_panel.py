@@ -98,8 +98,11 @@ class DerivationsPanel:
             except PlantsideError:  # the water-side panel says why; no disclosure here
                 water = None
         units = [unit.study for unit in result.units]
+        # the scenario as the result's figures used it (margins and design condition
+        # set on the page)
+        scenario = result.inputs.plant_scenario(state.scenario)
         self.derivations = view_derivations(
-            state.scenario, units, self._view(result), system, water_side=water
+            scenario, units, self._view(result), system, water_side=water
         )
         self.figures.value = derivations_html(
             (self.derivations[k] for k in HEADLINE_KEYS), plant=self.plant
