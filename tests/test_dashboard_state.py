@@ -907,3 +907,79 @@ def test_the_plants_are_those_of_the_study_of_the_saved_scenario(scenario):
         pd.testing.assert_frame_equal(mine.stage_hours, theirs.stage_hours)
     assert plants.cooling.design_load == pytest.approx(state.result.figures.design_coil_load)
     assert state.plants() is plants  # once per result
+
+
+def test_plant_page_works_out_the_water_side_only_when_shown(scenario):
+    dashboard = Dashboard(scenario, view="plant")
+    assert dashboard.page_shown() == "Design & year"
+    dashboard.controls.widgets["outdoor_air_fraction"].value = 40.0
+    assert dashboard.state.last_update["ok"]
+    # a slider move with the water side not on show leaves its year alone
+    assert dashboard.water_side.water is None and dashboard.water_side.tables.value == ""
+    assert dashboard.plant_panel.charts == {}
+    dashboard.show_page("Water side")
+    assert dashboard.pages.selected_index == 2
+    assert dashboard.water_side.water is not None
+    assert "Water side" in dashboard.water_side.tables.value
+    shown = dashboard.water_side.water
+    dashboard.controls.widgets["outdoor_air_fraction"].value = 45.0
+    assert dashboard.water_side.water is not shown  # on show: follows every move
+    # the page switch takes only a part that exists, and says so
+    before = dashboard.page_choice.value
+    dashboard.page_choice.set_state({"index": 9})
+    assert dashboard.page_choice.value == before
+    assert "not one of the parts" in dashboard.export_message.value
+
+
+def test_plant_page_shows_cooling_and_heating_plants_as_the_study(scenario):
+    from plantside.study.run import run_study
+
+    dashboard = Dashboard(scenario, view="plant")
+    dashboard.show_page("Plant: cooling | heating")
+    assert set(dashboard.plant_panel.charts) == {"cooling", "heating"}
+    study = run_study(dashboard.state.current_scenario())
+    for kind, unit, convert in (
+        ("cooling", "tons", tons_from_kw),
+        # heating in MBH: 1 MBH = 1,000 Btu/h = 0.29307 kW (NIST SP 811, Btu_IT/h)
+        ("heating", "MBH", lambda kw: kw / 0.29307107),
+    ):
+        plant = getattr(study, kind)
+        text = dashboard.plant_panel.tables[kind].value
+        assert f"{float(convert(plant.design_load)):,.0f} {unit}" in text, kind
+        assert f"{float(convert(plant.design_capacity)):,.0f} {unit}" in text, kind
+        for option in plant.options["option"]:
+            assert option in text
+        if kind == "heating":
+            assert "tons" not in text  # heat is never in tons
+    # the chooser: the chart titles and the stage lines name the option shown
+    heating = scenario.heating_options[1].name
+    dashboard.plant_controls.widgets["heating_option"].value = 1
+    title = dashboard.plant_panel.chart_specs["heating"].to_dict()["title"]
+    assert heating in " ".join(
+        title["text"] if isinstance(title["text"], list) else [title["text"]]
+    )
+    assert f"{heating} (shown)" in dashboard.plant_panel.tables["heating"].value
+    assert f"option {heating}" in dashboard.stamp()
+    # exports of both plant charts, named by plant
+    name = dashboard.export_plant_chart("heating", "svg")
+    assert name.endswith("-heating-plant-load-duration.svg") and "plant" in name
+    assert dashboard.export_plant_chart("cooling", "png").endswith(".png")
+
+
+def test_margin_control_refuses_a_page_value_and_sends_back_the_kept_one(scenario):
+    dashboard = Dashboard(scenario, view="plant")
+    slider = dashboard.plant_controls.widgets["cooling_margin_percent"]
+    for raw in (90.0, True, "10", float("inf")):
+        slider.set_state({"value": raw})
+        assert slider.value == scenario.cooling_margin_percent
+        assert dashboard.state.inputs.cooling_margin_percent == scenario.cooling_margin_percent
+        assert (
+            "Cooling sizing margin"
+            in dashboard.plant_controls.messages["cooling_margin_percent"].value
+        )
+    slider.value = 15.0
+    assert dashboard.state.result.figures.recommended_capacity == pytest.approx(
+        dashboard.state.result.figures.design_coil_load * 1.15, rel=1e-12
+    )
+    assert "+ 15 % margin" in dashboard.figures.value
+    assert "cooling_margin_percent = 15" in dashboard.scenario_toml()

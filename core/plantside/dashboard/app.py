@@ -37,9 +37,16 @@ from plantside.charts.export import chart_bytes, safe_filename
 from plantside.charts.labels import export_stamp
 from plantside.charts.palette import WIDTH
 from plantside.charts.study_frames import CHARTS, ChartView, chart_frames, study_chart
-from plantside.dashboard.controls import Controls, GuardedButton, GuardedDropdown
+from plantside.dashboard.controls import (
+    Controls,
+    GuardedButton,
+    GuardedDropdown,
+    GuardedToggleButtons,
+)
 from plantside.dashboard.download import BrowserDownload
 from plantside.dashboard.panel_width import PanelWidth, fitted_plot_width
+from plantside.dashboard.plant_controls import PlantControls
+from plantside.dashboard.plant_panel import PLANT_KINDS, PlantPanel
 from plantside.dashboard.serve import SCENARIO_ENVIRONMENT_VARIABLE
 from plantside.dashboard.spec import SpecWriter
 from plantside.dashboard.state import (
@@ -87,7 +94,15 @@ def example_scenario() -> Scenario:
 
 
 def _css() -> str:
-    return resources.files("plantside.dashboard").joinpath("dashboard.css").read_text("utf-8")
+    folder = resources.files("plantside.dashboard")
+    return "\n".join(
+        folder.joinpath(name).read_text("utf-8") for name in ("dashboard.css", "plant_page.css")
+    )
+
+
+#: The plant page's parts, one shown at a time (the water side's year is worked out only
+#: when its part is shown). More parts are added with :meth:`Dashboard.add_page`.
+PLANT_PAGES = ("Design & year", "Plant: cooling | heating", "Water side")
 
 
 def _quantity(quantity: str, value_si: float, system: str, digits: int | None = None):
@@ -172,7 +187,16 @@ class Dashboard:
         self.export_buttons = self._export_buttons()
         # water side (plant page) or coil schedule (single-unit page), under the figures
         self.water_side = WaterSidePanel(self.state, plant=view == "plant")
-        self.water_side.update(self.widths["design"])
+        self.plant_controls = self.plant_panel = None
+        self.page_choice = self.pages = None
+        if view == "plant":
+            # the whole plant (cooling and heating) and the water side: each part is worked
+            # out only when shown, off the critical path of a slider move
+            self.plant_controls = PlantControls(self.state, self.controls.guarded)
+            self.plant_panel = PlantPanel(self.state)
+            self._plant_export_buttons()
+        else:
+            self.water_side.update(self.widths["design"])
         self.widget = self._layout()
         self.state.listeners.append(self._on_state)
         self._show_text()
@@ -210,6 +234,16 @@ class Dashboard:
                 ]
             ),
         ]
+        plant_boxes = []
+        if self.plant_controls is not None:
+            boxes = self.plant_controls.boxes
+            plant_boxes = [
+                group("Plant"),
+                boxes["cooling_option"],
+                boxes["cooling_margin_percent"],
+                boxes["heating_option"],
+                boxes["heating_margin_percent"],
+            ]
         sidebar_parts += [
             c.box("outdoor_air_fraction"),
             c.box("supply_air_temperature"),
@@ -221,6 +255,7 @@ class Dashboard:
             group("Site and design"),
             c.box("climate"),
             c.box("design_percent"),
+            *plant_boxes,
             group("Compare, units and files"),
             c.box("pin"),
             c.box("unit_system"),
@@ -236,7 +271,25 @@ class Dashboard:
             panel = widgets.VBox([tools, self.charts[name]])
             panel.add_class("plantside-chart")
             panels.append(panel)
-        chart_column = widgets.VBox([*panels, self.water_side.box])
+        if self.view == "plant":
+            design_page = widgets.VBox(panels)
+            water_page = widgets.VBox([self.water_side.tables, self.water_side.box])
+            water_page.add_class("plantside-water-page")
+            self._page_widgets = [design_page, self.plant_panel.box, water_page]
+            self.pages = widgets.Stack(self._page_widgets, selected_index=0)
+            self.pages.add_class("plantside-pages")
+            self.page_choice = GuardedToggleButtons(
+                options=[(title, i) for i, title in enumerate(PLANT_PAGES)],
+                value=0,
+                style={"button_width": "auto"},
+            )
+            self.page_choice.add_class("plantside-page-choice")
+            self.page_choice.check = self._check_page
+            self.page_choice.refused = lambda message: self.controls.show_message("export", message)
+            self.page_choice.observe(self.controls.guarded("export", self._on_page), names="value")
+            chart_column = widgets.VBox([self.page_choice, self.pages])
+        else:
+            chart_column = widgets.VBox([*panels, self.water_side.box])
         chart_column.add_class("plantside-charts")
         body = widgets.HBox(
             [sidebar, chart_column], layout=widgets.Layout(align_items="flex-start")
@@ -249,7 +302,7 @@ class Dashboard:
                 self.header,
                 self.caution,
                 self.figures,
-                self.water_side.tables,
+                *([self.water_side.tables] if self.view != "plant" else []),
                 self.status,
                 body,
                 self.model_cautions,
@@ -282,6 +335,45 @@ class Dashboard:
         )
         box.add_class("plantside-files")
         return box
+
+    def _plant_export_buttons(self) -> None:
+        """PNG and SVG buttons of the two plants' load-duration charts."""
+        for kind in PLANT_KINDS:
+            row = []
+            for fmt in ("png", "svg"):
+                button = GuardedButton(
+                    description=fmt.upper(),
+                    tooltip=f"Download the {kind} plant chart as {fmt.upper()}, stamped",
+                    layout=widgets.Layout(width="84px"),
+                )
+                button.add_class(f"plantside-export-plant_{kind}-{fmt}")
+                button.on_click(
+                    self.controls.guarded(
+                        "export", lambda _, k=kind, f=fmt: self.export_plant_chart(k, f)
+                    )
+                )
+                row.append(button)
+            self.plant_panel.export_rows[kind].children = tuple(row)
+
+    def export_plant_chart(self, kind: str, fmt: str) -> str:
+        """Send the ``kind`` plant's load-duration chart as PNG or SVG, stamped."""
+        if kind not in PLANT_KINDS or fmt not in ("png", "svg"):
+            self.state.messages["export"] = f"unknown export {kind!r} as {fmt!r}"
+            self._show_text()
+            return ""
+        self.plant_panel.update()  # the chart of the current inputs, even if not on show
+        try:
+            data = chart_bytes(
+                self.plant_panel.chart_specs[kind], fmt, stamp=self.stamp(), scale=_PNG_SCALE
+            )
+        except PlantsideError as error:
+            self.state.messages["export"] = str(error)
+            self._show_text()
+            return ""
+        mime = "image/png" if fmt == "png" else "image/svg+xml"
+        self.state.messages["export"] = ""
+        name = f"{self._file_stem()}-{kind}-plant-load-duration.{fmt}"
+        return self.download.send_file(data, name, mime)
 
     def _export_buttons(self) -> dict[str, list[widgets.Button]]:
         buttons = {}
@@ -340,8 +432,46 @@ class Dashboard:
             self.charts[name].spec = self.spec_writer.spec(name, chart, self._structure(name))
             self._chart_keys[name] = key
             changed.append(name)
-        self.water_side.update(self.widths["design"])  # after the five charts
+        self._update_page()  # after the five charts: the part of the plant page on show
         return changed
+
+    # ------------------------------------------------------------------ plant page parts
+    def page_shown(self) -> str:
+        """Title of the plant page's part on show ("" on the single-unit page)."""
+        if self.page_choice is None:
+            return ""
+        return self.page_choice.options[self.page_choice.value][0]
+
+    def show_page(self, title: str) -> None:
+        """Show the plant page's part named ``title`` (a title of :data:`PLANT_PAGES` or
+        of a part added with :meth:`add_page`)."""
+        titles = [label for label, _ in self.page_choice.options]
+        self.page_choice.value = titles.index(title)
+
+    def add_page(self, title: str, widget) -> None:
+        """Add a part to the plant page (e.g. a stress test, a sweep), with its switch."""
+        self._page_widgets.append(widget)
+        self.pages.children = tuple(self._page_widgets)
+        options = [*self.page_choice.options, (title, len(self._page_widgets) - 1)]
+        self.page_choice.options = options
+
+    def _check_page(self, raw) -> str:
+        if type(raw) is not int or not 0 <= raw < len(self.page_choice.options):
+            return f"Page: {str(raw)[:40]!r} is not one of the parts of the page"
+        return ""
+
+    def _on_page(self, change):
+        self.pages.selected_index = change["new"]
+        self._update_page()
+
+    def _update_page(self) -> None:
+        """Work out and draw the part on show: the water side's year (and the plants) only
+        when their part is on show, never on a slider move's path otherwise."""
+        shown = self.page_shown()
+        if self.view != "plant" or shown == "Water side":
+            self.water_side.update(self.widths["design"])
+        if shown == PLANT_PAGES[1]:
+            self.plant_panel.update()
 
     # ------------------------------------------------------------------ charts
     def _structure(self, name: str) -> tuple:
