@@ -61,17 +61,20 @@ def test_plant_panel_follows_the_state(scenario):
     state = DashboardState(scenario, view="plant")
     water = WaterSidePanel(state, plant=True)
     panel = DerivationsPanel(state, plant=True, water_side=water.water_side)
+    assert panel.for_chart("water").value == ""  # not run for its derivation alone
+    assert water.water is None
+    assert panel.update(water=True) is True  # the water side on show
     assert panel.figures.value.count("<details") == len(HEADLINE_KEYS)
     assert "How this is worked out: Design plant load" in panel.figures.value
     for name in (*CHART_NAMES, "water"):
         assert panel.for_chart(name).value.count("<details") == 1, name
     _assert_follows(panel, state)
     assert "tons" in panel.figures.value
-    assert panel.update() is False  # nothing changed: not rebuilt
+    assert panel.update(water=True) is False  # nothing changed: not rebuilt
 
     # the units on show
     assert state.set("unit_system", "SI")
-    assert panel.update() is True
+    assert panel.update(water=True) is True
     _assert_follows(panel, state)
     assert "tons" not in panel.figures.value and " kW" in panel.figures.value
     assert "L/s" in panel.for_chart("water").value

@@ -74,6 +74,7 @@ DERIVATION_STYLE = (
     ".ps-derivation li{margin:2px 0;overflow-wrap:anywhere;font-variant-numeric:tabular-nums}"
     ".ps-derivation-states{overflow-x:auto}"
     ".ps-derivation table{border-collapse:collapse;font-size:12px;margin:4px 0}"
+    ".ps-derivation caption{text-align:left;font-weight:600}"
     ".ps-derivation th,.ps-derivation td{padding:1px 8px;text-align:right;"
     "border-bottom:1px solid #e3e7ec}"
     ".ps-derivation th:first-child,.ps-derivation td:first-child{text-align:left}"

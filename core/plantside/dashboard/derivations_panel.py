@@ -35,8 +35,8 @@ class DerivationsPanel:
         True on the plant page (the plant's figures), False on an air handler's.
     water_side : callable, optional
         Returns the water side of the state's result (the water-side panel's
-        ``water_side``, so it is run once); without it there is no ``"water"``
-        disclosure.
+        ``water_side``, so it is run once); used by ``update(water=True)``, without
+        it there is no ``"water"`` disclosure.
     """
 
     def __init__(self, state, plant: bool, water_side: Callable | None = None):
@@ -78,31 +78,41 @@ class DerivationsPanel:
             climate=result.climate.source,
         )
 
-    def update(self) -> bool:
+    def update(self, water: bool = False) -> bool:
         """Refresh from the state's current result and unit system.
+
+        Parameters
+        ----------
+        water : bool
+            Also the water side's disclosure (plant page, with ``water_side``): ask
+            for it when the water side is on show, so the water-side year is never
+            run just for its derivation.
 
         Returns
         -------
         bool
-            True when the disclosures were rebuilt (False: the same result and units).
+            True when the disclosures were rebuilt (False: the same result, units and
+            water side).
         """
         state = self.state
         result = state.result
         system = state.inputs.unit_system
-        if self._key is not None and self._key[0] is result and self._key[1] == system:
+        water = bool(water and self.plant and self._water_side is not None)
+        kept = self._key
+        if kept is not None and kept[0] is result and kept[1:] == (system, water):
             return False
-        water = None
-        if self.plant and self._water_side is not None:
+        water_side = None
+        if water:
             try:
-                water = self._water_side()
+                water_side = self._water_side()
             except PlantsideError:  # the water-side panel says why; no disclosure here
-                water = None
+                water_side = None
         units = [unit.study for unit in result.units]
         # the scenario as the result's figures used it (margins and design condition
         # set on the page)
         scenario = result.inputs.plant_scenario(state.scenario)
         self.derivations = view_derivations(
-            scenario, units, self._view(result), system, water_side=water
+            scenario, units, self._view(result), system, water_side=water_side
         )
         self.figures.value = derivations_html(
             (self.derivations[k] for k in HEADLINE_KEYS), plant=self.plant
@@ -113,5 +123,5 @@ class DerivationsPanel:
                 if name in self.derivations
                 else ""
             )
-        self._key = (result, system)  # the result itself: an id could be reused
+        self._key = (result, system, water)  # the result itself: an id could be reused
         return True
