@@ -427,3 +427,88 @@ def test_charts_fit_the_panel_at_projector_and_full_hd_widths(
     )
     wait_until_charts_fit(page)
     screenshot_whole_dashboard(page, screenshots_folder / f"{view}_{width}_ip_pinned.png")
+
+
+def _show_part(page, title: str) -> None:
+    """Show a part of the plant page from the keyboard (its switch: focus, then Enter)."""
+    button = page.locator(".plantside-page-choice button", has_text=title).first
+    button.focus()
+    page.keyboard.press("Enter")
+    page.wait_for_function(
+        "(t) => [...document.querySelectorAll('.plantside-page-choice button')]"
+        ".some((b) => b.textContent.includes(t) && b.classList.contains('mod-active'))",
+        arg=title,
+        timeout=WIDGET_TIMEOUT_MS,
+    )
+
+
+@pytest.mark.parametrize("width,height", [(1280, 800), (1920, 1080)], ids=["1280", "1920"])
+def test_plant_page_parts_option_chooser_margin_and_heating_plant(
+    dashboard_server, new_page, screenshots_folder, width, height
+):
+    """The plant page in parts: the water side is worked out only when its part is shown;
+    the cooling and heating plants side by side; the option chooser and the margin move
+    the plant; nothing scrolls sideways; every part's screenshot in IP and SI."""
+    page = new_page(width, height)
+    open_dashboard(page, dashboard_server, "plant.ipynb")
+    # the water side is not on a slider move's path: its tables are not even drawn yet
+    assert page.inner_text(".plantside-water-page") == ""
+    _show_part(page, "Plant: cooling")
+    for kind in ("cooling", "heating"):
+        host = f".plantside-chart-plant_{kind}"
+        page.wait_for_selector(f"{host} canvas", timeout=WIDGET_TIMEOUT_MS)
+    heating = page.inner_text(".plantside-plant-heating")
+    assert "MBH" in heating and "tons" not in heating  # heat in MBH (the example is I-P)
+    assert "Heating plant" in heating and "Design capacity" in heating
+    cooling = page.inner_text(".plantside-plant-cooling")
+    scenario = example_scenario()
+    first, second = (o.name for o in scenario.cooling_options[:2])
+    assert f"{first} (shown)" in cooling
+    # the chooser: the staging table and the stage lines follow the option chosen
+    page.select_option(".plantside-cooling-option select", label=second)
+    page.wait_for_function(
+        "(t) => document.querySelector('.plantside-plant-cooling').innerText.includes(t)",
+        arg=f"{second} (shown)",
+        timeout=WIDGET_TIMEOUT_MS,
+    )
+    # the margin, from the keyboard: 10 % -> 15 %, shown on the card and in the table
+    figures = figures_text(page)
+    handle = page.locator(".plantside-cooling-margin-percent .noUi-handle").first
+    handle.focus()
+    for _ in range(5):
+        handle.press("ArrowRight")
+    wait_for_change(page, figures)
+    page.wait_for_function(
+        "() => document.querySelector('.plantside-figures').innerText.includes('15 % margin')",
+        timeout=WIDGET_TIMEOUT_MS,
+    )
+    page.wait_for_function(
+        "() => document.querySelector('.plantside-plant-cooling').innerText.includes('15 %')",
+        timeout=WIDGET_TIMEOUT_MS,
+    )
+    assert page.evaluate("() => document.documentElement.scrollWidth") <= width
+    with page.expect_download(timeout=WIDGET_TIMEOUT_MS) as download:
+        page.click(".plantside-export-plant_heating-svg")
+    assert download.value.suggested_filename.endswith("-heating-plant-load-duration.svg")
+    screenshot_whole_dashboard(page, screenshots_folder / f"plant_parts_{width}_ip_plant.png")
+    page.click(".plantside-unit-system button:has-text('SI')")
+    page.wait_for_function(
+        "() => document.querySelector('.plantside-plant-heating').innerText.includes('kW')",
+        timeout=WIDGET_TIMEOUT_MS,
+    )
+    screenshot_whole_dashboard(page, screenshots_folder / f"plant_parts_{width}_si_plant.png")
+    # the water side, when its part is shown
+    _show_part(page, "Water side")
+    page.wait_for_function(
+        "() => document.querySelector('.plantside-water-page').innerText.length > 100",
+        timeout=WIDGET_TIMEOUT_MS,
+    )
+    page.wait_for_selector(".plantside-chart-water_side canvas", timeout=WIDGET_TIMEOUT_MS)
+    assert page.evaluate("() => document.documentElement.scrollWidth") <= width
+    screenshot_whole_dashboard(page, screenshots_folder / f"plant_parts_{width}_si_water.png")
+    page.click(".plantside-unit-system button:has-text('IP')")
+    page.wait_for_function(
+        "() => document.querySelector('.plantside-water-page').innerText.includes('gpm')",
+        timeout=WIDGET_TIMEOUT_MS,
+    )
+    screenshot_whole_dashboard(page, screenshots_folder / f"plant_parts_{width}_ip_water.png")
