@@ -371,3 +371,18 @@ def test_number_text():
     assert number_text(0.01234) == "0.0123"
     assert number_text(12.0, 0) == "12"
     assert np.isnan(Derivation("k", "t", "v", (), (), "s").value)
+
+
+def test_view_of_copies_finds_its_air_handler_by_name(study):
+    """A view whose air handler is a copy (a pinned study's) is matched by name; an
+    unknown air handler is refused by name, not with a bare StopIteration."""
+    result, _ = study
+    _, view = study_chart_views(result, "test", first_recirculating_unit(result.scenario))[-1]
+    copied = replace(view, unit=replace(view.unit))
+    assert copied.unit is not view.unit
+    same = view_derivations(result.scenario, result.air_handlers, view, "SI")
+    again = view_derivations(result.scenario, result.air_handlers, copied, "SI")
+    assert [d.steps for d in again.values()] == [d.steps for d in same.values()]
+    stranger = replace(view, unit=replace(view.unit, name="AHU-99 nowhere"))
+    with pytest.raises(KeyError, match="AHU-99 nowhere"):
+        view_derivations(result.scenario, result.air_handlers, stranger, "SI")

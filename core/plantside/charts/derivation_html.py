@@ -172,7 +172,12 @@ def view_derivations(scenario, units: Sequence, view, system, *, water_side=None
     dict of str to Derivation
         :data:`plantside.study.derivations.HEADLINE_KEYS`, then the chart names.
     """
-    shown = next(i for i, unit in enumerate(units) if unit is view.unit)
+    shown = next((i for i, unit in enumerate(units) if unit is view.unit), None)
+    if shown is None:  # a view built from copies: the air handler of the same name
+        names = [unit.name for unit in units]
+        if view.unit.name not in names:
+            raise KeyError(f"the view's air handler {view.unit.name!r} is not one of {names}")
+        shown = names.index(view.unit.name)
     index = None if view.plant else shown
     out = headline_derivations(scenario, units, view.figures, system, index, view.loads)
     out.update(

@@ -34,6 +34,7 @@ from plantside.study.figures import (
     HeadlineFigures,
     ViewLoads,
     coincident_cooling_design,
+    first_recirculating_unit,
     view_loads,
 )
 from plantside.units import UnitSystem, to_display, unit_label
@@ -654,7 +655,7 @@ def chart_derivations(
         As :func:`headline_derivations`.
     shown : int, optional
         The air handler the psychrometric and outdoor-air charts draw (default: the
-        view's, or the first for the plant).
+        view's, or for the plant the first with return air, as the plant page shows).
     sweep : dict of str to numpy.ndarray, optional
         Its design coil load [kW] against outdoor-air fraction
         (:func:`plantside.study.design_sweep.design_outdoor_air_sweep`, as the chart
@@ -679,7 +680,9 @@ def chart_derivations(
     gain = float(scenario.distribution_gain_percent)
     loads = view_loads(units, gain, air_handler) if loads is None else loads
     plant = air_handler is None
-    shown = (air_handler if not plant else 0) if shown is None else int(shown)
+    if shown is None:  # the plant page's unit charts show the first unit with return air
+        shown = air_handler if not plant else first_recirculating_unit(scenario)
+    shown = int(shown)
     unit = units[shown]
     out: dict[str, Derivation] = {}
     word = "plant" if plant else "coil"
