@@ -31,7 +31,7 @@ from plantside.charts.derivation_html import (
 )
 from plantside.charts.labels import condition_text
 from plantside.charts.report import HEADLINE_FIGURES, _value_text
-from plantside.charts.study_frames import CHARTS, study_chart_views
+from plantside.charts.study_frames import CHARTS, chart_frames, study_chart_views
 from plantside.study.derivations import (
     CHART_KEYS,
     HEADLINE_KEYS,
@@ -386,3 +386,21 @@ def test_view_of_copies_finds_its_air_handler_by_name(study):
     stranger = replace(view, unit=replace(view.unit, name="AHU-99 nowhere"))
     with pytest.raises(KeyError, match="AHU-99 nowhere"):
         view_derivations(result.scenario, result.air_handlers, stranger, "SI")
+
+
+@pytest.mark.parametrize("system", ["IP", "SI"])
+def test_sweep_marker_is_the_charts(study, system):
+    """The outdoor-air derivation's load at the set fraction is the marker the chart
+    draws (charts.oa_sweep_frames.oa_marker_frame of the chart's own frames)."""
+    result, water = study
+    for key, view, derivations in _views(result, water, system):
+        frames = chart_frames("sweep", view, system)
+        marker = frames["marker"].set_index("series")["load"]
+        steps = [c for c in derivations["sweep"].checks if c.formula.startswith("qa + (x - xa)")]
+        if next(iter(view.sweep.values())).size == 1:
+            assert not steps  # one point (no return air): nothing to read along
+            continue
+        assert len(steps) == len(marker) == len(view.sweep), key
+        for check, (_, load) in zip(steps, marker.items(), strict=True):
+            assert check.result == pytest.approx(load, rel=1e-9)
+            assert check.operands["x"] == pytest.approx(100 * view.outdoor_air_fraction)

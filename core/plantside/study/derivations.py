@@ -850,6 +850,30 @@ def chart_derivations(
                         Check("b - a", {"a": low, "b": high}, slope),
                     )
                 )
+                if outdoor_air_fraction is not None:  # the marker: along the curve
+                    x = 100.0 * float(outdoor_air_fraction)
+                    percents = 100.0 * fractions
+                    i = int(
+                        np.clip(
+                            np.searchsorted(percents, x, side="right") - 1, 0, len(percents) - 2
+                        )
+                    )
+                    xa, xb = float(percents[i]), float(percents[i + 1])
+                    qa, qb = u("power", values[i]), u("power", values[i + 1])
+                    q = qa + (x - xa) / (xb - xa) * (qb - qa)
+                    steps.append(
+                        (
+                            f"{label} at the set {number_text(x)} % (the marker, linear between "
+                            f"{xa:g} and {xb:g} %): Q = {number_text(qa)} + ({number_text(x)} − "
+                            f"{xa:g}) / ({xb:g} − {xa:g}) × ({number_text(qb)} − "
+                            f"{number_text(qa)}) = {number_text(q)} {pu}",
+                            Check(
+                                "qa + (x - xa) / (xb - xa) * (qb - qa)",
+                                {"qa": qa, "qb": qb, "x": x, "xa": xa, "xb": xb},
+                                q,
+                            ),
+                        )
+                    )
             else:
                 only = u("power", values[0])
                 steps.append((f"{label}: Q = {number_text(only)} {pu}", Check("", {}, only)))
