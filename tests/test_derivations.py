@@ -404,3 +404,17 @@ def test_sweep_marker_is_the_charts(study, system):
         for check, (_, load) in zip(steps, marker.items(), strict=True):
             assert check.result == pytest.approx(load, rel=1e-9)
             assert check.operands["x"] == pytest.approx(100 * view.outdoor_air_fraction)
+
+
+@pytest.mark.parametrize("system", ["IP", "SI"])
+def test_design_steps_are_the_charts_bars(study, system):
+    """The design derivation sums the bars the design chart draws (its frame's steps,
+    in display units) and ends on its total bar."""
+    result, water = study
+    for _, view, derivations in _views(result, water, system):
+        frame = chart_frames("design", view, system)["frame"]
+        bars = frame[frame["kind"] == "part"]["load"].to_numpy()
+        check = derivations["design"].checks[-1]
+        # "Other" (what the terms do not explain) is taken in SI by the chart: 1e-9 abs
+        assert list(check.operands.values()) == pytest.approx(list(bars), rel=1e-9, abs=1e-9)
+        assert check.result == pytest.approx(frame["load"].iloc[-1], rel=1e-12)

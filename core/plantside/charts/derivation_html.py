@@ -27,7 +27,6 @@ from plantside.study.derivations import (
 from plantside.study.figures import headline_figures, view_loads
 
 __all__ = [
-    "BREAKDOWN",
     "DERIVATION_STYLE",
     "FIGURE_NAMES",
     "derivation_html",
@@ -36,8 +35,6 @@ __all__ = [
     "view_derivations",
 ]
 
-#: The design chart's steps, as the chart draws them.
-BREAKDOWN = BREAKDOWN_COMPONENTS + BREAKDOWN_OPTIONAL
 
 #: Names of the headline figures as the views label them (air handler / plant).
 FIGURE_NAMES = {
@@ -191,7 +188,8 @@ def view_derivations(scenario, units: Sequence, view, system, *, water_side=None
             shown=shown,
             sweep=view.sweep,
             outdoor_air_fraction=view.outdoor_air_fraction,
-            breakdown=BREAKDOWN,
+            breakdown=BREAKDOWN_COMPONENTS,
+            breakdown_optional=BREAKDOWN_OPTIONAL,
             water_side=water_side,
         )
     )

@@ -645,6 +645,7 @@ def chart_derivations(
     sweep: Mapping[str, np.ndarray] | None = None,
     outdoor_air_fraction: float | None = None,
     breakdown: Sequence[tuple[str, tuple[str, ...], float]] = (),
+    breakdown_optional: Sequence[tuple[str, tuple[str, ...], float]] = (),
     water_side=None,
 ) -> dict[str, Derivation]:
     """How each chart of the plant or of one air handler is worked out.
@@ -662,10 +663,11 @@ def chart_derivations(
         draws it); no ``"sweep"`` derivation without it.
     outdoor_air_fraction : float, optional
         Its minimum outdoor-air fraction as set [-] (the sweep's marker).
-    breakdown : sequence of (label, keys, sign)
-        The design chart's steps (the charts layer's ``BREAKDOWN_COMPONENTS`` and
-        ``BREAKDOWN_OPTIONAL``): each the sum of ``keys`` of ``figures.design_loads``
-        times ``sign``.
+    breakdown, breakdown_optional : sequence of (label, keys, sign)
+        The design chart's steps (the charts layer's ``BREAKDOWN_COMPONENTS``, always
+        drawn, and ``BREAKDOWN_OPTIONAL``, drawn where not zero): each the sum of
+        ``keys`` of ``figures.design_loads`` times ``sign``; no ``"design"``
+        derivation without them.
     water_side : WaterSideResult, optional
         :func:`plantside.study.water_side_run.run_water_side` of the study; no
         ``"water"`` derivation without it.
@@ -690,12 +692,12 @@ def chart_derivations(
     # design breakdown
     coil, coil_text = u.figure("power", figures.design_coil_load)
     terms = []
-    used = set()
-    for label, keys, sign in breakdown:
-        value = sign * sum(float(figures.design_loads.get(k, 0.0)) for k in keys)
-        used.update(keys)
-        if abs(value) > 1e-6 * max(1.0, abs(figures.design_coil_load)):
-            terms.append((label, u("power", value)))
+    tiny = 1e-6 * max(1.0, abs(figures.design_coil_load))
+    for optional, steps_of in ((False, breakdown), (True, breakdown_optional)):
+        for label, keys, sign in steps_of:
+            value = sign * sum(float(figures.design_loads.get(k, 0.0)) for k in keys)
+            if not optional or abs(value) > tiny:  # as the chart draws its bars
+                terms.append((label, u("power", value)))
     if breakdown:
         other = coil - sum(v for _, v in terms)
         if abs(other) > 1e-6 * max(1.0, abs(coil)):
