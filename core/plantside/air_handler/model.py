@@ -106,6 +106,7 @@ from plantside.air_handler.results import (
     _STATE_COLUMNS,
     COIL_IDLE_K,
     HOURLY_COLUMNS,
+    MINIMUM_IN_A_PASS,
     hourly_results,
 )
 from plantside.air_handler.settings import AirHandlerSettings, fan_power_fraction
@@ -119,7 +120,7 @@ from plantside.constants import (
 )
 from plantside.errors import InputRangeError, check_range
 
-__all__ = ["HOURLY_COLUMNS", "air_handler_hours"]
+__all__ = ["HOURLY_COLUMNS", "MINIMUM_IN_A_PASS", "air_handler_hours"]
 
 
 #: Lowest zone humidity ratio kept by the balance [kg/kg].
@@ -179,6 +180,7 @@ def air_handler_hours(
     force_operating=False,
     check=True,
     operating_hours_only=True,
+    columns=None,
 ):
     """Every state and load of an air handler for many hours at once.
 
@@ -206,6 +208,13 @@ def air_handler_hours(
         Model only the hours the fan runs and fill the others (every state NaN, every
         flow and load 0, the zone loads unmet), as the whole record gives them; False
         models every hour (the same results to the pass tolerance, for tests).
+    columns : collection of str, optional
+        Return only these columns (and ``humidity_iteration_change``), each the same as
+        in the whole table; all by default (see
+        :func:`plantside.air_handler.results.hourly_results`). Only on request, also
+        :data:`MINIMUM_IN_A_PASS`: True where the outdoor-air damper stood at the
+        minimum in some pass (elsewhere the hour's solution, pass by pass, is the same
+        at any lower minimum).
 
     Returns
     -------
@@ -234,6 +243,16 @@ def air_handler_hours(
                 f"{t_o.shape[-1]} hours",
             )
         _check_outdoor(t_o, w_o, p)
+        if columns is not None:
+            known = {*HOURLY_COLUMNS, "apparatus_dew_point_required_C", MINIMUM_IN_A_PASS}
+            unknown = sorted(set(columns) - known)
+            if unknown or not len(columns):
+                raise InputRangeError(
+                    "columns",
+                    f"columns: {', '.join(unknown) or 'none given'}; allowed: the names "
+                    "of HOURLY_COLUMNS and apparatus_dew_point_required_C",
+                    "names of HOURLY_COLUMNS",
+                )
         if minimum_outdoor_air_fraction is not None:
             check_range(
                 "minimum_outdoor_air_fraction",
@@ -246,7 +265,7 @@ def air_handler_hours(
     if operating_hours_only and not (force_operating or s.fan_schedule == "always"):
         if not np.all(zone_loads.occupied):
             return _fan_off_hours_filled(
-                settings, t_o, w_o, p, zone_loads, minimum_outdoor_air_fraction
+                settings, t_o, w_o, p, zone_loads, minimum_outdoor_air_fraction, columns
             )
 
     # --- zone, airflow limits, fan (independent of humidity) --------------------------
@@ -347,6 +366,8 @@ def air_handler_hours(
     # passes and then kept: near a switching point the decision would otherwise flip
     # between passes (a real controller holds it by its deadband).
     frozen_mode = frozen_recovery = None
+    track_minimum = columns is not None and MINIMUM_IN_A_PASS in columns
+    at_minimum_in_a_pass = False
     for pass_number in range(_MAX_PASSES):
         c_s = CP_DRY_AIR + CP_WATER_VAPOR * w_s
         # airflow
@@ -395,6 +416,10 @@ def air_handler_hours(
                 central_heating,
                 frozen_mode,
             )
+        if track_minimum:
+            # where the damper stood at the minimum in some pass, the hour's solution
+            # depends on the minimum; elsewhere every pass is the same at any lower one
+            at_minimum_in_a_pass = at_minimum_in_a_pass | (x <= x_min)
         # energy recovery (exhaust = return air), at the minimum outdoor air only
         if recovery:
             if frozen_recovery is None:
@@ -405,11 +430,26 @@ def air_handler_hours(
                 cool_branch &= _h(t_o + eps_s * (t_r - t_o), w_o + eps_l * (w_z - w_o)) < h_o
             else:
                 heat_branch, cool_branch = frozen_recovery
-            f_heat = recovery_fraction_for_mixed_drybulb(
-                t_ma, x, t_o, w_o, t_r, w_z, t_r, w_z, eps_s, eps_l
-            )
-            f_heat = np.where(np.isnan(f_heat), 1.0, np.fmin(np.fmax(f_heat, 0.0), 1.0))
-            f = np.where(heat_branch, f_heat, 1.0 * cool_branch)
+            heat_hours = np.flatnonzero(heat_branch) if heat_branch.ndim == 1 else None
+            if heat_hours is not None and heat_hours.size < heat_branch.size // 2:
+                # one array of hours (a year, or a sweep's pairs): the modulation solved
+                # only in the hours that use it
+                f = 1.0 * cool_branch
+                f_heat = recovery_fraction_for_mixed_drybulb(
+                    *(
+                        a[heat_hours] if np.ndim(a) else a
+                        for a in (t_ma, x, t_o, w_o, t_r, w_z, t_r, w_z)
+                    ),
+                    eps_s,
+                    eps_l,
+                )
+                f[heat_hours] = np.where(np.isnan(f_heat), 1.0, np.fmin(np.fmax(f_heat, 0.0), 1.0))
+            else:
+                f_heat = recovery_fraction_for_mixed_drybulb(
+                    t_ma, x, t_o, w_o, t_r, w_z, t_r, w_z, eps_s, eps_l
+                )
+                f_heat = np.where(np.isnan(f_heat), 1.0, np.fmin(np.fmax(f_heat, 0.0), 1.0))
+                f = np.where(heat_branch, f_heat, 1.0 * cool_branch)
             t_o2 = t_o + f * eps_s * (t_r - t_o)
             w_o2 = w_o + f * eps_l * (w_z - w_o)
             h_o2 = _h(t_o2, w_o2)
@@ -479,10 +519,12 @@ def air_handler_hours(
     # hours where the leaving dew point or the zone humidity set point, not the leaving
     # dry bulb, sets the coil
     dew_point_governs = (w_s < w_s_by_drybulb) if dew_point_coil or humidity_control else False
-    return hourly_results(SimpleNamespace(**locals()))
+    return hourly_results(SimpleNamespace(**locals()), columns)
 
 
-def _fan_off_hours_filled(settings, t_o, w_o, p, zone_loads, minimum_outdoor_air_fraction):
+def _fan_off_hours_filled(
+    settings, t_o, w_o, p, zone_loads, minimum_outdoor_air_fraction, columns=None
+):
     """:func:`air_handler_hours` of the hours the fan runs, the others filled as
     :func:`plantside.air_handler.results.hourly_results` leaves them (fan-off hours do
     not depend on the outdoor air, so a sweep of fractions computes them once, here)."""
@@ -497,18 +539,23 @@ def _fan_off_hours_filled(settings, t_o, w_o, p, zone_loads, minimum_outdoor_air
             internal_sensible=zone_loads.internal_sensible[on],
             occupied=occupied[on],
         )
+        fraction = minimum_outdoor_air_fraction
+        if np.ndim(fraction) and np.shape(fraction)[-1] == occupied.size:
+            fraction = np.asarray(fraction)[..., on]  # one per hour (a sweep's pairs)
         sub = air_handler_hours(
             settings,
             t_o[..., on],
             w_o[..., on],
             p[..., on],
             loads,
-            minimum_outdoor_air_fraction=minimum_outdoor_air_fraction,
+            minimum_outdoor_air_fraction=fraction,
             force_operating=True,
             check=False,
+            columns=columns,
         )
     if sub:
-        shape = (*sub["coil_total_kW"].shape[:-1], occupied.size)
+        any_column = next(key for key in sub if key != "humidity_iteration_change")
+        shape = (*sub[any_column].shape[:-1], occupied.size)
     else:
         shapes = [np.shape(a) for a in (t_o, w_o, p)]
         if minimum_outdoor_air_fraction is not None:
@@ -526,9 +573,14 @@ def _fan_off_hours_filled(settings, t_o, w_o, p, zone_loads, minimum_outdoor_air
         "zone_sensible_unmet_kW": q_sens,
         "zone_latent_unmet_kW": q_lat,
         "apparatus_dew_point_required_C": np.nan,
+        MINIMUM_IN_A_PASS: True,
     }
     out = {}
-    for key in (*HOURLY_COLUMNS, "apparatus_dew_point_required_C"):
+    for key in (*HOURLY_COLUMNS, "apparatus_dew_point_required_C", MINIMUM_IN_A_PASS):
+        if (columns is None and key == MINIMUM_IN_A_PASS) or (
+            columns is not None and key not in columns
+        ):
+            continue
         if key in off_values:
             value = off_values[key]
         elif key in _STATE_COLUMNS:

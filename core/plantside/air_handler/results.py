@@ -67,12 +67,16 @@ from plantside.constants import (
 )
 from plantside.constants import STANDARD_AIR_DENSITY as _RHO_STD
 
-__all__ = ["HOURLY_COLUMNS", "hourly_results", "zone_load"]
+__all__ = ["HOURLY_COLUMNS", "MINIMUM_IN_A_PASS", "hourly_results", "zone_load"]
 
 #: Dry-bulb tolerance under which a coil is idle [K].
 COIL_IDLE_K = 1e-6
 
 #: Column names of :func:`air_handler_hours` (and of the hourly DataFrame), in order.
+#: A column given only on request: True where the outdoor-air damper stood at the
+#: minimum in some pass of the humidity solution, or the fan was off.
+MINIMUM_IN_A_PASS = "outdoor_air_at_minimum_in_a_pass"
+
 HOURLY_COLUMNS = (
     "occupied",
     "operating",
@@ -193,7 +197,7 @@ def _only_where(mask, fill, function, *arrays):
     return out
 
 
-def hourly_results(v: SimpleNamespace) -> dict:
+def hourly_results(v: SimpleNamespace, columns=None) -> dict:
     """Every published column from the model's converged pass.
 
     Parameters
@@ -201,12 +205,22 @@ def hourly_results(v: SimpleNamespace) -> dict:
     v : types.SimpleNamespace
         The variables of :func:`plantside.air_handler.model.air_handler_hours` after its
         last pass (arrays in SI; names as there).
+    columns : collection of str, optional
+        Only these columns (and ``humidity_iteration_change``); every column of
+        :data:`HOURLY_COLUMNS` and ``apparatus_dew_point_required_C`` by default. A
+        column is computed by the same expressions either way, so its values are the
+        same (an outdoor-air sweep asks for the few it sums).
 
     Returns
     -------
     dict of str to numpy.ndarray
         See :func:`plantside.air_handler.model.air_handler_hours`.
     """
+    want = None if columns is None else frozenset(columns)
+
+    def needed(*names):
+        return want is None or not want.isdisjoint(names)
+
     (
         w_s,
         recovery,
@@ -373,7 +387,6 @@ def hourly_results(v: SimpleNamespace) -> dict:
     condensate_heat = condensate * CP_LIQUID_WATER * t_leave
     coil_sensible = np.where(cooling, m * c_cl * (t_coil_in - t_leave), 0.0)
     coil_latent = condensate * (LATENT_HEAT_0C + CP_WATER_VAPOR * t_coil_in) - condensate_heat
-    h_cl = _h(t_leave, w_cl)
     h_after = _h(t_after, w_cl)
     h_supply = h_after if blow_through else h_after + fan_heat / m
     from_condenser = v.dew_point_coil and v.s.reheat_source == "condenser_heat"
@@ -381,10 +394,6 @@ def hourly_results(v: SimpleNamespace) -> dict:
     if v.humidity_control:
         reheat_active = 0.0
     t_supply = (h_supply - LATENT_HEAT_0C * w_cl) / c_cl
-    # zone: what the supply air takes up in the room and the plenum, from the states
-    zone_latent = m * (w_z - w_cl) * h_g_zone
-    to_room = m * c_cl * (t_z - t_supply)
-    plenum = m * (CP_DRY_AIR + CP_WATER_VAPOR * w_z) * (t_r - t_z)
     if reheat_mode:
         # VAV terminal reheat: from the unit's supply to the dry bulb the zone needs (at most
         # the heating supply limit), in heating hours and at the lowest airflow
@@ -392,104 +401,130 @@ def hourly_results(v: SimpleNamespace) -> dict:
         at_lowest = heating | (m <= v.m_lowest * (1.0 + 1e-9))
         reheat = np.where(at_lowest, m * c_cl * np.maximum(t_terminal - t_supply, 0.0), 0.0)
     else:
-        reheat = np.zeros(np.shape(to_room))
-    zone_sensible = to_room - reheat + plenum
-    undersized = np.where(heating, t_need > t_hmax, t_need < t_ss)
-    unmet_sensible = np.where(undersized, q_sens - zone_sensible, 0.0)
-    zone_latent_unmet = np.where(
-        np.abs(q_lat - zone_latent) > 1e-9 * (1.0 + np.abs(q_lat)), q_lat - zone_latent, 0.0
-    )
-    # ventilation, economizer and recovery terms
-    ventilation_sensible = m * x_min * (CP_DRY_AIR + CP_WATER_VAPOR * w_z) * (t_o - t_r)
-    ventilation_latent = m * x_min * (w_o - w_z) * (LATENT_HEAT_0C + CP_WATER_VAPOR * t_o)
-    economizer_effect = m * (x - x_min) * (h_r - h_o)
-    recovery_effect = m * x * (h_o - h_o2)
+        reheat = np.zeros(np.shape(t_supply))
+    if needed(
+        "zone_sensible_kW",
+        "zone_latent_kW",
+        "zone_sensible_unmet_kW",
+        "zone_latent_unmet_kW",
+        "plenum_gain_kW",
+    ):
+        # zone: what the supply air takes up in the room and the plenum, from the states
+        zone_latent = m * (w_z - w_cl) * h_g_zone
+        to_room = m * c_cl * (t_z - t_supply)
+        plenum = m * (CP_DRY_AIR + CP_WATER_VAPOR * w_z) * (t_r - t_z)
+        zone_sensible = to_room - reheat + plenum
+        undersized = np.where(heating, t_need > t_hmax, t_need < t_ss)
+        unmet_sensible = np.where(undersized, q_sens - zone_sensible, 0.0)
+        zone_latent_unmet = np.where(
+            np.abs(q_lat - zone_latent) > 1e-9 * (1.0 + np.abs(q_lat)), q_lat - zone_latent, 0.0
+        )
 
-    out = {
-        "occupied": occupied,
-        "operating": operating,
-        "economizer_mode": np.where(operating, mode, MODE_OFF).astype(np.int8),
-        "outdoor_drybulb_C": t_o,
-        "outdoor_humidity_ratio_kgkg": w_o,
-        "outdoor_enthalpy_kJkg": h_o,
-        "pressure_Pa": p,
-        "supply_mass_flow_kgs": m,
-        "supply_airflow_m3s": m / rho,
-        "supply_airflow_standard_m3s": m / _RHO_STD,
+    # Each column as an expression, evaluated only when asked for (ventilation, economizer
+    # and recovery terms among them).
+    every_column = {
+        "occupied": lambda: occupied,
+        "operating": lambda: operating,
+        "economizer_mode": lambda: np.where(operating, mode, MODE_OFF).astype(np.int8),
+        "outdoor_drybulb_C": lambda: t_o,
+        "outdoor_humidity_ratio_kgkg": lambda: w_o,
+        "outdoor_enthalpy_kJkg": lambda: h_o,
+        "pressure_Pa": lambda: p,
+        "supply_mass_flow_kgs": lambda: m,
+        "supply_airflow_m3s": lambda: m / rho,
+        "supply_airflow_standard_m3s": lambda: m / _RHO_STD,
         # actual volume at the supply state: v of Eq. 26, ASHRAE Handbook Fundamentals Ch. 1
-        "supply_airflow_actual_m3s": m
-        * R_DRY_AIR
-        * (t_supply + ZERO_CELSIUS)
-        * (1.0 + VOLUME_WATER_FACTOR * w_cl)
-        / p,
-        "airflow_fraction": airflow_fraction,
-        "outdoor_air_fraction": x,
-        "outdoor_mass_flow_kgs": m * x,
-        "recovery_fraction": f,
-        "zone_drybulb_C": t_z,
-        "zone_humidity_ratio_kgkg": w_z,
-        "zone_enthalpy_kJkg": _h(t_z, w_z),
-        "zone_relative_humidity": np.minimum(p * w_z / ((MOLAR_MASS_RATIO + w_z) * pws_zone), 1.0),
-        "return_drybulb_C": t_r,
-        "return_humidity_ratio_kgkg": w_z,
-        "return_enthalpy_kJkg": h_r,
-        "recovered_drybulb_C": t_o2,
-        "recovered_humidity_ratio_kgkg": w_o2,
-        "recovered_enthalpy_kJkg": h_o2,
-        "mixed_drybulb_C": t_m,
-        "mixed_humidity_ratio_kgkg": w_m,
-        "mixed_enthalpy_kJkg": h_m,
-        "coil_entering_drybulb_C": t_coil_in,
-        "coil_entering_humidity_ratio_kgkg": w_e,
-        "coil_entering_enthalpy_kJkg": _h(t_coil_in, w_e),
-        "coil_leaving_drybulb_C": t_leave,
-        "coil_leaving_humidity_ratio_kgkg": w_cl,
-        "coil_leaving_enthalpy_kJkg": h_cl,
-        "supply_drybulb_C": t_supply,
-        "supply_humidity_ratio_kgkg": w_cl,
-        "supply_enthalpy_kJkg": h_supply,
-        "apparatus_dew_point_C": np.where(wet, t_adp, np.nan),
-        "bypass_factor": np.where(wet, bf, np.nan),
-        "coil_wet": wet,
-        "coil_total_kW": coil_sensible + coil_latent,
-        "coil_sensible_kW": coil_sensible,
-        "coil_latent_kW": coil_latent,
-        "condensate_kgs": condensate,
-        "condensate_heat_kW": condensate_heat,
-        "preheat_kW": preheat,
-        "heating_coil_kW": heating_coil,
-        "reheat_kW": reheat,
-        "zone_sensible_kW": zone_sensible,
-        "zone_latent_kW": zone_latent,
-        "zone_sensible_unmet_kW": unmet_sensible,
-        "zone_latent_unmet_kW": zone_latent_unmet,
-        "plenum_gain_kW": plenum,
-        "ventilation_sensible_kW": ventilation_sensible,
-        "ventilation_latent_kW": ventilation_latent,
-        "fan_power_kW": fan_power,
-        "fan_heat_kW": fan_heat,
-        "economizer_effect_kW": economizer_effect,
-        "recovery_effect_kW": recovery_effect,
-        "dehumidification_reheat_kW": 0.0 if from_condenser else reheat_active,
-        "condenser_heat_recovered_kW": reheat_active if from_condenser else 0.0,
-        "coil_runaround_heat_kW": runaround,
-        "humidity_control_reheat_kW": humidity_reheat,
+        "supply_airflow_actual_m3s": lambda: (
+            m * R_DRY_AIR * (t_supply + ZERO_CELSIUS) * (1.0 + VOLUME_WATER_FACTOR * w_cl) / p
+        ),
+        "airflow_fraction": lambda: airflow_fraction,
+        "outdoor_air_fraction": lambda: x,
+        "outdoor_mass_flow_kgs": lambda: m * x,
+        "recovery_fraction": lambda: f,
+        "zone_drybulb_C": lambda: t_z,
+        "zone_humidity_ratio_kgkg": lambda: w_z,
+        "zone_enthalpy_kJkg": lambda: _h(t_z, w_z),
+        "zone_relative_humidity": lambda: np.minimum(
+            p * w_z / ((MOLAR_MASS_RATIO + w_z) * pws_zone), 1.0
+        ),
+        "return_drybulb_C": lambda: t_r,
+        "return_humidity_ratio_kgkg": lambda: w_z,
+        "return_enthalpy_kJkg": lambda: h_r,
+        "recovered_drybulb_C": lambda: t_o2,
+        "recovered_humidity_ratio_kgkg": lambda: w_o2,
+        "recovered_enthalpy_kJkg": lambda: h_o2,
+        "mixed_drybulb_C": lambda: t_m,
+        "mixed_humidity_ratio_kgkg": lambda: w_m,
+        "mixed_enthalpy_kJkg": lambda: h_m,
+        "coil_entering_drybulb_C": lambda: t_coil_in,
+        "coil_entering_humidity_ratio_kgkg": lambda: w_e,
+        "coil_entering_enthalpy_kJkg": lambda: _h(t_coil_in, w_e),
+        "coil_leaving_drybulb_C": lambda: t_leave,
+        "coil_leaving_humidity_ratio_kgkg": lambda: w_cl,
+        "coil_leaving_enthalpy_kJkg": lambda: _h(t_leave, w_cl),
+        "supply_drybulb_C": lambda: t_supply,
+        "supply_humidity_ratio_kgkg": lambda: w_cl,
+        "supply_enthalpy_kJkg": lambda: h_supply,
+        "apparatus_dew_point_C": lambda: np.where(wet, t_adp, np.nan),
+        "bypass_factor": lambda: np.where(wet, bf, np.nan),
+        "coil_wet": lambda: wet,
+        "coil_total_kW": lambda: coil_sensible + coil_latent,
+        "coil_sensible_kW": lambda: coil_sensible,
+        "coil_latent_kW": lambda: coil_latent,
+        "condensate_kgs": lambda: condensate,
+        "condensate_heat_kW": lambda: condensate_heat,
+        "preheat_kW": lambda: preheat,
+        "heating_coil_kW": lambda: heating_coil,
+        "reheat_kW": lambda: reheat,
+        "zone_sensible_kW": lambda: zone_sensible,
+        "zone_latent_kW": lambda: zone_latent,
+        "zone_sensible_unmet_kW": lambda: unmet_sensible,
+        "zone_latent_unmet_kW": lambda: zone_latent_unmet,
+        "plenum_gain_kW": lambda: plenum,
+        "ventilation_sensible_kW": lambda: (
+            m * x_min * (CP_DRY_AIR + CP_WATER_VAPOR * w_z) * (t_o - t_r)
+        ),
+        "ventilation_latent_kW": lambda: (
+            m * x_min * (w_o - w_z) * (LATENT_HEAT_0C + CP_WATER_VAPOR * t_o)
+        ),
+        "fan_power_kW": lambda: fan_power,
+        "fan_heat_kW": lambda: fan_heat,
+        "economizer_effect_kW": lambda: m * (x - x_min) * (h_r - h_o),
+        "recovery_effect_kW": lambda: m * x * (h_o - h_o2),
+        "dehumidification_reheat_kW": lambda: 0.0 if from_condenser else reheat_active,
+        "condenser_heat_recovered_kW": lambda: reheat_active if from_condenser else 0.0,
+        "coil_runaround_heat_kW": lambda: runaround,
+        "humidity_control_reheat_kW": lambda: humidity_reheat,
     }
-    shape = np.broadcast_shapes(*(np.shape(v) for v in out.values()))
+    out = {key: value() for key, value in every_column.items() if needed(key)}
+    # the shape of the whole table, whichever columns are asked for (a scalar fill such as
+    # reheat_active = 0.0 is broadcast to it)
+    shape = np.broadcast_shapes(
+        *(np.shape(v) for v in out.values()),
+        *(np.shape(v) for v in (m, x, t_o, w_z, operating, t_supply, heating_coil)),
+    )
     for key, value in out.items():
         if np.shape(value) != shape:
             out[key] = np.broadcast_to(value, shape)
     if not np.all(operating):
         off = ~operating
         for key in _STATE_COLUMNS:
-            out[key] = np.where(off, np.nan, out[key])
+            if key in out:
+                out[key] = np.where(off, np.nan, out[key])
         for key in _FLOW_AND_LOAD_COLUMNS:
-            out[key] = np.where(off, 0.0, out[key])
-        out["coil_wet"] = out["coil_wet"] & operating
+            if key in out:
+                out[key] = np.where(off, 0.0, out[key])
+        if "coil_wet" in out:
+            out["coil_wet"] = out["coil_wet"] & operating
         # the zone loads of off hours are not met by this unit
-        out["zone_sensible_unmet_kW"] = np.where(off, q_sens, out["zone_sensible_unmet_kW"])
-        out["zone_latent_unmet_kW"] = np.where(off, q_lat, out["zone_latent_unmet_kW"])
+        if "zone_sensible_unmet_kW" in out:
+            out["zone_sensible_unmet_kW"] = np.where(off, q_sens, out["zone_sensible_unmet_kW"])
+        if "zone_latent_unmet_kW" in out:
+            out["zone_latent_unmet_kW"] = np.where(off, q_lat, out["zone_latent_unmet_kW"])
     out["humidity_iteration_change"] = change
-    adp_required = np.where(cooling & operating, adp_required, np.nan)
-    out["apparatus_dew_point_required_C"] = np.broadcast_to(adp_required, shape)
+    if want is not None and MINIMUM_IN_A_PASS in want:
+        out[MINIMUM_IN_A_PASS] = np.broadcast_to(v.at_minimum_in_a_pass | ~operating, shape)
+    if needed("apparatus_dew_point_required_C"):
+        adp_required = np.where(cooling & operating, adp_required, np.nan)
+        out["apparatus_dew_point_required_C"] = np.broadcast_to(adp_required, shape)
     return out
