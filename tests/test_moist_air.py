@@ -685,3 +685,19 @@ def test_wet_bulb_with_all_three_groups_of_the_solver():
         expected = np.repeat(alone, counts)
         wet_bulb = ma.wet_bulb_from_humidity_ratio(t, w, P_STD)
         np.testing.assert_allclose(wet_bulb, expected, atol=2 * ma.WET_BULB_TOLERANCE_K)
+
+
+def test_wet_bulb_table_is_built_only_for_long_arrays():
+    # A new pressure's table costs about three Newton steps on 2,000 states: a single
+    # state (a design point) solves from the closed-form guess and builds none; a year
+    # builds one, and a single state at that pressure then starts from it. The answer
+    # is the root of Eq. 33/35 (ASHRAE 2017 Ch. 1) either way.
+    p = 91_234.5
+    ma._WB_TABLES.pop(p, None)
+    alone = ma.wet_bulb_from_humidity_ratio(25.0, 0.01, p)
+    assert p not in ma._WB_TABLES
+    year = ma.wet_bulb_from_humidity_ratio(np.full(3000, 25.0), 0.01, p)
+    assert p in ma._WB_TABLES
+    again = ma.wet_bulb_from_humidity_ratio(25.0, 0.01, p)
+    assert abs(again - alone) < 2 * ma.WET_BULB_TOLERANCE_K
+    np.testing.assert_allclose(year, alone, atol=2 * ma.WET_BULB_TOLERANCE_K)

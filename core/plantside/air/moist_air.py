@@ -35,6 +35,7 @@ References
 
 from __future__ import annotations
 
+import threading
 from dataclasses import dataclass
 from functools import cached_property
 
@@ -1115,9 +1116,15 @@ _WET_BULB_DONE_STEP = 9e-3
 #: depression (dry bulb minus dew point) from 0 to 40 K, both 0.5 K apart.
 _WB_TABLE_T0, _WB_TABLE_STEP, _WB_TABLE_NT, _WB_TABLE_ND = -40.0, 0.5, 201, 81
 _WB_TABLE_SIZE = _WB_TABLE_NT * _WB_TABLE_ND
-#: Wet-bulb tables by station pressure [Pa] (a site's year has one), 8 at most.
+#: Wet-bulb tables by station pressure [Pa] (a site's year has one), 8 at most; built
+#: under a lock (sweep workers run threads).
 _WB_TABLES: dict[float, np.ndarray] = {}
 _WB_TABLES_MAX = 8
+_WB_TABLES_LOCK = threading.Lock()
+#: A new pressure's table (about 2 ms to build) is built only for arrays this long or
+#: longer (about what three Newton steps on them cost); shorter arrays use a kept table
+#: or the closed-form guess.
+_WB_TABLE_MIN_SIZE = 2000
 
 
 def _wet_bulb_tables(p):
@@ -1129,31 +1136,40 @@ def _wet_bulb_tables(p):
     K where the dew point crosses the triple point). Solved once per pressure by
     :func:`_wet_bulb_newton` to its full accuracy (about 2 ms), then kept."""
     tables = _WB_TABLES.get(p)
-    if tables is None:
-        t = _WB_TABLE_T0 + _WB_TABLE_STEP * np.arange(_WB_TABLE_NT)
-        depression = _WB_TABLE_STEP * np.arange(_WB_TABLE_ND)
-        t, td = np.meshgrid(t, depression, indexing="ij")
-        t = t.ravel()
-        td = t - td.ravel()
-        w = humidity_ratio_from_dew_point(td, p, check=False)
-        pw = p * w / (MOLAR_MASS_RATIO + w)
-        tables = np.zeros((2, _WB_TABLE_NT, _WB_TABLE_ND, 4))
-        for k, group in enumerate((2, 0)):
-            _, *rest = _WET_BULB_GROUPS[group]
-            x = _wet_bulb_first_guess(t, w, p, pw, td)
-            x = _wet_bulb_newton(x, t, w, p, t, (DRYBULB_MIN_C, *rest))
-            x = x.reshape(_WB_TABLE_NT, _WB_TABLE_ND)
-            # per cell, f = c0 + c1 v + u (c2 + c3 v) with u, v from 0 to 1 across it
-            c = tables[k, :-1, :-1]
-            c[..., 0] = x[:-1, :-1]
-            c[..., 1] = x[:-1, 1:] - x[:-1, :-1]
-            c[..., 2] = x[1:, :-1] - x[:-1, :-1]
-            c[..., 3] = x[1:, 1:] - x[1:, :-1] - c[..., 1]
-        tables = tables.reshape(-1, 4)
-        if len(_WB_TABLES) >= _WB_TABLES_MAX:
-            del _WB_TABLES[next(iter(_WB_TABLES))]
-        _WB_TABLES[p] = tables
+    if tables is not None:
+        return tables
+    with _WB_TABLES_LOCK:
+        tables = _WB_TABLES.get(p)
+        if tables is None:
+            tables = _wet_bulb_tables_solved(p)
+            if len(_WB_TABLES) >= _WB_TABLES_MAX:
+                del _WB_TABLES[next(iter(_WB_TABLES))]
+            _WB_TABLES[p] = tables
     return tables
+
+
+def _wet_bulb_tables_solved(p):
+    """The tables of :func:`_wet_bulb_tables` at ``p`` [Pa], solved."""
+    t = _WB_TABLE_T0 + _WB_TABLE_STEP * np.arange(_WB_TABLE_NT)
+    depression = _WB_TABLE_STEP * np.arange(_WB_TABLE_ND)
+    t, td = np.meshgrid(t, depression, indexing="ij")
+    t = t.ravel()
+    td = t - td.ravel()
+    w = humidity_ratio_from_dew_point(td, p, check=False)
+    pw = p * w / (MOLAR_MASS_RATIO + w)
+    tables = np.zeros((2, _WB_TABLE_NT, _WB_TABLE_ND, 4))
+    for k, group in enumerate((2, 0)):
+        _, *rest = _WET_BULB_GROUPS[group]
+        x = _wet_bulb_first_guess(t, w, p, pw, td)
+        x = _wet_bulb_newton(x, t, w, p, t, (DRYBULB_MIN_C, *rest))
+        x = x.reshape(_WB_TABLE_NT, _WB_TABLE_ND)
+        # per cell, f = c0 + c1 v + u (c2 + c3 v) with u, v from 0 to 1 across it
+        c = tables[k, :-1, :-1]
+        c[..., 0] = x[:-1, :-1]
+        c[..., 1] = x[:-1, 1:] - x[:-1, :-1]
+        c[..., 2] = x[1:, :-1] - x[:-1, :-1]
+        c[..., 3] = x[1:, 1:] - x[1:, :-1] - c[..., 1]
+    return tables.reshape(-1, 4)
 
 
 def _wet_bulb_table_guess(t, td, p, on_ice):
@@ -1164,7 +1180,7 @@ def _wet_bulb_table_guess(t, td, p, on_ice):
     dew-point depression), so that one Newton step reaches WET_BULB_TOLERANCE_K. None
     when the pressure varies or an element lies off the grid (the closed form of
     :func:`_wet_bulb_first_guess` serves then)."""
-    if np.ndim(p):
+    if np.ndim(p) or (t.size < _WB_TABLE_MIN_SIZE and float(p) not in _WB_TABLES):
         return None
     u = t - _WB_TABLE_T0
     u *= 1.0 / _WB_TABLE_STEP
