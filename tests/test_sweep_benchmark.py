@@ -60,9 +60,20 @@ def _load() -> str:
         return "load n/a"
 
 
+def _busy_share(tasks, seconds: float) -> float:
+    """Share of ``workers x seconds`` the Dask workers spent computing batches (from
+    :func:`dask.distributed.get_task_stream` records)."""
+    busy: dict = {}
+    for task in tasks:
+        for span in task["startstops"]:
+            if span["action"] == "compute":
+                busy[task["worker"]] = busy.get(task["worker"], 0.0) + span["stop"] - span["start"]
+    return sum(busy.values()) / (max(1, len(busy)) * seconds) if seconds > 0 else float("nan")
+
+
 def measure(cases: int, folder: Path, report=print) -> dict:
     """Run the three set-ups on the same sweep; report and return cases/s and the tables."""
-    from dask.distributed import Client, LocalCluster
+    from dask.distributed import Client, LocalCluster, get_task_stream
 
     sweep = benchmark_sweep(folder, cases)
     report(
@@ -90,11 +101,18 @@ def measure(cases: int, folder: Path, report=print) -> dict:
         Client(cluster) as client,
     ):
         start_up = time.perf_counter() - started
-        dask = run_sweep(sweep, folder / "dask", client=client)
+        with get_task_stream(client) as stream:
+            dask = run_sweep(sweep, folder / "dask", client=client)
+    busy = _busy_share(stream.data, dask.seconds)
     report(
         f"  Dask LocalCluster, 2 workers:  {dask.cases_per_second:7.2f} cases/s"
         f"  (x{dask.cases_per_second / one.cases_per_second:.2f} of 1 core; "
         f"cluster start {start_up:.1f} s with the model preloaded, not included; {_load()})"
+    )
+    report(
+        f"  Dask workers computing {100 * busy:.1f} % of the run's wall time (the rest is "
+        "scheduling, transfers and the last batches' tail; other jobs on the machine do not "
+        "lower it)"
     )
     report(
         f"  scaling ratio 2 cores / 1 core: {two.cases_per_second / one.cases_per_second:.2f}"
