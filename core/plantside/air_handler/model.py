@@ -431,7 +431,7 @@ def air_handler_hours(
             else:
                 heat_branch, cool_branch = frozen_recovery
             heat_hours = np.flatnonzero(heat_branch) if heat_branch.ndim == 1 else None
-            if heat_hours is not None and heat_hours.size < heat_branch.size // 2:
+            if heat_hours is not None and heat_hours.size < 0.8 * heat_branch.size:
                 # one array of hours (a year, or a sweep's pairs): the modulation solved
                 # only in the hours that use it
                 f = 1.0 * cool_branch

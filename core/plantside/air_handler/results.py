@@ -197,6 +197,16 @@ def _only_where(mask, fill, function, *arrays):
     return out
 
 
+#: The columns of the zone's balance (from the supply state).
+_ZONE_COLUMNS = (
+    "zone_sensible_kW",
+    "zone_latent_kW",
+    "zone_sensible_unmet_kW",
+    "zone_latent_unmet_kW",
+    "plenum_gain_kW",
+)
+
+
 def hourly_results(v: SimpleNamespace, columns=None) -> dict:
     """Every published column from the model's converged pass.
 
@@ -382,18 +392,29 @@ def hourly_results(v: SimpleNamespace, columns=None) -> dict:
         t_adp = np.where(dew, process_adp, t_adp)
         adp_required = t_adp
         cooling = cooling | dew
-    wet = cooling & (w_cl < w_e)
+    wet = (
+        cooling & (w_cl < w_e)
+        if needed("apparatus_dew_point_C", "bypass_factor", "coil_wet")
+        else None
+    )
     condensate = m * (w_e - w_cl)
     condensate_heat = condensate * CP_LIQUID_WATER * t_leave
     coil_sensible = np.where(cooling, m * c_cl * (t_coil_in - t_leave), 0.0)
     coil_latent = condensate * (LATENT_HEAT_0C + CP_WATER_VAPOR * t_coil_in) - condensate_heat
-    h_after = _h(t_after, w_cl)
-    h_supply = h_after if blow_through else h_after + fan_heat / m
+    supply_state = reheat_mode or needed(
+        "supply_airflow_actual_m3s",
+        "supply_drybulb_C",
+        "supply_enthalpy_kJkg",
+        *_ZONE_COLUMNS,
+    )
+    if supply_state:
+        h_after = _h(t_after, w_cl)
+        h_supply = h_after if blow_through else h_after + fan_heat / m
     from_condenser = v.dew_point_coil and v.s.reheat_source == "condenser_heat"
     humidity_reheat = reheat_active if v.humidity_control else 0.0
     if v.humidity_control:
         reheat_active = 0.0
-    t_supply = (h_supply - LATENT_HEAT_0C * w_cl) / c_cl
+    t_supply = (h_supply - LATENT_HEAT_0C * w_cl) / c_cl if supply_state else None
     if reheat_mode:
         # VAV terminal reheat: from the unit's supply to the dry bulb the zone needs (at most
         # the heating supply limit), in heating hours and at the lowest airflow
@@ -401,14 +422,8 @@ def hourly_results(v: SimpleNamespace, columns=None) -> dict:
         at_lowest = heating | (m <= v.m_lowest * (1.0 + 1e-9))
         reheat = np.where(at_lowest, m * c_cl * np.maximum(t_terminal - t_supply, 0.0), 0.0)
     else:
-        reheat = np.zeros(np.shape(t_supply))
-    if needed(
-        "zone_sensible_kW",
-        "zone_latent_kW",
-        "zone_sensible_unmet_kW",
-        "zone_latent_unmet_kW",
-        "plenum_gain_kW",
-    ):
+        reheat = np.zeros(np.shape(t_leave))
+    if needed(*_ZONE_COLUMNS):
         # zone: what the supply air takes up in the room and the plenum, from the states
         zone_latent = m * (w_z - w_cl) * h_g_zone
         to_room = m * c_cl * (t_z - t_supply)
@@ -501,7 +516,7 @@ def hourly_results(v: SimpleNamespace, columns=None) -> dict:
     # reheat_active = 0.0 is broadcast to it)
     shape = np.broadcast_shapes(
         *(np.shape(v) for v in out.values()),
-        *(np.shape(v) for v in (m, x, t_o, w_z, operating, t_supply, heating_coil)),
+        *(np.shape(v) for v in (m, x, t_o, w_z, operating, t_leave, w_cl, heating_coil)),
     )
     for key, value in out.items():
         if np.shape(value) != shape:
