@@ -177,3 +177,42 @@ def test_a_scenario_loaded_on_the_page_gives_its_air_handlers(state):
         assert panel.build_sweep().base.title == office.title
     finally:
         state.load_scenario(load_scenario(CLINIC))
+
+
+def _send(widget, state):
+    widget._handle_msg({"content": {"data": {"method": "update", "state": state}}, "buffers": []})
+
+
+HOSTILE = [float("nan"), float("inf"), "x" * 1_000_000, None, True, [0.9, 0.1], [0.1], {}, -1, 99]
+
+
+def test_hostile_page_messages_are_refused_and_change_nothing(state, caplog):
+    panel = SweepPanel(state)
+    box = panel.climates["Port Calder"]
+    controls = {
+        "unit": (panel.unit, "index"),
+        "fraction": (panel.fraction, "value"),
+        "steps": (panel.steps, "value"),
+        "climate": (box, "value"),
+        "chart": (panel.chart_choice, "index"),
+    }
+    for name, (widget, key) in controls.items():
+        kept = getattr(widget, key)
+        for raw in HOSTILE:
+            if name == "climate" and isinstance(raw, bool):
+                continue  # a tick is a valid move
+            panel.message.value = ""
+            _send(widget, {key: raw})
+            assert getattr(widget, key) == kept, (name, raw)
+            assert "⚠" in panel.message.value, (name, raw)
+            assert len(panel.message.value) < 400  # a short message, never the value echoed
+        _send(widget, {"disabled": True})  # another trait: refused
+        assert not widget.disabled
+    _send(panel.stop_button, {"disabled": False})  # the page cannot enable Stop
+    assert panel.stop_button.disabled and not panel.running
+    assert not [r for r in caplog.records if r.levelname in ("ERROR", "CRITICAL")]
+    # valid moves are taken
+    _send(panel.steps, {"value": 3})
+    _send(panel.fraction, {"value": [0.2, 0.6]})
+    assert panel.steps.value == 3 and panel.fraction.value == (0.2, 0.6)
+    assert "3 fractions" in panel.count.value

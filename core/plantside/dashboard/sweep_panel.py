@@ -21,6 +21,7 @@ and drawn by :func:`plantside.charts.sweep.sweep_charts`. At most
 from __future__ import annotations
 
 import html
+import math
 import shutil
 import tempfile
 import threading
@@ -34,6 +35,12 @@ import pandas as pd
 
 from plantside.charts.sweep import sweep_charts
 from plantside.climate.bundled import BUNDLED_CLIMATES
+from plantside.dashboard.controls import (
+    GuardedButton,
+    GuardedCheckbox,
+    GuardedDropdown,
+    GuardedInput,
+)
 from plantside.errors import PlantsideError, excerpt
 from plantside.study.figures import first_recirculating_unit
 from plantside.study.sweep import sweep_from_dict
@@ -96,10 +103,10 @@ class SweepPanel:
         self.charts: dict = {}
         self._thread: threading.Thread | None = None
         self._stop = threading.Event()
-        self.unit = widgets.Dropdown(
+        self.unit = GuardedDropdown(
             options=[("", "1")], description="Air handler", style={"description_width": "10em"}
         )
-        self.fraction = widgets.FloatRangeSlider(
+        self.fraction = GuardedRangeSlider(
             value=(0.1, 0.5),
             min=0.0,
             max=1.0,
@@ -109,7 +116,7 @@ class SweepPanel:
             style={"description_width": "10em"},
             continuous_update=False,
         )
-        self.steps = widgets.BoundedIntText(
+        self.steps = GuardedIntText(
             value=5,
             min=MIN_STEPS,
             max=MAX_STEPS,
@@ -122,14 +129,20 @@ class SweepPanel:
         self._climate_box = widgets.VBox([])
         self._note = widgets.HTML("")
         self.count = widgets.HTML()
-        self.run_button = widgets.Button(description="Run sweep", button_style="primary")
-        self.stop_button = widgets.Button(description="Stop", disabled=True)
+        self.run_button = GuardedButton(description="Run sweep", button_style="primary")
+        self.stop_button = GuardedButton(description="Stop", disabled=True)
         self.progress = widgets.IntProgress(value=0, min=0, max=1, description="")
         self.progress_text = widgets.HTML("")
         self.message = widgets.HTML("")
-        self.chart_choice = widgets.Dropdown(options=[], description="Chart")
+        self.chart_choice = GuardedDropdown(options=[], description="Chart")
         self.chart_box = widgets.VBox([])
         self.failed = widgets.HTML("")
+        _guard(self.unit, lambda raw: _check_index(raw, self.unit), self._refused)
+        _guard(self.chart_choice, lambda raw: _check_index(raw, self.chart_choice), self._refused)
+        _guard(self.fraction, _check_range, self._refused)
+        _guard(self.steps, _check_steps, self._refused)
+        for button in (self.run_button, self.stop_button):
+            button.refused = self._refused
         self.run_button.on_click(lambda _: self.start())
         self.stop_button.on_click(lambda _: self.stop())
         for control in (self.unit, self.fraction, self.steps):
@@ -184,15 +197,16 @@ class SweepPanel:
             ticked = set(self.chosen_climates()) or {str(state.inputs.climate)}
             boxes = {}
             for name in BUNDLED_CLIMATES:
-                boxes[name] = self.climates.get(name) or widgets.Checkbox(
+                boxes[name] = self.climates.get(name) or GuardedCheckbox(
                     value=name in ticked, description=name, indent=False
                 )
             if own is not None:
-                boxes[own.label] = widgets.Checkbox(
+                boxes[own.label] = GuardedCheckbox(
                     value=True, description=f"{own.label} (this page's weather file)", indent=False
                 )
             for name, box in boxes.items():
                 if name not in self.climates:
+                    _guard(box, _check_tick, self._refused)
                     box.observe(lambda _: self._show_count(), names="value")
             self.climates, self._own = boxes, own
             self._climate_box.children = tuple(boxes.values())
@@ -403,10 +417,64 @@ class SweepPanel:
         view.add_class("plantside-chart-sweep")
         self.chart_box.children = (view,)
 
+    def _refused(self, message: str) -> None:
+        """What the page sent was refused (the control keeps its value): say why."""
+        self._say(message, warn=True)
+
     def _say(self, text: str, warn: bool = False) -> None:
         mark = "⚠ " if warn else ""
         css = "plantside-message" if warn else "plantside-help"
         self.message.value = f"<div class='{css}' role='status'>{mark}{html.escape(text)}</div>"
+
+
+# ---------------------------------------------------------------------------------------
+# controls that check what the page sends (plantside.dashboard.controls.GuardedInput)
+# ---------------------------------------------------------------------------------------
+class GuardedRangeSlider(GuardedInput, widgets.FloatRangeSlider):
+    """A FloatRangeSlider whose page messages are checked first."""
+
+
+class GuardedIntText(GuardedInput, widgets.BoundedIntText):
+    """A BoundedIntText whose page messages are checked first."""
+
+
+def _guard(widget, check, refused) -> None:
+    widget.check = check
+    widget.refused = refused
+
+
+def _is_number(value) -> bool:
+    return isinstance(value, int | float) and not isinstance(value, bool) and math.isfinite(value)
+
+
+def _check_index(raw, widget) -> str:
+    count = len(widget.options)
+    if isinstance(raw, int) and not isinstance(raw, bool) and 0 <= raw < count:
+        return ""
+    return f"{widget.description}: expected one of the {count} choices shown"
+
+
+def _check_range(raw) -> str:
+    if (
+        isinstance(raw, list | tuple)
+        and len(raw) == 2
+        and all(_is_number(v) for v in raw)
+        and 0.0 <= raw[0] <= raw[1] <= 1.0
+    ):
+        return ""
+    return (
+        "Outdoor-air fraction: expected two fractions from 0 to 1, the first not above the second"
+    )
+
+
+def _check_steps(raw) -> str:
+    if isinstance(raw, int) and not isinstance(raw, bool) and MIN_STEPS <= raw <= MAX_STEPS:
+        return ""
+    return f"Steps: expected a whole number from {MIN_STEPS} to {MAX_STEPS}"
+
+
+def _check_tick(raw) -> str:
+    return "" if isinstance(raw, bool) else "Climates: expected ticked or not"
 
 
 def _chart_name(name: str, sweep) -> str:
