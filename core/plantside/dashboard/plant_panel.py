@@ -100,7 +100,12 @@ def plant_duration_chart(
     top = float(max(curves["load"].max(), lines["load"].max()) * 1.1) or 1.0
     axis_load = f"{'Heating' if plant.kind == 'heating' else 'Cooling'} load [{unit}]"
     base = alt.Chart(curves).encode(
-        x=alt.X("hours:Q", title="Hours at or above load [h]", scale=alt.Scale(domain=[0, 8760])),
+        x=alt.X(
+            "hours:Q",
+            title="Hours at or above load [h]",
+            scale=alt.Scale(domain=[0, 8760], nice=False),
+            axis=alt.Axis(values=[0, 2000, 4000, 6000, 8760], format=",d"),
+        ),
         y=alt.Y("load:Q", title=axis_load, scale=alt.Scale(domain=[0, top], nice=False)),
     )
     line = base.mark_line(color=colour, strokeWidth=2.5).encode(
