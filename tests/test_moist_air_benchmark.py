@@ -10,6 +10,7 @@ relative humidity that falls as the afternoon warms, at a fictional site 350 m u
 
 from __future__ import annotations
 
+import os
 import time
 
 import numpy as np
@@ -75,7 +76,7 @@ def test_benchmark_year_of_states_against_psychrolib_loop():
         f"\nmoist-air vectorised vs psychrolib loop (wet bulb, dew point, enthalpy), CPU time, "
         f"best of 20 and 2: {HOURS} states, {fast_seconds * 1e3:.1f} ms vs "
         f"{loop_seconds * 1e3:.0f} ms, {loop_seconds / fast_seconds:.0f}x (target >= 300x; "
-        f"99-168x before the speed work of issue 15)"
+        f"99-168x before the speed work of issue 15); load average {os.getloadavg()[0]:.1f}"
     )
     np.testing.assert_allclose(enthalpy, ref_enthalpy, rtol=1e-9)
     np.testing.assert_allclose(dew_point, ref_dew_point, atol=1e-3)
