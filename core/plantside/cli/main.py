@@ -26,6 +26,7 @@ from pathlib import Path
 
 import numpy as np
 
+from plantside.cli.climate_stress import add_stress_parser
 from plantside.cli.report import add_report_parser
 from plantside.cli.sweep import add_sweep_parser
 from plantside.errors import NAME_EXCERPT_CHARS, PlantsideError, excerpt
@@ -63,6 +64,7 @@ def _condition_text(condition, system) -> str:
 
 
 def _design_text(result) -> str:
+    from plantside.study.figures import plant_design_condition
     from plantside.study.run import heating_load_columns
 
     scenario = result.scenario
@@ -106,13 +108,8 @@ def _design_text(result) -> str:
         )
     lines += ["(* governs the coil)", ""]
     lines += _coil_schedule_text(result)
-    cooling_kind = str(result.cooling.design_table["plant_kW"].idxmax())
-    governing = {
-        "cooling": result.conditions.cooling(cooling_kind, scenario.cooling_design_percent),
-        "heating": result.conditions.heating(scenario.heating_design_percent),
-    }
     for plant, quantity in ((result.cooling, "power"), (result.heating, "heating_power")):
-        condition = governing[plant.kind]
+        condition = plant_design_condition(result, plant.kind)
         lines.append(
             f"{plant.kind.capitalize()} plant: design load "
             f"{_fmt(quantity, plant.design_load, system)}"
@@ -379,6 +376,7 @@ def build_parser() -> argparse.ArgumentParser:
     climates.set_defaults(func=_cmd_climates)
     add_sweep_parser(sub)
     add_report_parser(sub)
+    add_stress_parser(sub)
     return parser
 
 

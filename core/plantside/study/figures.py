@@ -39,6 +39,7 @@ __all__ = [
     "load_energy",
     "load_peak",
     "outdoor_air_fraction_of",
+    "plant_design_condition",
     "plant_option_specs",
     "view_loads",
 ]
@@ -189,6 +190,30 @@ def coincident_cooling_design(
         rows.append(row)
     table = pd.DataFrame(rows).set_index("kind")
     return CoincidentDesign(table, str(table["plant_kW"].idxmax()))
+
+
+def plant_design_condition(result, kind: str):
+    """The design condition that governs a plant of a study: a condition object, not text.
+
+    The cooling plant's is the one whose coincident plant load is largest (the row
+    :func:`coincident_cooling_design` picked, kept in the plant's ``design_table``), at
+    the scenario's cooling percentage; the heating plant's is the heating condition at
+    the scenario's heating percentage. Shown through
+    :func:`plantside.charts.labels.condition_text`, so its figures are rounded once,
+    from SI, as the header's are.
+
+    Parameters
+    ----------
+    result : StudyResult
+    kind : {"cooling", "heating"}
+    """
+    scenario = result.scenario
+    if kind == "cooling":
+        row = str(result.cooling.design_table["plant_kW"].idxmax())
+        return result.conditions.cooling(row, scenario.cooling_design_percent)
+    if kind == "heating":
+        return result.conditions.heating(scenario.heating_design_percent)
+    raise ValueError(f"kind must be 'cooling' or 'heating', not {kind!r}")
 
 
 def view_loads(
