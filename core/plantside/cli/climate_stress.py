@@ -21,42 +21,20 @@ __all__ = ["add_stress_parser", "cmd_stress", "stress_text"]
 
 def stress_text(stress, system: str) -> str:
     """The test as a readable table in ``system`` (IP or SI)."""
-    from plantside.charts.labels import condition_text
+    from plantside.charts.climate_stress import climate_stress_rows, shifted_label
     from plantside.study.climate_stress import STRESS_CAUTION
-    from plantside.units import to_display
 
-    def power(value: float) -> str:
-        shown, unit = to_display("power", value, system)
-        return f"{float(shown):,.1f} {unit}"
-
-    def energy(value: float) -> str:
-        shown, unit = to_display("energy", value, system)
-        return f"{float(shown):,.0f} {unit}"
-
-    rows = [
-        ("design load (its own design conditions)", "design_load", power),
-        ("cooling capacity, sized on the recorded year", "capacity", power),
-        ("peak of the year", "peak", power),
-        ("load energy of the year", "energy", energy),
-        ("hours above capacity", "hours_above_capacity", lambda v: f"{v:,d} h"),
-        ("load energy above capacity", "unmet_energy", energy),
-    ]
-    years = (stress.designed, stress.shifted)
+    rows = climate_stress_rows(stress, system)
     width = max(len(r[0]) for r in rows) + 2
+    column = max(18, *(len(r[1]) + 2 for r in rows))
     lines = [
         f"Climate stress test: {stress.designed_study.scenario.title}",
         f"Site: {stress.designed_study.weather.site}; units: {system}",
+        f"Shifted year: {shifted_label(stress, system).removeprefix('Shifted year (')[:-1]}",
         "",
-        f"{'':{width}}{'as designed':>18}{'shifted':>18}",
+        f"{'':{width}}{'recorded year':<{column}}shifted year",
     ]
-    for label, field, text in rows:
-        lines.append(f"{label:{width}}" + "".join(f"{text(getattr(y, field)):>18}" for y in years))
-    for y in years:
-        label = f"governing design condition, {y.label}"
-        lines.append(f"{label:{width}}{condition_text(y.governing, system)}")
-    for (name, before), (_, after) in zip(*(y.humidity_hours for y in years), strict=True):
-        label = f"{name}: hours above humidity limit"
-        lines.append(f"{label:{width}}{before:>16,d} h{after:>16,d} h")
+    lines += [f"{label:{width}}{before:<{column}}{after}" for label, before, after in rows]
     if stress.saturated_hours:
         lines.append(f"({stress.saturated_hours} shifted hours held at saturation)")
     verdict = stress.verdict.ip if system == "IP" else str(stress.verdict)
