@@ -19,6 +19,7 @@ import pandas as pd
 import pytest
 from plantside.charts.sweep import sweep_charts
 from plantside.climate.bundled import BUNDLED_CLIMATES
+from plantside.dashboard.controls import GuardedInput
 from plantside.dashboard.state import DashboardState
 from plantside.dashboard.sweep_panel import MAX_PANEL_CASES, SweepPanel
 from plantside.study.scenario import load_scenario
@@ -188,6 +189,7 @@ HOSTILE = [float("nan"), float("inf"), "x" * 1_000_000, None, True, [0.9, 0.1], 
 
 def test_hostile_page_messages_are_refused_and_change_nothing(state, caplog):
     panel = SweepPanel(state)
+    assert all(isinstance(w, GuardedInput) for w in panel.controls.values())
     box = panel.climates["Port Calder"]
     controls = {
         "unit": (panel.unit, "index"),

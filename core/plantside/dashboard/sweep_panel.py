@@ -220,6 +220,21 @@ class SweepPanel:
         )
         self._show_count()
 
+    @property
+    def controls(self) -> dict:
+        """Every widget of the panel the page can send a message to, by a name (each a
+        :class:`~plantside.dashboard.controls.GuardedInput`; for the widget fuzz test)."""
+        found = {
+            "sweep_air_handler": self.unit,
+            "sweep_fraction": self.fraction,
+            "sweep_steps": self.steps,
+            "sweep_run": self.run_button,
+            "sweep_stop": self.stop_button,
+            "sweep_chart": self.chart_choice,
+        }
+        found.update({f"sweep_climate_{name}": box for name, box in self.climates.items()})
+        return found
+
     # ------------------------------------------------------------------ planning
     def _own_climate(self) -> ClimateChoice | None:
         """The page's weather file read from disk (a scenario's ``weather_file``), if any."""
