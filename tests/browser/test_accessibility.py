@@ -188,7 +188,16 @@ def test_every_control_works_from_the_keyboard(dashboard_server, new_page):
     missing = [f"{c} ({k})" for c, k in expected.items() if not reached(stops, c, k)]
     assert not missing, (missing, stops)
     assert any(s["kind"] == "input" for s in stops)  # the economizer-operation checkbox
-    assert any("plantside-tables" in s["control"] for s in stops)  # the tables' scroll box
+    # the plant page's parts switch (the water side's tables are on their own part) and the
+    # plant's option choosers and margin sliders
+    for control, kind in (
+        ("plantside-page-choice", "button"),
+        ("plantside-cooling-option", "select"),
+        ("plantside-cooling-margin-percent", "slider"),
+        ("plantside-heating-option", "select"),
+        ("plantside-heating-margin-percent", "slider"),
+    ):
+        assert reached(stops, control, kind), (control, stops)
 
     # an arrow key moves the outdoor-air slider, and the figures follow
     figures = page.inner_text(".plantside-figures")

@@ -13,6 +13,7 @@ scenario; the option shown is a view setting, named in every stamp.
 from __future__ import annotations
 
 import html
+import itertools
 import math
 from collections.abc import Callable
 from contextlib import contextmanager
@@ -51,6 +52,11 @@ PLANT_CONTROL_LABELS = {
         "Heating design capacity = heating design load × (1 + margin / 100); saved.",
     ),
 }
+
+
+#: Numbers the help lines' element ids, unique on the page (a slider handle and a select
+#: are described by their help line, ``aria-describedby``).
+_HELP_IDS = itertools.count(1)
 
 
 def _message_html(text: str) -> str:
@@ -113,11 +119,13 @@ class PlantControls:
             parts = [
                 widgets.HTML(f"<span class='plantside-label'>{html.escape(label)}</span>"),
                 widget,
-                widgets.HTML(f"<div class='plantside-help'>{html.escape(help_text)}</div>"),
+                widgets.HTML(
+                    f"<div class='plantside-help' id='plantside-plant-help-{next(_HELP_IDS)}'>"
+                    f"{html.escape(help_text)}</div>"
+                ),
                 self.messages[name],
+                AccessibleName(label=label),  # names a slider's handle, ties the help line
             ]
-            if isinstance(widget, GuardedFloatSlider):
-                parts.append(AccessibleName(label=label))  # names the slider's handle
             box = widgets.VBox(parts)
             box.add_class("plantside-control")
             self.boxes[name] = box
