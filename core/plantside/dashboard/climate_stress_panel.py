@@ -85,6 +85,7 @@ class ClimateStressPanel:
         self.run_button.on_click(lambda _: self.run())
         self.message = widgets.HTML()
         self.message.add_class("plantside-message")
+        self.stale = widgets.HTML()
         self.results = widgets.HTML()
         self.results.add_class("plantside-stress-results")
         self.chart = None
@@ -103,6 +104,7 @@ class ClimateStressPanel:
                 widgets.HBox(controls),
                 self.run_button,
                 self.message,
+                self.stale,
                 self.results,
                 self.chart_box,
             ]
@@ -172,9 +174,22 @@ class ClimateStressPanel:
         return True
 
     def _on_state(self, state) -> None:
+        """A move on the page: only the stale line (cheap, off the move's path), unless the
+        units changed, which redraws the results in the new units."""
         if state.inputs.unit_system != self._system:
             self._set_units(state.inputs.unit_system, self.values_k())
-        self.update()
+            self.update()
+        else:
+            self._show_stale()
+
+    def _show_stale(self) -> None:
+        stale = self.stress is not None and self._ran_for is not self.state.result
+        self.stale.value = (
+            "<p class='plantside-stale'>The page's inputs changed after this test ran: run "
+            "it again for the figures of the current inputs.</p>"
+            if stale
+            else ""
+        )
 
     def update(self, width: int | None = None) -> None:
         """Redraw the results in the units on show (nothing to draw before a run)."""
@@ -188,19 +203,14 @@ class ClimateStressPanel:
             for row in rows
         )
         verdict = stress.verdict.ip if system == "IP" else str(stress.verdict)
-        stale = (
-            "<p class='plantside-stale'>The page's inputs changed after this test ran: run "
-            "it again for the figures of the current inputs.</p>"
-            if self._ran_for is not self.state.result
-            else ""
-        )
+        self._show_stale()
         held = (
             f" {stress.saturated_hours} shifted hours were held at saturation."
             if stress.saturated_hours
             else ""
         )
         self.results.value = (
-            f"{stale}<p class='plantside-stress-verdict'><b>{html.escape(verdict)}</b>"
+            f"<p class='plantside-stress-verdict'><b>{html.escape(verdict)}</b>"
             f"{held}</p>"
             f"<table class='plantside-table'><caption>{html.escape(shifted_label(stress, system))}"
             " against the recorded year</caption><thead><tr><th></th><th>Recorded year</th>"
