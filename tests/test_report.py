@@ -412,6 +412,7 @@ def test_dashboard_report_shows_what_is_on_screen(view):
     assert html.escape("SI (inputs in the scenario's IP)") in text
     # the water side the plant page shows, the same tables
     if view == "plant":
+        board.show_page("Water side")  # its part is worked out when shown
         assert board.water_side.tables.value.count("<table") >= 2
         for table in re.findall(r"<table.*?</table>", board.water_side.tables.value, re.S):
             assert table in text
