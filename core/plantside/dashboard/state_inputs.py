@@ -270,16 +270,26 @@ class DashboardInputs:
             plant_view=plant_view,
             system=system or self.unit_system,
         )
-        return f"{text} · {self.plant_stamp(scenario)}"
+        plant = self.plant_stamp(scenario)
+        return f"{text} · {plant}" if plant else text
 
     def plant_stamp(self, scenario) -> str:
-        """The sizing margins and the plant options shown, for the stamp."""
-        cooling = plant_option_specs(scenario.cooling_options, "cooling")[self.cooling_option]
-        heating = plant_option_specs(scenario.heating_options, "heating")[self.heating_option]
-        return (
-            f"cooling margin {self.cooling_margin_percent:g} %, option {cooling.name} · "
-            f"heating margin {self.heating_margin_percent:g} %, option {heating.name}"
-        )
+        """The plant settings that differ from ``scenario`` (the file), for the stamp: a
+        sizing margin moved, a plant option other than the first shown ("" if none).
+
+        As for the air handlers, the stamp names what differs from the scenario file, so
+        an export made before any control moved carries the command line's stamp.
+        """
+        parts = []
+        for kind in ("cooling", "heating"):
+            margin = getattr(self, f"{kind}_margin_percent")
+            if margin != getattr(scenario, f"{kind}_margin_percent"):
+                parts.append(f"{kind} margin {margin:g} %")
+            index = getattr(self, f"{kind}_option")
+            if index:
+                name = plant_option_specs(getattr(scenario, f"{kind}_options"), kind)[index].name
+                parts.append(f"{kind} option {name}")
+        return ", ".join(parts)
 
 
 def _finite_float(name: str, value, low: float, high: float, unit: str) -> float:
