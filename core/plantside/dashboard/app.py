@@ -37,16 +37,19 @@ from plantside.charts.export import chart_bytes, safe_filename
 from plantside.charts.labels import export_stamp
 from plantside.charts.palette import WIDTH
 from plantside.charts.study_frames import CHARTS, ChartView, chart_frames, study_chart
+from plantside.dashboard.climate_stress_panel import ClimateStressPanel
 from plantside.dashboard.controls import (
     Controls,
     GuardedButton,
     GuardedDropdown,
     GuardedToggleButtons,
 )
+from plantside.dashboard.derivations_panel import DerivationsPanel
 from plantside.dashboard.download import BrowserDownload
 from plantside.dashboard.panel_width import PanelWidth, fitted_plot_width
 from plantside.dashboard.plant_controls import PlantControls
 from plantside.dashboard.plant_panel import PLANT_KINDS, PlantPanel
+from plantside.dashboard.report_export import DesignReportExport
 from plantside.dashboard.serve import SCENARIO_ENVIRONMENT_VARIABLE
 from plantside.dashboard.spec import SpecWriter
 from plantside.dashboard.state import (
@@ -56,6 +59,7 @@ from plantside.dashboard.state import (
     condition_text,
     display_text,
 )
+from plantside.dashboard.sweep_panel import SweepPanel
 from plantside.dashboard.water_side_panel import WaterSidePanel
 from plantside.errors import PlantsideError, ScenarioError
 from plantside.study.figures import ViewLoads, first_recirculating_unit
@@ -189,15 +193,29 @@ class Dashboard:
         self.water_side = WaterSidePanel(self.state, plant=view == "plant")
         self.plant_controls = self.plant_panel = None
         self.page_choice = self.pages = None
+        self.stress_panel = self.sweep_panel = None
+        # "how this is worked out" under the figures and each chart (the water side's only
+        # when its part is on show)
+        self.derivations = DerivationsPanel(
+            self.state,
+            plant=view == "plant",
+            water_side=self.water_side.water_side if view == "plant" else None,
+        )
+        self.report_export = DesignReportExport(self.state, self.download)
         if view == "plant":
             # the whole plant (cooling and heating) and the water side: each part is worked
             # out only when shown, off the critical path of a slider move
             self.plant_controls = PlantControls(self.state, self.controls.guarded)
             self.plant_panel = PlantPanel(self.state)
             self._plant_export_buttons()
+            self.stress_panel = ClimateStressPanel(self.state)  # runs on its own button
+            self.sweep_panel = SweepPanel(self.state)  # runs in a thread on its own button
         else:
             self.water_side.update(self.widths["design"])
         self.widget = self._layout()
+        if view == "plant":
+            self.add_page("Climate stress test", self.stress_panel.box)
+            self.add_page("Sweep", self.sweep_panel.box)
         self.state.listeners.append(self._on_state)
         self._show_text()
 
@@ -268,12 +286,14 @@ class Dashboard:
         for name in CHARTS:
             tools = widgets.HBox(self.export_buttons[name])
             tools.add_class("plantside-chart-tools")
-            panel = widgets.VBox([tools, self.charts[name]])
+            panel = widgets.VBox([tools, self.charts[name], self.derivations.for_chart(name)])
             panel.add_class("plantside-chart")
             panels.append(panel)
         if self.view == "plant":
             design_page = widgets.VBox(panels)
-            water_page = widgets.VBox([self.water_side.tables, self.water_side.box])
+            water_page = widgets.VBox(
+                [self.water_side.tables, self.water_side.box, self.derivations.for_chart("water")]
+            )
             water_page.add_class("plantside-water-page")
             self._page_widgets = [design_page, self.plant_panel.box, water_page]
             self.pages = widgets.Stack(self._page_widgets, selected_index=0)
@@ -302,6 +322,7 @@ class Dashboard:
                 self.header,
                 self.caution,
                 self.figures,
+                self.derivations.figures,
                 *([self.water_side.tables] if self.view != "plant" else []),
                 self.status,
                 body,
@@ -323,13 +344,24 @@ class Dashboard:
         )
         toml_button.add_class("plantside-export-toml")
         toml_button.on_click(self.controls.guarded("export", lambda _: self.export_scenario()))
-        self.file_buttons = {"csv": csv_button, "toml": toml_button}
+        report_button = GuardedButton(
+            description="Design report (HTML)",
+            tooltip="One HTML file of what is on show: figures, charts, derivations, inputs, "
+            "cautions; prints to PDF from the browser",
+            layout=wide,
+        )
+        report_button.add_class("plantside-export-report")
+        report_button.on_click(
+            self.controls.guarded("export", lambda _: self.report_export.export())
+        )
+        self.file_buttons = {"csv": csv_button, "toml": toml_button, "report": report_button}
         self.export_message = widgets.HTML()
         box = widgets.VBox(
             [
                 widgets.HTML("<span class='plantside-label'>Download</span>"),
                 csv_button,
                 toml_button,
+                report_button,
                 self.export_message,
             ]
         )
@@ -470,6 +502,7 @@ class Dashboard:
         shown = self.page_shown()
         if self.view != "plant" or shown == "Water side":
             self.water_side.update(self.widths["design"])
+            self.derivations.update(water=self.view == "plant")
         if shown == PLANT_PAGES[1]:
             self.plant_panel.update()
 
@@ -574,6 +607,7 @@ class Dashboard:
             f"plantside {__version__}</div>"
         )
         self.figures.value = self._figures_html()
+        self.derivations.update(water=self.page_shown() == "Water side")
         self.mini_figures.value = self._mini_html()
         if state.stale:
             self.status.value = (
