@@ -89,6 +89,17 @@ def _controls(dashboard: Dashboard) -> dict:
     for name, buttons in dashboard.export_buttons.items():
         for button in buttons:
             found[f"export_{name}_{button.description.lower()}"] = button
+    if dashboard.view == "plant":  # the plant page's parts and their own controls
+        found["page"] = dashboard.page_choice
+        for name, slider in dashboard.stress_panel.sliders.items():
+            found[f"stress_{name}"] = slider
+        # the run buttons start a study or a sweep (seconds each): their clicks are tested
+        # in the panels' own tests, not a thousand times here
+        found.update(
+            (name, widget)
+            for name, widget in dashboard.sweep_panel.controls.items()
+            if name != "sweep_run"
+        )
     return found
 
 
