@@ -839,6 +839,9 @@ def test_plant_option_chooser_sets_the_machines_and_names_them(scenario):
     dashboard.state.set("cooling_option", 2)
     lines = {r["line"] for r in chart_rows(dashboard, "distribution") if r.get("line")}
     assert any(scenario.cooling_options[2].name in line for line in lines), lines
+    title = dashboard.chart_specs["distribution"].to_dict()["title"]["text"]
+    title = " ".join(title) if isinstance(title, list) else title
+    assert scenario.cooling_options[2].name in title, title  # the title names the option
     assert scenario.cooling_options[2].name in dashboard.stamp()
 
 

@@ -245,7 +245,12 @@ def study_chart(name: str, frames: dict, system: str, view: ChartView, width: in
             frames["bins"],
             frames["weights"],
             system=system,
-            title=f"How the year's load spreads over the capacity, {who}",
+            title=(
+                f"How the year's load spreads over the capacity, {who} "
+                f"(plant option {view.figures.option_name})"
+                if view.plant
+                else f"How the year's load spreads over the capacity, {who}"
+            ),
             width=width,
         )
     if name == "psychrometric":
