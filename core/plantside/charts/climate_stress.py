@@ -35,23 +35,27 @@ def climate_stress_frames(stress, system: str, points: int = 200) -> dict:
     curves = load_duration_frame(
         {
             "Recorded year": stress.designed_study.cooling.hourly_load,
-            shifted_label(stress, system): stress.shifted_study.cooling.hourly_load,
+            "Shifted year": stress.shifted_study.cooling.hourly_load,
         },
         system,
         points=points,
     )
     lines = capacity_lines_frame([stress.designed.capacity], system)
     lines["line"] = "Capacity as sized"
-    return {"curves": curves, "lines": lines}
+    return {"curves": curves, "lines": lines, "title": shifted_label(stress, system)}
 
 
-def climate_stress_chart(curves, lines, system: str, width: int | None = None):
-    """Load-duration curves of the two years with the capacity sized on the recorded one."""
+def climate_stress_chart(curves, lines, system: str, shifted: str = "", width: int | None = None):
+    """Load-duration curves of the two years with the capacity sized on the recorded one.
+
+    ``shifted`` names the shift in the title (the frames' ``title``).
+    """
+    shifted = f" {shifted[len('Shifted year ') :]}" if shifted else ""
     return load_duration_chart(
         curves,
         lines,
         system,
-        title="Climate stress test: the cooling plant as sized, recorded and shifted year",
+        title=f"Climate stress test{shifted}: the cooling plant as sized",
         width=width,
     )
 

@@ -209,6 +209,7 @@ class Dashboard:
             self.plant_panel = PlantPanel(self.state)
             self._plant_export_buttons()
             self.stress_panel = ClimateStressPanel(self.state)  # runs on its own button
+            self.stress_panel.width = self.widths["distribution"]  # the same chart builder
             self.sweep_panel = SweepPanel(self.state)  # runs in a thread on its own button
         else:
             self.water_side.update(self.widths["design"])
@@ -451,6 +452,13 @@ class Dashboard:
                 resized = True
         if resized:
             self.update_charts()
+            if (
+                self.stress_panel is not None
+                and self.stress_panel.width != self.widths["distribution"]
+            ):
+                self.stress_panel.width = self.widths["distribution"]
+                if self.stress_panel.stress is not None:
+                    self.stress_panel.update()
 
     def update_charts(self) -> list[str]:
         """Rebuild the charts whose data or width changed; return their names."""

@@ -84,7 +84,9 @@ class ClimateStressPanel:
         self.run_button.add_class("plantside-stress-run")
         self.run_button.on_click(lambda _: self.run())
         self.message = widgets.HTML()
-        self.message.add_class("plantside-message")
+        #: Plot width of the chart [px] (the page sets it to fit its panel; None: the
+        #: builders' own).
+        self.width: int | None = None
         self.stale = widgets.HTML()
         self.results = widgets.HTML()
         self.results.add_class("plantside-stress-results")
@@ -149,7 +151,9 @@ class ClimateStressPanel:
         return ""
 
     def _show_message(self, text: str) -> None:
-        self.message.value = f"⚠ {html.escape(text)}" if text else ""
+        self.message.value = (
+            f"<div class='plantside-message'>⚠ {html.escape(text)}</div>" if text else ""
+        )
 
     # ------------------------------------------------------------------ running
     def run(self) -> bool:
@@ -218,7 +222,10 @@ class ClimateStressPanel:
             f"<p class='plantside-caution-text'>⚠ {html.escape(STRESS_CAUTION)}</p>"
         )
         frames = climate_stress_frames(stress, system)
-        chart = climate_stress_chart(frames["curves"], frames["lines"], system, width=width)
+        width = self.width if width is None else width
+        chart = climate_stress_chart(
+            frames["curves"], frames["lines"], system, frames["title"], width=width
+        )
         self.chart_spec = chart
         if self.chart is None:
             self.chart = alt.JupyterChart(
