@@ -22,9 +22,10 @@ import ipywidgets as widgets
 import numpy as np
 import pandas as pd
 
+from plantside.charts.labels import condition_text
 from plantside.charts.palette import COIL, REFERENCE, STAGE, themed
 from plantside.plant.staging import PlantOption
-from plantside.study.figures import plant_option_specs
+from plantside.study.figures import plant_design_condition, plant_option_specs
 from plantside.units import display_text, to_display
 
 __all__ = ["PLANT_KINDS", "PlantPanel", "plant_duration_chart"]
@@ -215,14 +216,26 @@ class PlantPanel:
                 )
             else:
                 self.charts[kind].spec = chart.to_dict()
-            self.tables[kind].value = plant_tables_html(plant, option.name, system)
+            self.tables[kind].value = plant_tables_html(
+                plant, option.name, system, plant_design_condition(plants, kind)
+            )
             self._shown[kind] = key
             changed.append(kind)
         return changed
 
 
-def plant_tables_html(plant, option_name: str, system: str) -> str:
-    """One plant's figures, part-load hours and staging of every option, as HTML tables."""
+#: An efficiency metric as the table shows it (AHRI 550/590 writes IPLV in kW/ton, EER
+#: or COP).
+_METRIC_TEXT = {"kw_per_ton": "kW/ton", "cop": "COP", "eer": "EER"}
+
+
+def plant_tables_html(plant, option_name: str, system: str, condition=None) -> str:
+    """One plant's figures, part-load hours and staging of every option, as HTML tables.
+
+    ``condition`` is the governing design condition as an object
+    (:func:`plantside.study.figures.plant_design_condition`), rounded once from SI as
+    the header's; without it the plant's own text is converted.
+    """
     title, quantity, energy_quantity, _ = PLANT_KINDS[plant.kind]
 
     def power(v):
@@ -234,7 +247,14 @@ def plant_tables_html(plant, option_name: str, system: str) -> str:
     energy, energy_unit = _value(energy_quantity, plant.annual_energy, system)
     figures = [
         ("Design load", power(plant.design_load)),
-        ("Design condition", html.escape(display_text(str(plant.governing), system))),
+        (
+            "Design condition",
+            html.escape(
+                condition_text(condition, system)
+                if condition is not None
+                else display_text(str(plant.governing), system)
+            ),
+        ),
         ("Sizing margin", f"{plant.margin_percent:g} %"),
         ("Design capacity", power(plant.design_capacity)),
         ("Peak hour of the year", power(plant.annual_peak)),
@@ -290,7 +310,7 @@ def plant_tables_html(plant, option_name: str, system: str) -> str:
         eff_rows = "".join(
             f"<tr{' class=ps-chosen' if r.option == option_name else ''}>"
             f"<th scope='row'>{html.escape(str(r.option))}</th>"
-            f"<td>{html.escape(str(r.metric))}</td>"
+            f"<td>{html.escape(_METRIC_TEXT.get(str(r.metric), str(r.metric)))}</td>"
             f"<td>{r.rated_iplv:.3g}</td><td>{r.project_iplv:.3g}</td></tr>"
             for r in plant.efficiency.itertuples()
         )
