@@ -257,6 +257,8 @@ def water_side_chart(
                     "value:Q",
                     title=f"Efficiency [{unit}; {better}]",
                     scale=alt.Scale(zero=False, padding=20),
+                    # a few labels, never run together ("0.520.54") at a narrow width
+                    axis=alt.Axis(tickCount=6, labelOverlap="greedy"),
                 ),
                 y=y,
                 color=alt.Color(
