@@ -259,8 +259,14 @@ def test_plant_page_and_pinned_comparison(dashboard_server, new_page, screenshot
     screenshot_whole_dashboard(page, screenshots_folder / "plant_pinned_ip.png")
 
 
-def test_four_sessions_at_once_keep_their_own_results(dashboard_server, new_page):
-    pages = [new_page(1400, 1000) for _ in range(4)]
+#: Colleagues opening the page at once (a design meeting's projector and laptops).
+SESSIONS = 8
+
+
+def test_eight_sessions_at_once_all_work_and_keep_their_own_results(dashboard_server, new_page):
+    # before the executor waited for late outputs, 3 to 5 of 8 pages opened together on
+    # 2 cores stayed blank ("Timeout waiting for IOPub output" in the server log)
+    pages = [new_page(1400, 1000) for _ in range(SESSIONS)]
     loads = []
     start = time.perf_counter()
     for page in pages:  # start all four page loads before waiting for any
@@ -273,18 +279,21 @@ def test_four_sessions_at_once_keep_their_own_results(dashboard_server, new_page
         page.wait_for_selector(".plantside-figures .ps-card", timeout=WIDGET_TIMEOUT_MS)
         page.wait_for_selector(".plantside-chart-sweep canvas, .plantside-chart-sweep svg.marks")
         loads.append(time.perf_counter() - start)
-    print("\nfour pages opened together, ready after (s): " + ", ".join(f"{t:.1f}" for t in loads))
+    print(
+        f"\n{SESSIONS} pages opened together, ready after (s): "
+        + ", ".join(f"{t:.1f}" for t in loads)
+    )
     start_readout = float(slider_readout(pages[0], "outdoor-air-fraction"))
     # each page moves its outdoor-air slider by a different number of steps (1 % each)
     for steps, page in enumerate(pages, start=1):
         handle = page.locator(".plantside-outdoor-air-fraction .noUi-handle").first
         handle.focus()
-        for _ in range(steps * 3):
+        for _ in range(steps * 2):
             handle.press("ArrowRight")
     # every page must settle on the model's own design coil load for its own setting
     designs = []
     for steps, page in enumerate(pages, start=1):
-        fraction = (start_readout + 3 * steps) / 100.0
+        fraction = (start_readout + 2 * steps) / 100.0
         expected = expected_design_card(fraction)
         print(f"page {steps}: expecting {expected} at {100 * fraction:.0f} % outdoor air")
         page.wait_for_function(
@@ -298,15 +307,16 @@ def test_four_sessions_at_once_keep_their_own_results(dashboard_server, new_page
     readouts = [slider_readout(page, "outdoor-air-fraction") for page in pages]
     print("outdoor air per page [%]: " + ", ".join(readouts))
     print("design coil load per page: " + ", ".join(designs))
-    assert len(set(readouts)) == 4, "each page keeps its own slider value"
-    assert len(set(designs)) == 4, "each page shows its own results"
+    assert len(set(readouts)) == SESSIONS, "each page keeps its own slider value"
+    assert len(set(designs)) == SESSIONS, "each page shows its own results"
     kernels = dashboard_server.kernel_processes()
     sizes = sorted(k.memory_info().rss / 1e6 for k in kernels)
     print(
         f"kernels running: {len(kernels)}; resident memory each (MB): "
         + ", ".join(f"{s:.0f}" for s in sizes)
     )
-    assert len(kernels) >= 4
+    assert len(kernels) >= SESSIONS
+    print(f"resident memory of all kernels: {sum(sizes):,.0f} MB")
 
 
 def page_kernel_id(page) -> str:

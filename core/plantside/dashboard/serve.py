@@ -101,6 +101,11 @@ def voila_environment(environment: dict[str, str] | None = None) -> dict[str, st
     return result
 
 
+#: How long the notebook's execution waits for the outputs of a cell that has finished
+#: [s] (nbclient's ``iopub_timeout``, 4 s by default).
+IOPUB_TIMEOUT_S = 120
+
+
 def voila_command(
     dashboards: Path,
     *,
@@ -151,6 +156,10 @@ def voila_command(
         f"--MappingKernelManager.cull_idle_timeout={int(cull_idle_timeout)}",
         f"--MappingKernelManager.cull_interval={int(cull_interval)}",
         "--MappingKernelManager.cull_connected=False",
+        # outputs a busy machine delivers late are waited for, not dropped: with the
+        # default 4 s, pages opened together on 2 cores stayed blank ("Timeout waiting
+        # for IOPub output" in the server log)
+        f"--VoilaExecutor.iopub_timeout={IOPUB_TIMEOUT_S}",
     ]
     if preheat and pool_size > 0:
         command += ["--preheat_kernel=True", f"--pool_size={int(pool_size)}"]
