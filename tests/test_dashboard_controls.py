@@ -266,3 +266,19 @@ def test_refused_choices_keep_the_page_showing_the_kept_value(scenario, name, st
     assert dashboard.state.inputs == before
     assert sent.states[-1][key] == kept
     assert dashboard.controls.messages[name].value
+
+
+def test_a_value_within_half_a_step_of_the_one_in_use_is_shown_as_the_one_in_use():
+    # Found by the widget fuzz: a message set the bypass factor to 5e-06 (off the 0.01
+    # step), then 0.0 was within half a step of it, so the model kept 5e-06 while the
+    # slider showed 0.0. The kept value must be the one on show.
+    from plantside.dashboard.app import Dashboard
+    from plantside.study.scenario import load_scenario
+
+    scenario = Path(__file__).resolve().parents[1] / "example_data" / "scenarios"
+    board = Dashboard(load_scenario(scenario / "quillon_clinic.toml"), air_handler=1)
+    slider = board.controls.widgets["bypass_factor"]
+    slider.set_state({"value": 5e-06})
+    for sent in (0.0, 0.004):
+        slider.set_state({"value": sent})
+        assert slider.value == board.state.shown_value("bypass_factor") == 5e-06

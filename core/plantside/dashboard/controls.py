@@ -708,7 +708,9 @@ class Controls:
             step = self._limits(name, system)[2]
             step_si = abs(spec.from_display(step, system) - spec.from_display(0.0, system))
             if abs(value_si - self.state.shown_value(name)) < 0.5 * step_si - 1e-12:
-                # the page snapped a converted value to the slider's step: keep the exact value
+                # the page snapped a converted value to the slider's step: keep the exact
+                # value, and show it (a value sent off the step must not stay on show)
+                self.refresh()
                 return
             self.state.set(name, value_si)
 
