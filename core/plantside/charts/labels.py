@@ -8,6 +8,7 @@ the unit system asked for (:func:`plantside.units.to_display`).
 from __future__ import annotations
 
 from plantside import __version__
+from plantside.climate.design_conditions import design_condition_text
 from plantside.study.figures import outdoor_air_fraction_of
 from plantside.units import to_display
 
@@ -38,31 +39,9 @@ FAN_CHOICES = {
 
 
 def condition_text(condition, system: str) -> str:
-    """A design condition in words and the units on show.
-
-    ``"cooling 0.4 %: 95.1 °F DB / 77.0 °F MCWB"`` (IP) or ``"... 35.1 °C DB ..."``
-    (SI): the design value first, then its mean coincident companion, as the
-    ASHRAE Handbook Fundamentals climatic design tables (Ch. 14) list them.
-    Enthalpy in IP is on the I-P scale (dry air at 0 °F), via
-    :func:`plantside.units.to_display`.
-    """
-
-    def shown(quantity, value, digits=1):
-        number, unit = to_display(quantity, value, system)
-        return f"{float(number):.{digits}f} {unit}"
-
-    pct = f"{condition.percent:g} %"
-    drybulb = shown("temperature", condition.drybulb)
-    if condition.kind == "cooling":
-        return f"cooling {pct}: {drybulb} DB / {shown('temperature', condition.wet_bulb)} MCWB"
-    if condition.kind == "dehumidification":
-        return (
-            f"dehumidification {pct}: {shown('temperature', condition.dew_point)} DP / "
-            f"{shown('humidity_ratio', condition.humidity_ratio)} / {drybulb} MCDB"
-        )
-    if condition.kind == "enthalpy":
-        return f"enthalpy {pct}: {shown('enthalpy', condition.enthalpy)} / {drybulb} MCDB"
-    return f"{condition.kind} {pct}: {drybulb} DB"
+    """A design condition in words and the units on show
+    (:func:`plantside.climate.design_conditions.design_condition_text`)."""
+    return design_condition_text(condition, system)
 
 
 def unit_settings_parts(settings, system: str) -> dict[str, str]:

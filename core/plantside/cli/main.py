@@ -45,25 +45,8 @@ def _fmt(quantity, value_si, system, digits=1):
     return f"{float(value):,.{digits}f} {unit}"
 
 
-def _condition_text(condition, system) -> str:
-    """A design condition in the user's units, e.g. 'dehumidification 0.4 %: 78.7 °F DP'."""
-    main = {
-        "cooling": ("temperature", condition.drybulb, "DB"),
-        "heating": ("temperature", condition.drybulb, "DB"),
-        "dehumidification": ("temperature", condition.dew_point, "DP"),
-        "enthalpy": ("enthalpy", condition.enthalpy, ""),
-    }[condition.kind]
-    text = f"{condition.kind} {condition.percent:g} %: {_fmt(main[0], main[1], system)} {main[2]}"
-    if condition.kind == "cooling":
-        text += f" / {_fmt('temperature', condition.wet_bulb, system)} MCWB"
-    elif condition.kind in ("dehumidification", "enthalpy"):
-        if condition.kind == "dehumidification":  # as the dashboard: DP / W / MCDB
-            text += f" / {_fmt('humidity_ratio', condition.humidity_ratio, system)}"
-        text += f" / {_fmt('temperature', condition.drybulb, system)} MCDB"
-    return text.replace("  ", " ").strip()
-
-
 def _design_text(result) -> str:
+    from plantside.climate.design_conditions import design_condition_text
     from plantside.study.figures import plant_design_condition
     from plantside.study.run import heating_load_columns
 
@@ -81,7 +64,7 @@ def _design_text(result) -> str:
             else scenario.cooling_design_percent
         )
         if np.isclose(condition.percent, wanted):
-            lines.append(f"  design condition {_condition_text(condition, system)}")
+            lines.append(f"  design condition {design_condition_text(condition, system)}")
     lines.append(_climate_zone_text(scenario, result.weather))
     lines.append("")
     width = max(14, *(len(u.name) + 2 for u in result.air_handlers))
@@ -113,7 +96,8 @@ def _design_text(result) -> str:
         lines.append(
             f"{plant.kind.capitalize()} plant: design load "
             f"{_fmt(quantity, plant.design_load, system)}"
-            f" ({_condition_text(condition, system)}); with {plant.margin_percent:g} % margin "
+            f" ({design_condition_text(condition, system)}); "
+            f"with {plant.margin_percent:g} % margin "
             f"{_fmt(quantity, plant.design_capacity, system)}; the year's peak "
             f"{_fmt(quantity, plant.annual_peak, system)}"
         )

@@ -100,7 +100,7 @@ import hashlib
 import math
 import threading
 from collections import OrderedDict
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 from typing import NamedTuple
 
 import numpy as np
@@ -110,6 +110,7 @@ from plantside.air import moist_air
 from plantside.arrays import scalar_or_array
 from plantside.climate.weather import Weather
 from plantside.errors import InputRangeError, check_range
+from plantside.units import to_display
 
 __all__ = [
     "COOLING_PERCENTS",
@@ -120,6 +121,7 @@ __all__ = [
     "DesignConditions",
     "clear_design_conditions_cache",
     "coincident_mean",
+    "design_condition_text",
     "design_conditions_from_weather",
     "mean_daily_range",
     "value_exceeded_by_percent",
@@ -433,6 +435,42 @@ def mean_daily_range(weather: Weather) -> DailyRange:
     return DailyRange(warmest, float(ranges[in_month].mean()))
 
 
+def design_condition_text(condition, system="SI") -> str:
+    """A design condition in words and the units on show, its figures rounded once from SI.
+
+    ``"cooling 0.4 %: 95.1 °F DB / 77.0 °F MCWB"`` (IP) or ``"... 35.1 °C DB ..."``
+    (SI): the design value first, then its mean coincident companion, as the ASHRAE
+    Handbook Fundamentals climatic design tables (Ch. 14) list them. Enthalpy in IP is
+    on the I-P scale (dry air at 0 °F), via :func:`plantside.units.to_display`. The
+    condition's own ``label`` is this text in SI; the command line, the dashboard, the
+    derivations and the report word a condition with it.
+
+    Parameters
+    ----------
+    condition : DesignCondition
+    system : {"SI", "IP"}
+    """
+
+    def shown(quantity, value):
+        number, unit = to_display(quantity, value, system)
+        return f"{float(number):.1f} {unit}"
+
+    pct = f"{condition.percent:g} %"
+    drybulb = shown("temperature", condition.drybulb)
+    if condition.kind == "cooling":
+        return f"cooling {pct}: {drybulb} DB / {shown('temperature', condition.wet_bulb)} MCWB"
+    if condition.kind == "dehumidification":
+        return (
+            f"dehumidification {pct}: {shown('temperature', condition.dew_point)} DP / "
+            f"{shown('humidity_ratio', condition.humidity_ratio)} / {drybulb} MCDB"
+        )
+    if condition.kind == "enthalpy":
+        return f"enthalpy {pct}: {shown('enthalpy', condition.enthalpy)} / {drybulb} MCDB"
+    if condition.kind == "evaporation":
+        return f"evaporation {pct}: {shown('temperature', condition.wet_bulb)} WB / {drybulb} MCDB"
+    return f"{condition.kind} {pct}: {drybulb} DB"
+
+
 def _state(kind, percent, drybulb, humidity_ratio, pressure, hours, band):
     humidity_ratio = float(
         min(humidity_ratio, moist_air.saturation_humidity_ratio(drybulb, pressure))
@@ -440,21 +478,7 @@ def _state(kind, percent, drybulb, humidity_ratio, pressure, hours, band):
     dew_point = float(moist_air.dew_point_from_humidity_ratio(max(humidity_ratio, 1e-7), pressure))
     wet_bulb = float(moist_air.wet_bulb_from_humidity_ratio(drybulb, humidity_ratio, pressure))
     enthalpy = float(moist_air.enthalpy_from_humidity_ratio(drybulb, humidity_ratio))
-    pct = f"{percent:g} %"
-    if kind == "cooling":
-        label = f"cooling {pct}: {drybulb:.1f} °C DB / {wet_bulb:.1f} °C MCWB"
-    elif kind == "dehumidification":
-        label = (
-            f"dehumidification {pct}: {dew_point:.1f} °C DP / "
-            f"{humidity_ratio * 1000:.1f} g/kg / {drybulb:.1f} °C MCDB"
-        )
-    elif kind == "enthalpy":
-        label = f"enthalpy {pct}: {enthalpy:.1f} kJ/kg / {drybulb:.1f} °C MCDB"
-    elif kind == "evaporation":
-        label = f"evaporation {pct}: {wet_bulb:.1f} °C WB / {drybulb:.1f} °C MCDB"
-    else:
-        label = f"heating {pct}: {drybulb:.1f} °C DB"
-    return DesignCondition(
+    condition = DesignCondition(
         kind=kind,
         percent=float(percent),
         drybulb=float(drybulb),
@@ -463,10 +487,11 @@ def _state(kind, percent, drybulb, humidity_ratio, pressure, hours, band):
         dew_point=dew_point,
         wet_bulb=wet_bulb,
         enthalpy=enthalpy,
-        label=label,
+        label="",
         coincident_hours=int(hours),
         coincident_band=float(band),
     )
+    return replace(condition, label=design_condition_text(condition, "SI"))
 
 
 def design_conditions_from_weather(

@@ -24,6 +24,7 @@ from typing import NamedTuple
 
 import numpy as np
 
+from plantside.climate.design_conditions import design_condition_text
 from plantside.constants import CP_LIQUID_WATER
 from plantside.plant.efficiency import iplv_band_weights
 from plantside.plant.part_load import part_load_bins
@@ -46,7 +47,6 @@ __all__ = [
     "Derivation",
     "StatePoint",
     "chart_derivations",
-    "condition_words",
     "headline_derivations",
     "number_text",
 ]
@@ -196,28 +196,6 @@ class _Units:
         return shown, f"{number_text(shown, _figure_digits(shown))} {self.label(quantity)}"
 
 
-def condition_words(condition, system) -> str:
-    """A design condition in words and the units on show (as the views word it):
-    the design value first, then its mean coincident companion."""
-    units = _Units(system)
-
-    def shown(quantity, value):
-        return f"{units(quantity, value):.1f} {units.label(quantity)}"
-
-    pct = f"{condition.percent:g} %"
-    drybulb = shown("temperature", condition.drybulb)
-    if condition.kind == "cooling":
-        return f"cooling {pct}: {drybulb} DB / {shown('temperature', condition.wet_bulb)} MCWB"
-    if condition.kind == "dehumidification":
-        return (
-            f"dehumidification {pct}: {shown('temperature', condition.dew_point)} DP / "
-            f"{shown('humidity_ratio', condition.humidity_ratio)} / {drybulb} MCDB"
-        )
-    if condition.kind == "enthalpy":
-        return f"enthalpy {pct}: {shown('enthalpy', condition.enthalpy)} / {drybulb} MCDB"
-    return f"{condition.kind} {pct}: {drybulb} DB"
-
-
 def _states(states, names: Sequence[str], units: _Units) -> tuple[StatePoint, ...]:
     """Rows ``names`` of a design point's state table, in display units."""
     points = []
@@ -347,7 +325,7 @@ def headline_derivations(
     plant = air_handler is None
     kind = figures.governing_kind
     points = _governing_points(units, kind, air_handler)
-    condition = condition_words(figures.governing, u.system)
+    condition = design_condition_text(figures.governing, u.system)
     out: dict[str, Derivation] = {}
     table = None
     if plant:
