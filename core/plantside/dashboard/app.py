@@ -36,7 +36,7 @@ from plantside.charts.compare import combine_scenarios
 from plantside.charts.export import chart_bytes, safe_filename
 from plantside.charts.labels import export_stamp
 from plantside.charts.palette import WIDTH
-from plantside.charts.study_frames import CHARTS, ChartView, chart_frames, study_chart
+from plantside.charts.study_frames import CHARTS, chart_frames, study_chart
 from plantside.dashboard.climate_stress_panel import ClimateStressPanel
 from plantside.dashboard.controls import (
     Controls,
@@ -62,7 +62,7 @@ from plantside.dashboard.state import (
 from plantside.dashboard.sweep_panel import SweepPanel
 from plantside.dashboard.water_side_panel import WaterSidePanel
 from plantside.errors import PlantsideError, ScenarioError
-from plantside.study.figures import ViewLoads, first_recirculating_unit
+from plantside.study.figures import first_recirculating_unit
 from plantside.study.scenario import Scenario, dumps_scenario, load_scenario, loads_scenario
 from plantside.units import to_display
 
@@ -553,23 +553,9 @@ class Dashboard:
             result.inputs.air_handler,
         )
 
-    def _view(self, result: DashboardResult) -> ChartView:
-        """What the charts draw of one result (the study layer's figures and loads)."""
-        shown = result.unit
-        return ChartView(
-            plant=self.view == "plant",
-            figures=result.figures,
-            loads=ViewLoads(result.coil_load, result.zone_load),
-            unit=shown.study,
-            sweep=shown.design.sweep,
-            outdoor_air_fraction=shown.inputs.outdoor_air_fraction,
-            weather=result.climate.weather,
-            climate=result.climate.source,
-        )
-
     def _frames(self, name: str, result: DashboardResult, system: str) -> dict:
         """The chart frames of one result (SI model output -> display units)."""
-        return chart_frames(name, self._view(result), system, self._backgrounds)
+        return chart_frames(name, result.chart_view, system, self._backgrounds)
 
     def _combined(self, name: str, system: str) -> dict:
         current = self._frames(name, self.state.result, system)
@@ -595,7 +581,7 @@ class Dashboard:
         (None: the builders' fixed width, as exported)."""
         system = self.state.inputs.unit_system
         return study_chart(
-            name, self._combined(name, system), system, self._view(self.state.result), width
+            name, self._combined(name, system), system, self.state.result.chart_view, width
         )
 
     # ------------------------------------------------------------------ text

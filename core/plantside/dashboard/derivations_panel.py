@@ -16,10 +16,8 @@ from collections.abc import Callable
 import ipywidgets as widgets
 
 from plantside.charts.derivation_html import derivation_html, derivations_html, view_derivations
-from plantside.charts.study_frames import ChartView
 from plantside.errors import InputRangeError, PlantsideError
 from plantside.study.derivations import CHART_KEYS, HEADLINE_KEYS
-from plantside.study.figures import ViewLoads
 
 __all__ = ["DerivationsPanel"]
 
@@ -65,19 +63,6 @@ class DerivationsPanel:
             raise KeyError(f"unknown chart {name!r}; one of {', '.join(CHART_KEYS)}")
         return self._charts[name]
 
-    def _view(self, result) -> ChartView:
-        shown = result.unit
-        return ChartView(
-            plant=self.plant,
-            figures=result.figures,
-            loads=ViewLoads(result.coil_load, result.zone_load),
-            unit=shown.study,
-            sweep=shown.design.sweep,
-            outdoor_air_fraction=shown.inputs.outdoor_air_fraction,
-            weather=result.climate.weather,
-            climate=result.climate.source,
-        )
-
     def update(self, water: bool = False) -> bool:
         """Refresh from the state's current result and unit system.
 
@@ -112,7 +97,7 @@ class DerivationsPanel:
         # set on the page)
         scenario = result.inputs.plant_scenario(state.scenario)
         self.derivations = view_derivations(
-            scenario, units, self._view(result), system, water_side=water_side
+            scenario, units, result.chart_view, system, water_side=water_side
         )
         self.figures.value = derivations_html(
             (self.derivations[k] for k in HEADLINE_KEYS), plant=self.plant

@@ -17,13 +17,14 @@ from dataclasses import dataclass, field
 import numpy as np
 import pandas as pd
 
+from plantside.charts.study_frames import ChartView
 from plantside.climate.bundled import BUNDLED_CLIMATES, load_bundled_climate
 from plantside.climate.design_conditions import design_conditions_from_weather
 from plantside.climate.weather import Weather
 from plantside.dashboard.state_inputs import DashboardInputs, UnitInputs
 from plantside.errors import InputRangeError
 from plantside.study.design_sweep import DESIGN_KINDS, design_outdoor_air_sweep
-from plantside.study.figures import HeadlineFigures, headline_figures, view_loads
+from plantside.study.figures import HeadlineFigures, ViewLoads, headline_figures, view_loads
 from plantside.study.run import AirHandlerResult, StudyResult, assemble_plants, run_air_handler
 
 __all__ = ["ClimatePart", "DashboardResult", "DesignPart", "ResultAssembly", "UnitResult"]
@@ -111,6 +112,22 @@ class DashboardResult:
     def unit(self) -> UnitResult:
         """The air handler the controls show."""
         return self.units[self.inputs.air_handler]
+
+    @property
+    def chart_view(self) -> ChartView:
+        """What the charts (and their derivations) draw of this result: the study
+        layer's figures and loads of the view, and the air handler shown."""
+        shown = self.unit
+        return ChartView(
+            plant=self.view == "plant",
+            figures=self.figures,
+            loads=ViewLoads(self.coil_load, self.zone_load),
+            unit=shown.study,
+            sweep=shown.design.sweep,
+            outdoor_air_fraction=shown.inputs.outdoor_air_fraction,
+            weather=self.climate.weather,
+            climate=self.climate.source,
+        )
 
 
 class ResultAssembly:
