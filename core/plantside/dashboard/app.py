@@ -372,21 +372,28 @@ class Dashboard:
     def _plant_export_buttons(self) -> None:
         """PNG and SVG buttons of the two plants' load-duration charts."""
         for kind in PLANT_KINDS:
-            row = []
-            for fmt in ("png", "svg"):
-                button = GuardedButton(
-                    description=fmt.upper(),
-                    tooltip=f"Download the {kind} plant chart as {fmt.upper()}, stamped",
-                    layout=widgets.Layout(width="84px"),
+            self.plant_panel.export_rows[kind].children = tuple(
+                self._chart_export_row(
+                    f"plant_{kind}",
+                    f"the {kind} plant chart",
+                    lambda fmt, k=kind: self.export_plant_chart(k, fmt),
                 )
-                button.add_class(f"plantside-export-plant_{kind}-{fmt}")
-                button.on_click(
-                    self.controls.guarded(
-                        "export", lambda _, k=kind, f=fmt: self.export_plant_chart(k, f)
-                    )
-                )
-                row.append(button)
-            self.plant_panel.export_rows[kind].children = tuple(row)
+            )
+
+    def _chart_export_row(self, key: str, what: str, export) -> list[widgets.Button]:
+        """PNG and SVG buttons (class ``plantside-export-<key>-<fmt>``) that call
+        ``export(fmt)``, guarded as every export."""
+        row = []
+        for fmt in ("png", "svg"):
+            button = GuardedButton(
+                description=fmt.upper(),
+                tooltip=f"Download {what} as {fmt.upper()}, stamped with its inputs",
+                layout=widgets.Layout(width="84px"),
+            )
+            button.add_class(f"plantside-export-{key}-{fmt}")
+            button.on_click(self.controls.guarded("export", lambda _, f=fmt: export(f)))
+            row.append(button)
+        return row
 
     def export_plant_chart(self, kind: str, fmt: str) -> str:
         """Send the ``kind`` plant's load-duration chart as PNG or SVG, stamped."""
@@ -409,24 +416,12 @@ class Dashboard:
         return self.download.send_file(data, name, mime)
 
     def _export_buttons(self) -> dict[str, list[widgets.Button]]:
-        buttons = {}
-        for name in CHARTS:
-            row = []
-            for fmt in ("png", "svg"):
-                button = GuardedButton(
-                    description=fmt.upper(),
-                    tooltip=f"Download this chart as {fmt.upper()}, stamped with its inputs",
-                    layout=widgets.Layout(width="84px"),
-                )
-                button.add_class(f"plantside-export-{name}-{fmt}")
-                button.on_click(
-                    self.controls.guarded(
-                        "export", lambda _, n=name, f=fmt: self.export_chart(n, f)
-                    )
-                )
-                row.append(button)
-            buttons[name] = row
-        return buttons
+        return {
+            name: self._chart_export_row(
+                name, "this chart", lambda fmt, n=name: self.export_chart(n, fmt)
+            )
+            for name in CHARTS
+        }
 
     # ------------------------------------------------------------------ events
     def _on_air_handler(self, change):
