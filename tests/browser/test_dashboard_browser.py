@@ -261,6 +261,9 @@ def test_plant_page_and_pinned_comparison(dashboard_server, new_page, screenshot
 
 #: Colleagues opening the page at once (a design meeting's projector and laptops).
 SESSIONS = 8
+#: Resident memory a kernel may hold: the figure the README tells the person serving to plan
+#: per colleague (the issue's target is 250 MB; measured 237-249 MB on a 2-core machine).
+KERNEL_MEMORY_PLAN_MB = 300
 
 
 def test_eight_sessions_at_once_all_work_and_keep_their_own_results(dashboard_server, new_page):
@@ -316,7 +319,11 @@ def test_eight_sessions_at_once_all_work_and_keep_their_own_results(dashboard_se
         + ", ".join(f"{s:.0f}" for s in sizes)
     )
     assert len(kernels) >= SESSIONS
-    print(f"resident memory of all kernels: {sum(sizes):,.0f} MB")
+    print(f"resident memory of all kernels: {sum(sizes):,.0f} MB (target 250 MB a kernel)")
+    assert max(sizes) <= KERNEL_MEMORY_PLAN_MB, (
+        f"a kernel holds {max(sizes):.0f} MB, more than the {KERNEL_MEMORY_PLAN_MB} MB the README "
+        "tells the person serving to plan per colleague"
+    )
 
 
 def page_kernel_id(page) -> str:

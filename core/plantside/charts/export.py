@@ -18,7 +18,6 @@ from collections.abc import Mapping, Sequence
 from pathlib import Path
 
 import altair as alt
-import vl_convert
 
 from plantside import __version__
 from plantside.charts.palette import FONT, INK_SOFT
@@ -57,13 +56,21 @@ def safe_filename(name: str, default: str = "plantside-export") -> str:
 _TOP_LEVEL = ("$schema", "config", "datasets", "background", "padding", "autosize", "usermeta")
 
 
+def _vl_convert():
+    """vl-convert, imported on the first export (a dashboard page that exports nothing
+    never loads it: 8 MB of a kernel's memory)."""
+    import vl_convert
+
+    return vl_convert
+
+
 def _vegalite_version() -> str | None:
     """The Vega-Lite version Altair writes, if vl-convert bundles it (e.g. "6.4")."""
     match = re.match(r"v?(\d+)\.(\d+)", alt.SCHEMA_VERSION)
     if not match:
         return None
     version = f"{match.group(1)}.{match.group(2)}"
-    return version if version in vl_convert.get_vegalite_versions() else None
+    return version if version in _vl_convert().get_vegalite_versions() else None
 
 
 def stamp_lines(stamp=None, *, when: _dt.date | None = None) -> list[str]:
@@ -202,8 +209,8 @@ def chart_bytes(
     if version:
         options["vl_version"] = version
     if fmt == "png":
-        return vl_convert.vegalite_to_png(spec, scale=1.0, ppi=72.0 * scale, **options)
-    return vl_convert.vegalite_to_svg(spec, **options).encode("utf-8")
+        return _vl_convert().vegalite_to_png(spec, scale=1.0, ppi=72.0 * scale, **options)
+    return _vl_convert().vegalite_to_svg(spec, **options).encode("utf-8")
 
 
 def save_chart(

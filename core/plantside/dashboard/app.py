@@ -46,6 +46,7 @@ from plantside.dashboard.controls import (
 )
 from plantside.dashboard.derivations_panel import DerivationsPanel
 from plantside.dashboard.download import BrowserDownload
+from plantside.dashboard.offline_charts import use_offline_charts
 from plantside.dashboard.panel_width import PanelWidth, fitted_plot_width
 from plantside.dashboard.plant_controls import PlantControls
 from plantside.dashboard.plant_panel import PLANT_KINDS, PlantPanel
@@ -145,7 +146,7 @@ class Dashboard:
     def __init__(
         self, scenario: Scenario | None = None, view: str = "air_handler", air_handler=None
     ):
-        alt.JupyterChart.enable_offline()
+        use_offline_charts()
         scenario = scenario if scenario is not None else example_scenario()
         index = first_recirculating_unit(scenario) if air_handler is None else int(air_handler)
         self.view = view

@@ -41,6 +41,7 @@ from plantside.dashboard.controls import (
     GuardedDropdown,
     GuardedInput,
 )
+from plantside.dashboard.offline_charts import use_offline_charts
 from plantside.errors import PlantsideError, excerpt
 from plantside.study.figures import first_recirculating_unit
 from plantside.study.sweep import sweep_from_dict
@@ -96,7 +97,7 @@ class SweepPanel:
     """
 
     def __init__(self, state):
-        alt.JupyterChart.enable_offline()  # the page fetches nothing from a network (as app.py)
+        use_offline_charts()  # the page fetches nothing from a network (as app.py)
         self.state = state
         self.table: pd.DataFrame | None = None
         self.sweep = None
