@@ -20,6 +20,7 @@ file lands in the browser user's downloads.
 
 from __future__ import annotations
 
+import functools
 import html
 import os
 import time
@@ -403,17 +404,20 @@ class Dashboard:
             self._show_text()
             return ""
         self.plant_panel.update()  # the chart of the current inputs, even if not on show
+        name = f"{self._file_stem()}-{kind}-plant-load-duration.{fmt}"
+        return self._send_chart(lambda: self.plant_panel.chart_specs[kind], fmt, name)
+
+    def _send_chart(self, chart, fmt: str, name: str) -> str:
+        """Render ``chart()`` (a chart or a spec) as ``fmt``, stamped, and send it as ``name``;
+        a refusal shows in the message line. Returns the file name sent, or ""."""
         try:
-            data = chart_bytes(
-                self.plant_panel.chart_specs[kind], fmt, stamp=self.stamp(), scale=_PNG_SCALE
-            )
+            data = chart_bytes(chart(), fmt, stamp=self.stamp(), scale=_PNG_SCALE)
         except PlantsideError as error:
             self.state.messages["export"] = str(error)
             self._show_text()
             return ""
-        mime = "image/png" if fmt == "png" else "image/svg+xml"
         self.state.messages["export"] = ""
-        name = f"{self._file_stem()}-{kind}-plant-load-duration.{fmt}"
+        mime = "image/png" if fmt == "png" else "image/svg+xml"
         return self.download.send_file(data, name, mime)
 
     def _export_buttons(self) -> dict[str, list[widgets.Button]]:
@@ -746,17 +750,9 @@ class Dashboard:
             self.state.messages["export"] = f"unknown export {name!r} as {fmt!r}"
             self._show_text()
             return ""
-        try:
-            # the builders' fixed width, whatever the width of the screen it was asked from
-            chart = self._build_chart(name)
-            data = chart_bytes(chart, fmt, stamp=self.stamp(), scale=_PNG_SCALE)
-        except PlantsideError as error:
-            self.state.messages["export"] = str(error)
-            self._show_text()
-            return ""
-        mime = "image/png" if fmt == "png" else "image/svg+xml"
-        self.state.messages["export"] = ""
-        return self.download.send_file(data, f"{self._file_stem(name)}-{CHARTS[name]}.{fmt}", mime)
+        # the builders' fixed width, whatever the width of the screen it was asked from
+        chart = functools.partial(self._build_chart, name)
+        return self._send_chart(chart, fmt, f"{self._file_stem(name)}-{CHARTS[name]}.{fmt}")
 
     def hourly_csv(self) -> bytes:
         """The hourly results on show as CSV, with the stamp as comment lines."""

@@ -357,7 +357,23 @@ def _message_html(text: str) -> str:
     return f"<div class='plantside-message' role='alert'>⚠ {shown}</div>"
 
 
-class Controls:
+class MutedCallbacks:
+    """Widgets the kernel may change without their callbacks firing (``with self.muted():``);
+    every callback returns at once while ``self._muted`` is set."""
+
+    _muted = False
+
+    @contextmanager
+    def muted(self):
+        """Change widgets from the kernel without their callbacks firing."""
+        before, self._muted = self._muted, True
+        try:
+            yield
+        finally:
+            self._muted = before
+
+
+class Controls(MutedCallbacks):
     """All input widgets of one dashboard, wired to one :class:`DashboardState`.
 
     Attributes
@@ -645,15 +661,6 @@ class Controls:
         return options
 
     # ------------------------------------------------------------------ wiring
-    @contextmanager
-    def muted(self):
-        """Change widgets from the kernel without their callbacks firing."""
-        before, self._muted = self._muted, True
-        try:
-            yield
-        finally:
-            self._muted = before
-
     def _wire(self):
         for name in (
             *SLIDERS,

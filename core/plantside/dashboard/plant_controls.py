@@ -16,7 +16,6 @@ import html
 import itertools
 import math
 from collections.abc import Callable
-from contextlib import contextmanager
 
 import ipywidgets as widgets
 
@@ -25,6 +24,7 @@ from plantside.dashboard.controls import (
     GuardedDropdown,
     GuardedFloatSlider,
     GuardedInput,
+    MutedCallbacks,
 )
 from plantside.dashboard.state import display_text
 from plantside.dashboard.state_inputs import PLANT_CONTROLS
@@ -65,7 +65,7 @@ def _message_html(text: str) -> str:
     return f"<div class='plantside-message' role='alert'>⚠ {html.escape(text[:400])}</div>"
 
 
-class PlantControls:
+class PlantControls(MutedCallbacks):
     """Option choosers and margin sliders of the plant, wired to one dashboard state.
 
     Parameters
@@ -133,15 +133,6 @@ class PlantControls:
 
     def _options(self, kind: str) -> list[tuple[str, int]]:
         return [(name, i) for i, name in enumerate(self.state.option_names(kind))]
-
-    @contextmanager
-    def muted(self):
-        """Change widgets from the kernel without their callbacks firing."""
-        before, self._muted = self._muted, True
-        try:
-            yield
-        finally:
-            self._muted = before
 
     def _callback(self, name: str):
         def callback(change):
