@@ -12,7 +12,9 @@ import pandas as pd
 import pytest
 from plantside.errors import InputRangeError
 from plantside.study.sweep import load_sweep
+from plantside.study.sweep_dask import WORKER_MODULE
 from plantside.study.sweep_run import run_sweep
+from plantside.study.sweep_worker import QUIET_CALLBACKS
 
 distributed = pytest.importorskip("dask.distributed", reason="needs the 'cluster' extra")
 
@@ -21,17 +23,34 @@ CLINIC = ROOT / "example_data" / "scenarios" / "quillon_clinic.toml"
 CLIMATES = ["Salvia Flats", "Korva Plains", "Port Calder"]
 
 
-@pytest.fixture(scope="module")
-def cluster():
-    """Two single-threaded worker processes on 127.0.0.1, no dashboard."""
-    with distributed.LocalCluster(
+def _local_cluster(n_workers: int, **options):
+    """Single-threaded worker processes on 127.0.0.1, no dashboard."""
+    return distributed.LocalCluster(
         host="127.0.0.1",
-        n_workers=2,
+        n_workers=n_workers,
         threads_per_worker=1,
         processes=True,
         dashboard_address=None,
-    ) as local:
+        **options,
+    )
+
+
+@pytest.fixture(scope="module")
+def cluster():
+    """Two workers started as the README starts them (the model preloaded)."""
+    with _local_cluster(2, preload=[WORKER_MODULE]) as local:
         yield local
+
+
+def test_preloaded_workers_do_without_the_profiler(cluster):
+    # the profiler's 10 ms samples slowed the batches (1.59-1.62x of one process on
+    # 2 workers with it, 1.66-1.73x without; tests/test_sweep_benchmark.py)
+    with distributed.Client(cluster) as client:
+        callbacks = client.run(lambda dask_worker: sorted(dask_worker.periodic_callbacks))
+    assert len(callbacks) == 2
+    for names in callbacks.values():
+        assert "heartbeat" in names  # the worker's own callbacks are still there
+        assert not set(QUIET_CALLBACKS) & set(names)
 
 
 @pytest.fixture(scope="module")
@@ -127,13 +146,7 @@ def test_a_batch_whose_worker_dies_is_resubmitted_once_then_recorded_failed(
     out = tmp_path / "out"
     with (
         dask.config.set(settings),
-        distributed.LocalCluster(
-            host="127.0.0.1",
-            n_workers=2,
-            threads_per_worker=1,
-            processes=True,
-            dashboard_address=None,
-        ) as local,
+        _local_cluster(2) as local,
         distributed.Client(local) as client,
     ):
         monkeypatch.setattr(sweep_run, "run_batch", dying)
@@ -177,13 +190,7 @@ def test_tasks_dropped_with_the_only_copy_of_the_sweep_are_resubmitted(
     )
     with (
         dask.config.set({"distributed.scheduler.allowed-failures": 0}),
-        distributed.LocalCluster(
-            host="127.0.0.1",
-            n_workers=1,
-            threads_per_worker=1,
-            processes=True,
-            dashboard_address=None,
-        ) as local,
+        _local_cluster(1) as local,
         distributed.Client(local) as client,
     ):
         monkeypatch.setattr(sweep_run, "run_batch", dying)

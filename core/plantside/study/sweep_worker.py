@@ -230,3 +230,25 @@ def typed_table(frame: pd.DataFrame, sweep: Sweep) -> pd.DataFrame:
     for column in STATUS_COLUMNS:
         frame[column] = frame[column].fillna("").astype("str")
     return frame
+
+
+#: A Dask worker's periodic callbacks a sweep does without: the statistical profiler
+#: samples the running task's stack every 10 ms (``distributed.worker.profile``), which
+#: takes the interpreter from the batch each time.
+QUIET_CALLBACKS = ("profile", "profile-cycle")
+
+
+def dask_setup(worker) -> None:
+    """Dask's preload hook (``dask worker ... --preload plantside.study.sweep_worker``).
+
+    Stops the worker's statistical profiler (:data:`QUIET_CALLBACKS`): a batch is numpy
+    work that holds the interpreter, and the profiler's samples slowed it. Measured on a
+    2-core machine, 200 cases on a 2-worker LocalCluster against one process: 1.59-1.62x
+    with the profiler, 1.66-1.72x without (the process pool: 1.82-1.87x). The worker's
+    memory monitor and heartbeats stay as Dask sets them. Any worker may still profile
+    when started without this preload.
+    """
+    for name in QUIET_CALLBACKS:
+        callback = worker.periodic_callbacks.pop(name, None)
+        if callback is not None:
+            callback.stop()
