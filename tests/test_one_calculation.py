@@ -163,3 +163,44 @@ def test_single_unit_page_coil_schedule_equals_the_command_line(both):
     system = state.inputs.unit_system
     airflow = float(to_display("airflow", rows[0]["airflow_m3s"], system)[0])
     assert f"<td>{airflow:,.0f}</td>" in panel.tables.value
+
+
+@pytest.mark.parametrize("path", SCENARIOS, ids=lambda p: p.stem)
+def test_outdoor_air_chart_reads_the_design_coil_load_at_the_units_fraction(path):
+    # the chart swept the unit as it runs (load airflow) while the design coil load card
+    # and the coil schedule select at the scheduled airflow: the clinic's AHU-2 read 43 tons
+    # on the chart at its own 20 % against 50.2 tons on the card
+    from dataclasses import replace
+
+    from plantside.air_handler.design import cooling_design_points
+    from plantside.climate.design_conditions import design_conditions_from_weather
+    from plantside.study.design_sweep import (
+        SWEEP_FRACTIONS,
+        design_kind_label,
+        design_outdoor_air_sweep,
+    )
+    from plantside.study.run import design_zone
+
+    scenario = load_scenario(path)
+    weather = scenario.load_weather()
+    conditions = design_conditions_from_weather(weather)
+    percent = scenario.cooling_design_percent
+    compared = 0
+    for index, spec in enumerate(scenario.air_handlers):
+        if spec.settings.all_outdoor_air:  # its own fraction is 100 %: the sweep's last point
+            column, settings = -1, spec.settings  # (the sweep has that one point)
+        else:
+            column = 30
+            settings = replace(
+                spec.settings,
+                minimum_outdoor_air_fraction=SWEEP_FRACTIONS[column],
+                minimum_outdoor_airflow=None,
+            )
+        zone = scenario.zone_loads(index, weather)
+        sweep = design_outdoor_air_sweep(settings, zone, conditions, percent)
+        design = cooling_design_points(settings, design_zone(zone, "cooling"), conditions, percent)
+        for kind, point in design.points.items():
+            on_chart = sweep[design_kind_label(kind, percent)][column]
+            assert on_chart == pytest.approx(point.loads["coil_total_kW"], rel=1e-12), (index, kind)
+            compared += 1
+    assert compared >= 3

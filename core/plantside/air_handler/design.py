@@ -37,6 +37,7 @@ __all__ = [
     "CoolingDesignSummary",
     "DesignPoint",
     "cooling_design_points",
+    "design_airflow_settings",
     "design_point",
     "heating_design_point",
 ]
@@ -209,6 +210,24 @@ def _cautions(settings: AirHandlerSettings, row: pd.Series) -> list[str]:
     return cautions
 
 
+def design_airflow_settings(settings: AirHandlerSettings, airflow: str) -> AirHandlerSettings:
+    """The settings the coil is worked out with at a design condition.
+
+    ``"load"``: the unit as it runs (the airflow the zone load asks for); ``"scheduled"``:
+    constant volume at the unit's ``supply_airflow`` with the coil leaving at the supply
+    set point and the surplus over the zone load met by terminal reheat (the coil
+    schedule's selection point). Every design figure (the design points, the coil
+    load against outdoor-air fraction) takes its settings from here, so they agree.
+    """
+    if airflow == "scheduled":
+        return replace(settings, fan_control="constant_volume", low_load_response="reheat")
+    if airflow != "load":
+        raise InputRangeError(
+            "airflow", f"airflow = {airflow!r}; allowed: 'load', 'scheduled'", "load, scheduled"
+        )
+    return settings
+
+
 def design_point(
     settings: AirHandlerSettings, zone_loads, outdoor, *, occupied=True, airflow="load"
 ):
@@ -245,15 +264,11 @@ def design_point(
     """
     t, w, p, kind, label = _outdoor(outdoor)
     loads = _design_loads(zone_loads, t, occupied)
+    selected = design_airflow_settings(settings, airflow)
     result = air_handler_hours(settings, [t], [w], [p], loads, force_operating=True)
     load_airflow = float(result["supply_airflow_m3s"].reshape(-1)[0])
-    if airflow == "scheduled":
-        scheduled = replace(settings, fan_control="constant_volume", low_load_response="reheat")
-        result = air_handler_hours(scheduled, [t], [w], [p], loads, force_operating=True)
-    elif airflow != "load":
-        raise InputRangeError(
-            "airflow", f"airflow = {airflow!r}; allowed: 'load', 'scheduled'", "load, scheduled"
-        )
+    if selected is not settings:
+        result = air_handler_hours(selected, [t], [w], [p], loads, force_operating=True)
     values = {key: result[key].reshape(-1)[0] for key in HOURLY_COLUMNS}
     values["economizer_mode"] = ECONOMIZER_MODES[int(values["economizer_mode"])]
     row = pd.Series(values, name=kind)

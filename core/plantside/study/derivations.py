@@ -610,6 +610,13 @@ def _derivation(key, title, value_text, steps, state_points, source, value, u) -
     )
 
 
+#: How the design points take their airflow (``design_airflow``), in words.
+_AIRFLOW_BASIS = {
+    "scheduled": "at the scheduled supply airflow with terminal reheat",
+    "load": "at the airflow the zone load asks for",
+}
+
+
 # --------------------------------------------------------------------------- charts
 def chart_derivations(
     scenario,
@@ -862,7 +869,7 @@ def chart_derivations(
             "sweep",
             f"Design coil load of {unit.name} against outdoor-air fraction ({first.size} "
             f"fraction{'s' if first.size > 1 else ''}, each a full design run at every design "
-            "condition)",
+            f"condition, {_AIRFLOW_BASIS[unit.settings.design_airflow]} as the design coil load)",
             f"set: {100 * fraction:.0f} % outdoor air",
             steps,
             (),

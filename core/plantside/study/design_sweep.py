@@ -2,15 +2,17 @@
 
 The outdoor-air chart of the dashboard and of ``plantside charts``: the air handler at
 each cooling design condition, with the minimum outdoor-air fraction swept from 0 to
-100 % of the supply air (the rest of its settings as given). Orchestration only: the
-air-handler model computes every point, all fractions at once.
+100 % of the supply air (the rest of its settings as given, on the airflow basis of its
+design points: ``design_airflow``, so the chart at the unit's own fraction reads the design
+coil load the page and the coil schedule show). Orchestration only: the air-handler model
+computes every point, all fractions at once.
 """
 
 from __future__ import annotations
 
 import numpy as np
 
-from plantside.air_handler.design import COOLING_DESIGN_KINDS
+from plantside.air_handler.design import COOLING_DESIGN_KINDS, design_airflow_settings
 from plantside.air_handler.model import air_handler_hours
 from plantside.air_handler.zone_loads import ZoneLoadModel, design_zone_loads
 from plantside.study.run import design_zone
@@ -60,6 +62,8 @@ def design_outdoor_air_sweep(settings, zone, conditions, percent: float) -> dict
     """
     zone = design_zone(zone, "cooling")
     fractions = SWEEP_FRACTIONS[:, None]
+    # the airflow basis of the design points (the design coil load card, the coil schedule)
+    settings = design_airflow_settings(settings, settings.design_airflow)
     sweep = {}
     for kind in DESIGN_KINDS:
         condition = conditions.cooling(kind, percent)
