@@ -31,6 +31,26 @@ def test_the_plant_page_calls_its_design_load_the_plant_load(plant, unit):
     assert "Design plant load" not in unit.figures.value
 
 
+def test_every_plant_card_that_includes_the_distribution_gain_says_plant(plant, unit):
+    # the peak and the energy are the plant's load too (coil loads + distribution gain);
+    # the cards read "Peak coil load, year" and "coil, whole year" while their
+    # derivations said "Peak plant load, year"
+    cards = plant.figures.value
+    assert "Peak plant load, year" in cards and "Peak coil load" not in cards
+    assert "plant, whole year" in cards and "coil, whole year" not in cards
+    assert "Peak coil load, year" in unit.figures.value
+    assert "coil, whole year" in unit.figures.value
+
+
+def test_a_change_that_rounds_away_reads_plus_zero_not_minus_zero():
+    # pinned A, then a move that changes the design zone load by less than 0.05 %
+    dashboard = Dashboard(view="plant")
+    dashboard.controls.widgets["pin"].click()
+    dashboard.controls.widgets["outdoor_air_fraction"].value += 5
+    assert "-0.0 %" not in dashboard.figures.value
+    assert "</span> +0.0 % against A" in dashboard.figures.value  # the zone load did not move
+
+
 def test_exports_of_the_plant_and_of_an_air_handler_have_their_own_names(plant, unit):
     names = {}
     for page, dashboard in (("plant", plant), ("unit", unit)):

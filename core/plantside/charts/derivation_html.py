@@ -31,6 +31,7 @@ __all__ = [
     "FIGURE_NAMES",
     "derivation_html",
     "derivations_html",
+    "figure_name",
     "report_derivations",
     "view_derivations",
 ]
@@ -81,10 +82,16 @@ DERIVATION_STYLE = (
 )
 
 
+def figure_name(key: str, plant: bool) -> str:
+    """A headline figure's name as the plant view or the air-handler view shows it (the
+    cards and their derivations: a plant's loads include the distribution gain)."""
+    names = FIGURE_NAMES[key]
+    return names[1] if plant else names[0]
+
+
 def _name(derivation: Derivation, plant: bool) -> str:
-    names = FIGURE_NAMES.get(derivation.key)
-    if names is not None:
-        return names[1] if plant else names[0]
+    if derivation.key in FIGURE_NAMES:
+        return figure_name(derivation.key, plant)
     return CHART_NAMES.get(derivation.key, derivation.key)
 
 

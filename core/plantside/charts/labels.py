@@ -15,6 +15,7 @@ from plantside.units import to_display
 __all__ = [
     "ECONOMIZER_CHOICES",
     "FAN_CHOICES",
+    "change_against_a_text",
     "changed_settings_text",
     "condition_text",
     "export_stamp",
@@ -169,3 +170,10 @@ def export_stamp(
         f"governing {condition_text(governing, system)} · {when} · preliminary, "
         "for review by a licensed engineer"
     )
+
+
+def change_against_a_text(value: float, before: float) -> str:
+    """B's change against the pinned A, in per cent to 0.1 (e.g. "+4.9 %"); a change that
+    rounds to nothing reads "+0.0 %", never "-0.0 %"; "+0.0 %" when A is zero."""
+    change = (value - before) / before * 100.0 if before else 0.0
+    return f"{round(change, 1) + 0.0:+.1f} %"

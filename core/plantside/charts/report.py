@@ -27,7 +27,7 @@ from plantside.air_handler.coil_schedule import coil_schedule
 from plantside.charts.compare import combine_scenarios
 from plantside.charts.derivation_html import DERIVATION_STYLE, report_derivations
 from plantside.charts.export import chart_bytes
-from plantside.charts.labels import condition_text
+from plantside.charts.labels import change_against_a_text, condition_text
 from plantside.charts.report_inputs import inputs_html
 from plantside.charts.report_style import REPORT_CSS
 from plantside.charts.study_frames import (
@@ -142,8 +142,7 @@ def _figures_table(sections, system) -> str:
                 )
             if pinned is not None:
                 before = getattr(pinned.figures, field)
-                change = (value - before) / before * 100.0 if before else 0.0
-                cells.append(f"<td>{change:+.1f} %</td>")
+                cells.append(f"<td>{change_against_a_text(value, before)}</td>")
         rows.append(
             f"<tr><th scope='row'>{html.escape(label)}</th><td>{html.escape(unit)}</td>"
             f"{''.join(cells)}</tr>"

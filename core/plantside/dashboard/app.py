@@ -34,8 +34,9 @@ import pandas as pd
 
 from plantside import __version__
 from plantside.charts.compare import combine_scenarios
+from plantside.charts.derivation_html import figure_name
 from plantside.charts.export import chart_bytes, safe_filename
-from plantside.charts.labels import export_stamp
+from plantside.charts.labels import change_against_a_text, export_stamp
 from plantside.charts.palette import WIDTH
 from plantside.charts.study_frames import CHARTS, chart_frames, study_chart
 from plantside.dashboard.climate_stress_panel import ClimateStressPanel
@@ -653,25 +654,36 @@ class Dashboard:
         def energy(v):
             return _quantity("energy", v, system)
 
+        plant = self.view == "plant"
+
+        def name(key: str) -> str:
+            return figure_name(key, plant)
+
         cards = [
-            ("Design zone load", "ps-zone", "design_zone_load", power, "sensible + latent"),
+            (name("design_zone_load"), "ps-zone", "design_zone_load", power, "sensible + latent"),
             (
-                self._design_load_label(),
+                name("design_coil_load"),
                 "",
                 "design_coil_load",
                 power,
                 f"{now.coil_to_zone_ratio:.2f} × the zone load",
             ),
             (
-                "Recommended capacity",
+                name("recommended_capacity"),
                 "",
                 "recommended_capacity",
                 power,
-                f"{self._design_load_label().lower()} + {margin:g} % margin",
+                f"{name('design_coil_load').lower()} + {margin:g} % margin",
             ),
-            ("Peak coil load, year", "", "peak_coil_load", power, "highest hour of the year"),
-            ("Governing design condition", "ps-wide ps-neutral", "governing", None, ""),
-            ("Cooling energy, year", "ps-neutral", "cooling_energy", energy, "coil, whole year"),
+            (name("peak_coil_load"), "", "peak_coil_load", power, "highest hour of the year"),
+            (name("governing_condition"), "ps-wide ps-neutral", "governing", None, ""),
+            (
+                name("cooling_energy"),
+                "ps-neutral",
+                "cooling_energy",
+                energy,
+                "plant, whole year" if plant else "coil, whole year",
+            ),
             (
                 f"Hours above {100 * PART_LOAD_THRESHOLD:.0f} % of capacity",
                 "ps-neutral",
@@ -697,10 +709,10 @@ class Dashboard:
                 extra = ""
                 if pinned is not None:
                     before_text, _ = fmt(before)
-                    change = (value - before) / before * 100 if before else 0.0
+                    change = change_against_a_text(value, before)
                     extra = (
                         f"<div class='ps-pinned'><span class='ps-tag'>A</span> {before_text} "
-                        f"{unit} · <span class='ps-tag'>B</span> {change:+.1f} % against A</div>"
+                        f"{unit} · <span class='ps-tag'>B</span> {change} against A</div>"
                     )
             unit_html = f"<span class='ps-unit'>{unit}</span>" if unit else ""
             note_html = f"<div class='ps-note'>{note}</div>" if note else ""
@@ -731,7 +743,7 @@ class Dashboard:
 
     def _design_load_label(self) -> str:
         """The design load's name: a plant's includes the distribution gain (plant load)."""
-        return "Design plant load" if self.view == "plant" else "Design coil load"
+        return figure_name("design_coil_load", self.view == "plant")
 
     def _file_stem(self, chart: str | None = None) -> str:
         """Start of an export's file name: the study, then what it shows (the plant or the
