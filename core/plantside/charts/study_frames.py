@@ -23,6 +23,7 @@ from plantside.charts.load_duration import load_distribution_chart
 from plantside.charts.oa_sweep import oa_sweep_chart
 from plantside.charts.psychrometric import psychrometric_chart
 from plantside.charts.year_scatter import year_scatter_chart
+from plantside.plant.part_load import no_load_threshold_from_loads
 from plantside.plant.staging import stage_machines
 from plantside.study.design_sweep import design_outdoor_air_sweep
 from plantside.study.figures import (
@@ -101,7 +102,8 @@ def year_table(view: ChartView) -> pd.DataFrame:
     """The hourly table chart 2 bins: the air handler's year, or the plant's loads.
 
     The plant's hours are coloured as one (the economizer modes are those of each air
-    handler, not of the plant), and the hours left out are those with no plant load.
+    handler, not of the plant), and the hours left out are those with no plant load, as
+    the load-distribution chart counts them (:func:`no_load_threshold_from_loads`).
     """
     if not view.plant:
         return view.unit.hourly
@@ -112,7 +114,7 @@ def year_table(view: ChartView) -> pd.DataFrame:
             "zone_sensible_kW": zone,
             "zone_latent_kW": np.zeros_like(zone),
             "economizer_mode": np.full(coil.shape, PLANT_HOURS),
-            "operating": coil > 0,
+            "operating": coil > no_load_threshold_from_loads(coil),
         }
     )
 

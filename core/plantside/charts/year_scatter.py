@@ -72,6 +72,7 @@ def _panel(
     power = axis_title("Zone load", "power", system)
     coil_title = axis_title(load_label, "power", system)
     x_domain, y_domain = domains
+    diagonal_name = load_label.split()[0].lower()
     # the coil = zone diagonal across the part of the plot where both axes overlap
     low = max(x_domain[0], y_domain[0])
     high = min(x_domain[1], y_domain[1])
@@ -83,7 +84,8 @@ def _panel(
         y=alt.Y("y:Q", scale=alt.Scale(domain=y_domain, nice=False)),
     )
     diagonal_label = (
-        alt.Chart(alt.Data(values=[{"x": high, "y": high, "t": "coil = zone"}]))
+        # "coil = zone" for an air handler, "plant = zone" for the plant's load
+        alt.Chart(alt.Data(values=[{"x": high, "y": high, "t": f"{diagonal_name} = zone"}]))
         .mark_text(align="right", baseline="top", dx=-4, dy=6, color=INK_SOFT, fontSize=14)
         .encode(x=alt.X("x:Q"), y=alt.Y("y:Q"), text=alt.Text("t:N"))
     )
@@ -257,6 +259,7 @@ def year_scatter_chart(
             height,
             "right",
             legend_title,
+            load_label,
         )
     else:
         panels = [
