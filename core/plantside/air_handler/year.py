@@ -357,52 +357,69 @@ _SWEEP_PER_HOUR = (
 
 def _sweep_per_hour(r, settings):
     """The per-hour values of :data:`_SWEEP_PER_HOUR` from the model's columns ``r``,
-    one row each."""
-    heating = (
-        r["heating_coil_kW"]
-        + r["preheat_kW"]
-        + r["reheat_kW"]
-        + r["dehumidification_reheat_kW"]
-        + r["humidity_control_reheat_kW"]
-    )
+    one row each (written into one array, without temporaries)."""
+    names = _SWEEP_PER_HOUR
+    out = np.empty((len(names), np.size(r["coil_total_kW"])))
+    for i, key in enumerate(names[:6]):
+        out[i] = r[key]
+    heating = out[names.index("heating_kW")]
+    np.add(r["heating_coil_kW"], r["preheat_kW"], out=heating)
+    for key in ("reheat_kW", "dehumidification_reheat_kW", "humidity_control_reheat_kW"):
+        heating += r[key]
     mode = r["economizer_mode"]
-    above = r["operating"] & (
-        r["zone_relative_humidity"] > settings.zone_relative_humidity_limit + _RH_TOLERANCE
-    )
-    return np.stack(
-        [
-            r["coil_total_kW"],
-            r["coil_sensible_kW"],
-            r["coil_latent_kW"],
-            r["heating_coil_kW"],
-            r["preheat_kW"],
-            r["reheat_kW"],
-            heating,
-            (mode == MODE_FREE_COOLING) | (mode == MODE_INTEGRATED),
-            above,
-        ]
-    )
+    economizer = (mode == MODE_FREE_COOLING) | (mode == MODE_INTEGRATED)
+    out[names.index("economizer")] = economizer
+    above = r["zone_relative_humidity"] > settings.zone_relative_humidity_limit + _RH_TOLERANCE
+    above &= r["operating"]
+    out[names.index("humidity_above_limit")] = above
+    return out
 
 
 #: A stored hour serves a lower fraction only if its damper stood above it by this [-].
 _REUSE_MARGIN = 1e-9
 
 
-def _sweep_row(fraction, values):
-    """One row of :data:`SWEEP_COLUMNS` from the per-hour ``values`` of one fraction."""
-    coil_total, sensible, latent, heating_coil, preheat, reheat, heating, economizer, above = values
-    return (
-        fraction,
-        coil_total.sum(),
-        sensible.sum(),
-        latent.sum(),
-        coil_total.max(),
-        heating_coil.sum(),
-        preheat.sum(),
-        reheat.sum(),
-        heating.max(),
-        np.count_nonzero(economizer),
-        np.count_nonzero(above),
+#: Rows of :data:`_SWEEP_PER_HOUR` whose peak a sweep row reports (the others are summed).
+_SWEEP_PEAKS = (0, 6)
+
+
+def _block_rows(block, keep, stored, computed, ends):
+    """Rows of :data:`SWEEP_COLUMNS` for the fractions ``block`` of one model call.
+
+    Row k sums (and takes the peaks of) the stored values of the hours it reuses,
+    ``keep[k]``, and the values ``computed[:, ends[k]:ends[k + 1]]`` of the hours it
+    modelled; every hour is in exactly one of the two.
+    """
+    k = block.size
+    # reused hours: a product with the 0/1 mask sums each column over them
+    sums = keep.astype(float) @ stored.T  # (k, quantities)
+    peaks = np.full((k, len(_SWEEP_PEAKS)), -np.inf)
+    if keep.any():
+        for i, j in enumerate(_SWEEP_PEAKS):
+            peaks[:, i] = np.where(keep, stored[j], -np.inf).max(axis=1)
+    # modelled hours: the pairs of each fraction are one contiguous run
+    filled = np.flatnonzero(ends[1:] > ends[:-1])
+    if filled.size:
+        starts = ends[filled]
+        sums[filled] += np.add.reduceat(computed, starts, axis=1).T
+        peaks[filled] = np.fmax(
+            peaks[filled], np.maximum.reduceat(computed[list(_SWEEP_PEAKS)], starts, axis=1).T
+        )
+    coil_total, sensible, latent, heating_coil, preheat, reheat, _, economizer, above = sums.T
+    return np.column_stack(
+        [
+            block,
+            coil_total,
+            sensible,
+            latent,
+            peaks[:, 0],
+            heating_coil,
+            preheat,
+            reheat,
+            peaks[:, 1],
+            economizer,
+            above,
+        ]
     )
 
 
@@ -458,7 +475,9 @@ def outdoor_air_sweep(
         batch = order[start : start + chunk]
         block = fractions[batch]
         # the (fraction, hour) pairs to model: all but the stored hours above the fraction
-        row, hour = np.nonzero(stored_x[None, :] <= block[:, None] + _REUSE_MARGIN)
+        keep = stored_x[None, :] > block[:, None] + _REUSE_MARGIN
+        row, hour = np.nonzero(~keep)
+        computed = np.empty((len(_SWEEP_PER_HOUR), 0))
         if hour.size:
             pair_loads = HourlyZoneLoads(
                 sensible=loads.sensible[hour],
@@ -481,13 +500,7 @@ def outdoor_air_sweep(
             free = ~r[MINIMUM_IN_A_PASS]
             x = r["outdoor_air_fraction"]
         ends = np.searchsorted(row, np.arange(block.size + 1))
-        for k in range(block.size):
-            pairs = slice(ends[k], ends[k + 1])
-            values = stored.copy()
-            if ends[k + 1] > ends[k]:
-                hours = hour[pairs]
-                values[:, hours] = computed[:, pairs]
-            rows[batch[k]] = _sweep_row(block[k], values)
+        rows[batch] = _block_rows(block, keep, stored, computed, ends)
         # keep, for the lower fractions, the hours whose damper stood above the minimum in
         # every pass (the lowest fraction of the block last, so that its hours are kept)
         for k in range(block.size):
