@@ -15,7 +15,9 @@ Printed, never asserted (the tests assert only that the fast and slow paths agre
   (``outdoor_air_sweep``: a few fractions per call as one flat array of (fraction, hour)
   pairs, only the columns it sums, hours reused below their economizer position)
   against 101 separate years. Target: at most 40 % of the separate years' time
-  (ratio >= 2.5x; 1.7-1.9x before). Both sides print their time and the load average.
+  (ratio >= 2.5x; 1.7-1.9x before). Both sides print their time and the load average;
+  the separate years also their median of three runs (the first run grows the process
+  by about 320 MB for the 101 tables it keeps, the later ones reuse that memory).
 """
 
 from __future__ import annotations
@@ -217,25 +219,44 @@ def test_outdoor_air_sweep_against_separate_years(case):
         lambda: outdoor_air_sweep(SETTINGS, weather, loads, fractions), 3
     )
     sweep = outdoor_air_sweep(SETTINGS, weather, loads, fractions)
+
+    def separate_years():
+        return [
+            air_handler_hours(
+                SETTINGS,
+                weather.drybulb,
+                weather.humidity_ratio,
+                weather.pressure,
+                loads,
+                minimum_outdoor_air_fraction=x,
+            )
+            for x in fractions
+        ]
+
+    # The first run of the separate years also pays for growing the process to hold 101
+    # whole tables: about 320 MB of new pages (82,000 minor page faults, 0.50 s against
+    # 0.33 s for the next runs, which reuse the memory; measured on the 2-core machine at
+    # load 0.7). Both are printed: the first run is the ratio of record (as measured
+    # before), the median of the three the steady state.
     start = time.perf_counter()
-    separate = [
-        air_handler_hours(
-            SETTINGS,
-            weather.drybulb,
-            weather.humidity_ratio,
-            weather.pressure,
-            loads,
-            minimum_outdoor_air_fraction=x,
-        )
-        for x in fractions
-    ]
+    separate = separate_years()
     separate_time = time.perf_counter() - start
+    del separate
+    later = []
+    for _ in range(2):
+        start = time.perf_counter()
+        separate = separate_years()
+        later.append(time.perf_counter() - start)
+        if len(later) < 2:
+            del separate
+    steady_time = float(np.median([separate_time, *later]))
     print(
         f"\n[benchmark] outdoor-air sweep 101 x 8760: sweep median {sweep_time:.3f} s "
         f"(CPU {sweep_cpu:.3f} s); 101 separate years {separate_time:.3f} s; "
         f"ratio {separate_time / sweep_time:.1f}x (target >= {SWEEP_RATIO_TARGET:.1f}x: "
         f"the sweep in at most {100 / SWEEP_RATIO_TARGET:.0f} % of the separate years' time); "
-        f"load average {os.getloadavg()[0]:.1f}",
+        f"separate years median of 3 runs {steady_time:.3f} s, ratio "
+        f"{steady_time / sweep_time:.1f}x; load average {os.getloadavg()[0]:.1f}",
         flush=True,
     )
     for column, key in (
