@@ -222,6 +222,13 @@ def recovery_fraction_for_mixed_drybulb(
     t1, w1 = np.asarray(outdoor_drybulb, float), np.asarray(outdoor_humidity_ratio, float)
     t3, w3 = np.asarray(exhaust_drybulb, float), np.asarray(exhaust_humidity_ratio, float)
     tr, wr = np.asarray(return_drybulb, float), np.asarray(return_humidity_ratio, float)
+    if (
+        np.ndim(latent_effectiveness) == 0
+        and latent_effectiveness == 0.0
+        and np.ndim(sensible_effectiveness) == 0
+        and sensible_effectiveness > 0.0
+    ):
+        return _sensible_only_fraction(T, x, t1, w1, t3, tr, wr, float(sensible_effectiveness))
     a = np.asarray(sensible_effectiveness, float) * (t3 - t1)
     b = np.asarray(latent_effectiveness, float) * (w3 - w1)
     c1 = CP_DRY_AIR + CP_WATER_VAPOR * w1
@@ -233,3 +240,19 @@ def recovery_fraction_for_mixed_drybulb(
         root = np.sqrt(B * B - 4.0 * A * C)
         # Stable form of the root that tends to -C/B as A -> 0.
         return -2.0 * C / (B + np.copysign(root, B))
+
+
+def _sensible_only_fraction(T, x, t1, w1, t3, tr, wr, eps_s):
+    """:func:`recovery_fraction_for_mixed_drybulb` without latent recovery (b = 0).
+
+    Then A = 0 and the root is -C/B: the same numbers as the general form (whose
+    denominator B + |B| sign(B) is 2B exactly, sqrt(B²) being |B| for finite inputs
+    with |B| above 1e-154), in half the array operations.
+    """
+    c1 = CP_DRY_AIR + CP_WATER_VAPOR * w1
+    B = x * ((eps_s * (t3 - t1)) * c1)
+    x_c1 = x * c1
+    y_cr = (1.0 - x) * (CP_DRY_AIR + CP_WATER_VAPOR * wr)
+    C = x_c1 * t1 + y_cr * tr - T * (x_c1 + y_cr)
+    with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
+        return -(C / B)
