@@ -361,21 +361,38 @@ def _damper_control(
         return fraction, mode
     exceeded = _high_limit_exceeded(control, t_o, h_o, t_r, h_r, t_limit, h_limit)
     cold = t_o <= ts
-    modulating = cold & (x_mod > x_min)
     closed = exceeded | heating
     fraction = np.where(closed, x_min, np.where(cold, x_mod, 1.0 if integrated else x_min))
+    # the codes chosen as int8 from the start (no int64 arrays to convert)
+    code = np.int8
     mode_open = np.where(
         cold,
-        np.where(modulating, MODE_FREE_COOLING, MODE_MINIMUM_OUTDOOR_AIR),
-        MODE_INTEGRATED if integrated else MODE_LOCKED_OUT,
+        np.where(x_mod > x_min, code(MODE_FREE_COOLING), code(MODE_MINIMUM_OUTDOOR_AIR)),
+        code(MODE_INTEGRATED if integrated else MODE_LOCKED_OUT),
     )
-    mode = np.where(heating, MODE_HEATING, np.where(exceeded, MODE_LOCKED_OUT, mode_open))
-    return fraction, mode.astype(np.int8)
+    mode = np.where(
+        heating, code(MODE_HEATING), np.where(exceeded, code(MODE_LOCKED_OUT), mode_open)
+    )
+    return fraction, mode.astype(np.int8, copy=False)
 
 
 def _fraction_for_setpoint(ts, w_o, h_o, w_r, h_r):
     """Exact mass-basis damper position for t_mix = set point (see plantside.air.mixing)."""
-    numerator = h_r - LATENT_HEAT_0C * w_r - ts * (CP_DRY_AIR + CP_WATER_VAPOR * w_r)
-    denominator = (LATENT_HEAT_0C + CP_WATER_VAPOR * ts) * (w_o - w_r) - (h_o - h_r)
+    # numerator = h_r - L W_r - t_s (c_a + c_v W_r),
+    # denominator = (L + c_v t_s)(W_o - W_r) - (h_o - h_r): in place, in that order, on
+    # three arrays of the broadcast shape instead of thirteen
+    shape = np.broadcast_shapes(*(np.shape(a) for a in (ts, w_o, h_o, w_r, h_r)))
+    numerator = np.multiply(LATENT_HEAT_0C, w_r, out=np.empty(shape))
+    np.subtract(h_r, numerator, out=numerator)
+    work = np.multiply(CP_WATER_VAPOR, w_r, out=np.empty(shape))
+    work += CP_DRY_AIR
+    work *= ts
+    numerator -= work
+    denominator = np.multiply(CP_WATER_VAPOR, ts, out=work)
+    denominator += LATENT_HEAT_0C
+    difference = np.subtract(w_o, w_r, out=np.empty(shape))
+    denominator *= difference
+    denominator -= np.subtract(h_o, h_r, out=difference)
     with np.errstate(divide="ignore", invalid="ignore"):
-        return numerator / denominator
+        numerator /= denominator
+    return numerator if shape else numerator[()]
