@@ -1,7 +1,9 @@
 """Charts to files: PNG at report resolution and SVG, stamped with the inputs that made them.
 
 Rendering uses vl-convert, which bundles Vega and Vega-Lite and needs no
-network and no browser. Every exported chart carries a stamp under the plot:
+network and no browser; in this process, or in a short-lived child process for a
+caller that must not keep vl-convert's engine (a dashboard kernel:
+:mod:`plantside.charts.render_child`). Every exported chart carries a stamp under the plot:
 the plantside version, the date, and the inputs the chart was drawn from, so a
 figure pasted into a report can always be traced back to its study.
 
@@ -11,21 +13,29 @@ it); the chart on screen is not changed.
 
 from __future__ import annotations
 
+import base64
 import datetime as _dt
+import json
 import re
+import subprocess
+import sys
 import textwrap
 from collections.abc import Mapping, Sequence
+from dataclasses import dataclass
 from pathlib import Path
 
 import altair as alt
 
 from plantside import __version__
 from plantside.charts.palette import FONT, INK_SOFT
-from plantside.errors import InputRangeError
+from plantside.charts.render_child import render
+from plantside.errors import InputRangeError, excerpt
 
 __all__ = [
     "FORMATS",
+    "ChartImage",
     "chart_bytes",
+    "chart_images",
     "safe_filename",
     "save_chart",
     "stamp_lines",
@@ -38,6 +48,8 @@ FORMATS = ("png", "svg")
 _NAME = re.compile(r"^[A-Za-z0-9][A-Za-z0-9._-]{0,120}$")
 #: Longest stamp line [characters] before it is wrapped.
 _STAMP_WIDTH = 130
+#: A child process drawing charts gets this long [s].
+_CHILD_TIMEOUT_S = 120
 #: Characters :func:`safe_filename` replaces.
 _UNSAFE = re.compile(r"[^A-Za-z0-9._ -]+")
 
@@ -56,21 +68,11 @@ def safe_filename(name: str, default: str = "plantside-export") -> str:
 _TOP_LEVEL = ("$schema", "config", "datasets", "background", "padding", "autosize", "usermeta")
 
 
-def _vl_convert():
-    """vl-convert, imported on the first export (a dashboard page that exports nothing
-    never loads it: 8 MB of a kernel's memory)."""
-    import vl_convert
-
-    return vl_convert
-
-
 def _vegalite_version() -> str | None:
-    """The Vega-Lite version Altair writes, if vl-convert bundles it (e.g. "6.4")."""
+    """The Vega-Lite version Altair writes (e.g. "6.4"); the drawing uses it if vl-convert
+    bundles it (:func:`plantside.charts.render_child.render`)."""
     match = re.match(r"v?(\d+)\.(\d+)", alt.SCHEMA_VERSION)
-    if not match:
-        return None
-    version = f"{match.group(1)}.{match.group(2)}"
-    return version if version in _vl_convert().get_vegalite_versions() else None
+    return f"{match.group(1)}.{match.group(2)}" if match else None
 
 
 def stamp_lines(stamp=None, *, when: _dt.date | None = None) -> list[str]:
@@ -173,8 +175,79 @@ def _check_format(fmt: str) -> str:
     return text
 
 
+@dataclass(frozen=True)
+class ChartImage:
+    """One image to draw: a chart (or its spec) as PNG or SVG, stamped (:func:`chart_bytes`)."""
+
+    chart: object
+    fmt: str = "png"
+    stamp: object = None
+    scale: float = 2.0
+    when: _dt.date | None = None
+
+
+def _job(image: ChartImage) -> dict:
+    fmt = _check_format(image.fmt)
+    scale = float(image.scale)
+    if not 1.0 <= scale <= 6.0:
+        raise InputRangeError("scale", f"scale = {scale:g} is outside 1 to 6", "1 to 6")
+    spec = stamped_spec(image.chart, image.stamp, when=image.when)
+    return {"spec": spec, "fmt": fmt, "scale": scale, "vl_version": _vegalite_version()}
+
+
+def _render_in_child(jobs: list[dict]) -> list[bytes]:
+    """Draw ``jobs`` in a child process (:mod:`plantside.charts.render_child`)."""
+    script = Path(__file__).with_name("render_child.py")
+    try:
+        done = subprocess.run(
+            [sys.executable, str(script)],
+            input=json.dumps(jobs).encode("utf-8"),
+            capture_output=True,
+            timeout=_CHILD_TIMEOUT_S,
+            check=False,
+        )
+    except (OSError, subprocess.SubprocessError) as error:
+        raise InputRangeError(
+            "chart", f"the chart could not be drawn: {excerpt(str(error))}", "a chart to draw"
+        ) from error
+    if done.returncode != 0:
+        last = done.stderr.decode("utf-8", "replace").strip().splitlines()[-1:] or ["no message"]
+        raise InputRangeError(
+            "chart", f"the chart could not be drawn: {excerpt(last[0])}", "a chart to draw"
+        )
+    return [base64.b64decode(text) for text in json.loads(done.stdout)]
+
+
+def chart_images(images: Sequence[ChartImage], *, separate_process: bool = False) -> list[bytes]:
+    """Draw several charts, stamped, to PNG or SVG bytes (in order).
+
+    Parameters
+    ----------
+    images : sequence of ChartImage
+    separate_process : bool
+        Draw in one short-lived child process (about 0.5 s to start) instead of in this
+        one, which would keep vl-convert's JavaScript engine (85-100 MB) afterwards:
+        what a dashboard kernel does (:mod:`plantside.charts.render_child`).
+
+    Returns
+    -------
+    list of bytes
+        PNG image data or SVG text encoded as UTF-8, one per image.
+    """
+    jobs = [_job(image) for image in images]
+    if separate_process:
+        return _render_in_child(jobs)
+    return [render(**job) for job in jobs]
+
+
 def chart_bytes(
-    chart, fmt: str = "png", *, stamp=None, scale: float = 2.0, when: _dt.date | None = None
+    chart,
+    fmt: str = "png",
+    *,
+    stamp=None,
+    scale: float = 2.0,
+    when: _dt.date | None = None,
+    separate_process: bool = False,
 ) -> bytes:
     """Render a chart, stamped, to PNG or SVG bytes.
 
@@ -192,25 +265,16 @@ def chart_bytes(
         own size). Ignored for SVG.
     when : datetime.date, optional
         Date in the stamp (default: today).
+    separate_process : bool
+        Draw in a child process (see :func:`chart_images`).
 
     Returns
     -------
     bytes
         PNG image data, or SVG text encoded as UTF-8.
     """
-    fmt = _check_format(fmt)
-    scale = float(scale)
-    if not 1.0 <= scale <= 6.0:
-        raise InputRangeError("scale", f"scale = {scale:g} is outside 1 to 6", "1 to 6")
-    spec = stamped_spec(chart, stamp, when=when)
-    version = _vegalite_version()
-    # no external data may be fetched: every chart carries its data inline
-    options = {"allowed_base_urls": []}
-    if version:
-        options["vl_version"] = version
-    if fmt == "png":
-        return _vl_convert().vegalite_to_png(spec, scale=1.0, ppi=72.0 * scale, **options)
-    return _vl_convert().vegalite_to_svg(spec, **options).encode("utf-8")
+    image = ChartImage(chart, fmt, stamp, scale, when)
+    return chart_images([image], separate_process=separate_process)[0]
 
 
 def save_chart(

@@ -26,7 +26,7 @@ from plantside import __version__
 from plantside.air_handler.coil_schedule import coil_schedule
 from plantside.charts.compare import combine_scenarios
 from plantside.charts.derivation_html import DERIVATION_STYLE, report_derivations
-from plantside.charts.export import chart_bytes
+from plantside.charts.export import ChartImage, chart_images
 from plantside.charts.labels import change_against_a_text, condition_text
 from plantside.charts.report_inputs import inputs_html
 from plantside.charts.report_style import REPORT_CSS
@@ -251,7 +251,9 @@ def _combined(name: str, current: dict, before: dict | None) -> dict:
     }
 
 
-def _charts_html(key, view, pinned, system, title, when, caches, derivations) -> str:
+def _charts_html(key, view, pinned, system, title, when, caches, derivations, pending) -> str:
+    """The view's charts, each SVG left as a marker: the charts of the whole report are
+    drawn at once (:func:`_draw_pending`) and ``pending`` collects them."""
     parts = []
     who = _view_name(key, view)
     for number, name in enumerate(CHARTS, start=1):
@@ -259,16 +261,26 @@ def _charts_html(key, view, pinned, system, title, when, caches, derivations) ->
         before = chart_frames(name, pinned, system, caches[1]) if pinned is not None else None
         chart = study_chart(name, _combined(name, frames, before), system, view)
         stamp = f"plantside {__version__} · {title} · {who} · {when:%Y-%m-%d %H:%M}"
-        svg = chart_bytes(chart, "svg", stamp=stamp).decode("utf-8")
         label = f"{who}: {CHART_TITLES[name]}"
+        marker = f"<!--ps-chart-{len(pending)}-->"
+        pending.append((ChartImage(chart, "svg", stamp), f"{_anchor(key)}-{name}-", label))
         parts.append(
             f"<figure class='ps-chart' id='{_anchor(key)}-{name}' data-chart='{name}'>"
-            f"{inline_svg(svg, f'{_anchor(key)}-{name}-', label)}"
+            f"{marker}"
             f"<figcaption>Figure {number} of {html.escape(who.lower())}: "
             f"{html.escape(CHART_TITLES[name].lower())}.</figcaption></figure>"
             f"{derivations(name, key, view)}"
         )
     return "".join(parts)
+
+
+def _draw_pending(document: str, pending, separate_process: bool) -> str:
+    """Draw every chart :func:`_charts_html` left as a marker, in one go, and put it in."""
+    images = chart_images([image for image, _, _ in pending], separate_process=separate_process)
+    for number, (svg, (_, prefix, label)) in enumerate(zip(images, pending, strict=True)):
+        marker = f"<!--ps-chart-{number}-->"
+        document = document.replace(marker, inline_svg(svg.decode("utf-8"), prefix, label), 1)
+    return document
 
 
 def _cautions_html(result, notes, system) -> str:
@@ -308,6 +320,7 @@ def design_report_html(
     pinned_climate: str | None = None,
     notes: Sequence[str] = (),
     when: datetime | None = None,
+    separate_process: bool = False,
 ) -> str:
     """The design report of a study as one self-contained HTML page.
 
@@ -337,6 +350,9 @@ def design_report_html(
         dashboard carried with a control).
     when : datetime, optional
         Time printed on the report (default: now).
+    separate_process : bool
+        Draw the charts in a child process (a dashboard kernel; see
+        :func:`plantside.charts.export.chart_images`).
 
     Returns
     -------
@@ -396,13 +412,14 @@ def design_report_html(
     caution = "".join(f"<p>{html.escape(text)}</p>" for text in GENERAL_CAUTIONS)
     chart_sections = []
     caches = ({}, {})
+    pending: list = []
     for key, view, before in chosen:
         chart_sections.append(
             f"<section class='ps-section' id='{_anchor(key)}'>"
             f"<h2>{html.escape(_view_name(key, view))}: figures and charts</h2>"
             f"<h3>How the headline figures are worked out</h3>{derivations('figures', key, view)}"
             "<h3>Charts</h3>"
-            f"{_charts_html(key, view, before, system, title, when, caches, derivations)}"
+            f"{_charts_html(key, view, before, system, title, when, caches, derivations, pending)}"
             "</section>"
         )
     toc = [
@@ -438,9 +455,10 @@ def design_report_html(
         "a preliminary design aid, for review by a licensed engineer under the local codes."
         "</footer>"
     )
-    return (
+    document = (
         "<!DOCTYPE html>\n<html lang='en'><head><meta charset='utf-8'>"
         "<meta name='viewport' content='width=device-width, initial-scale=1'>"
         f"<title>Design report: {html.escape(title)}</title>"
         f"<style>{REPORT_CSS}</style>{DERIVATION_STYLE}</head><body>{body}</body></html>\n"
     )
+    return _draw_pending(document, pending, separate_process)

@@ -412,7 +412,10 @@ class Dashboard:
         """Render ``chart()`` (a chart or a spec) as ``fmt``, stamped, and send it as ``name``;
         a refusal shows in the message line. Returns the file name sent, or ""."""
         try:
-            data = chart_bytes(chart(), fmt, stamp=self.stamp(), scale=_PNG_SCALE)
+            # drawn in a child process: the kernel does not keep vl-convert's engine (~90 MB)
+            data = chart_bytes(
+                chart(), fmt, stamp=self.stamp(), scale=_PNG_SCALE, separate_process=True
+            )
         except PlantsideError as error:
             self.state.messages["export"] = str(error)
             self._show_text()

@@ -60,6 +60,7 @@ def dashboard_report_html(state, when: datetime | None = None) -> str:
         pinned_climate=pinned.climate.source if pinned is not None else None,
         notes=state.carried_notes(),
         when=when,
+        separate_process=True,  # the kernel does not keep vl-convert's engine (~90 MB)
     )
 
 
