@@ -46,7 +46,7 @@ def test_tiny_sweep_equals_the_command_and_draws_its_charts(state, tmp_path):
     unit = panel.unit.value
     climates = ["Salvia Flats", "Korva Plains"]
     _tick(panel, climates)
-    panel.fraction.value = (0.2, 0.4)
+    panel.fraction.value = (20.0, 40.0)
     panel.steps.value = 2
     assert panel.start()
     assert panel.join(timeout=300)
@@ -67,8 +67,16 @@ def test_tiny_sweep_equals_the_command_and_draws_its_charts(state, tmp_path):
     assert (panel.table["status"] == "ok").all()
     pd.testing.assert_frame_equal(panel.table, command, check_exact=False, rtol=1e-12)
     system = state.inputs.unit_system  # the page's units (the clinic is written in I-P)
-    expected = sweep_charts(command, [a.column for a in sweep.axes], system=system)
+    # the charts are the command's, with the fraction drawn in percent as the page shows it
+    column = sweep.axes[0].column
+    in_percent = command.rename(columns={column: "Minimum outdoor-air fraction[%]"})
+    in_percent["Minimum outdoor-air fraction[%]"] = 100.0 * command[column]
+    expected = sweep_charts(in_percent, ["Minimum outdoor-air fraction[%]"], system=system)
     assert set(panel.charts) == set(expected)
+    drawn = panel.charts["sweep_plant_capacity"].to_dict()
+    assert "Minimum outdoor-air fraction, %" in str(drawn)  # the x axis title
+    xs = {row["x"] for rows in drawn["datasets"].values() for row in rows if "x" in row}
+    assert sorted(xs) == pytest.approx([20.0, 40.0])  # percent, not 0.2 and 0.4
     for name, chart in expected.items():
         assert panel.charts[name].to_dict() == chart.to_dict()
     assert panel.chart_choice.value == "sweep_plant_capacity"
@@ -111,7 +119,7 @@ def test_a_refused_case_is_a_failed_row_not_a_traceback():
     spec = replace(spec, settings=replace(spec.settings, supply_drybulb=11.0, bypass_factor=0.3))
     panel = SweepPanel(DashboardState(replace(scenario, air_handlers=(spec,)), view="plant"))
     _tick(panel, ["Linden Vale", "Salvia Flats"])
-    panel.fraction.value = (0.15, 0.6)
+    panel.fraction.value = (15.0, 60.0)
     panel.steps.value = 2
     assert panel.start() and panel.join(timeout=300)
     table = panel.table.set_index(["climate", "air_handler[1].minimum_outdoor_air_fraction"])
@@ -120,6 +128,8 @@ def test_a_refused_case_is_a_failed_row_not_a_traceback():
     assert refused["error_field"] == "apparatus_dew_point"
     shown = html.unescape(panel.failed.value)
     assert "Salvia Flats" in shown and refused["error_message"] in shown
+    # the refused case's fraction in percent, as the slider shows it (was "0.6")
+    assert "Outdoor-air fraction [%]" in shown and "<td>60</td>" in shown
     assert "1 failed (listed below)" in panel.message.value
     assert "Traceback" not in panel.message.value + panel.failed.value
     # the chart is drawn from the three cases that ran
@@ -152,7 +162,7 @@ def test_the_pages_own_weather_file_is_a_climate_and_runs_as_the_command(tmp_pat
     panel = SweepPanel(state)
     own = [name for name in panel.climates if name not in BUNDLED_CLIMATES]
     assert len(own) == 1 and panel.chosen_climates() == own
-    panel.fraction.value = (0.2, 0.3)
+    panel.fraction.value = (20.0, 30.0)
     panel.steps.value = 2
     assert panel.start() and panel.join(timeout=300)
     path = tmp_path / "sweep.toml"
@@ -184,7 +194,19 @@ def _send(widget, state):
     widget._handle_msg({"content": {"data": {"method": "update", "state": state}}, "buffers": []})
 
 
-HOSTILE = [float("nan"), float("inf"), "x" * 1_000_000, None, True, [0.9, 0.1], [0.1], {}, -1, 99]
+HOSTILE = [
+    float("nan"),
+    float("inf"),
+    "x" * 1_000_000,
+    None,
+    True,
+    [90, 10],
+    [10],
+    {},
+    -1,
+    99,
+    [0, 101],
+]
 
 
 def test_hostile_page_messages_are_refused_and_change_nothing(state, caplog):
@@ -215,6 +237,44 @@ def test_hostile_page_messages_are_refused_and_change_nothing(state, caplog):
     assert not [r for r in caplog.records if r.levelname in ("ERROR", "CRITICAL")]
     # valid moves are taken
     _send(panel.steps, {"value": 3})
-    _send(panel.fraction, {"value": [0.2, 0.6]})
-    assert panel.steps.value == 3 and panel.fraction.value == (0.2, 0.6)
+    _send(panel.fraction, {"value": [20.0, 60.0]})
+    assert panel.steps.value == 3 and panel.fraction.value == (20.0, 60.0)
     assert "3 fractions" in panel.count.value
+
+
+def test_the_range_is_in_percent_as_the_pages_slider_and_the_sweep_gets_fractions(state):
+    """The page's own outdoor-air slider speaks percent (controls.SLIDERS); so does the
+    sweep's range. The sweep file field ``minimum_outdoor_air_fraction`` stays a fraction
+    (0 to 1), as ``plantside sweep`` reads it."""
+    from plantside.dashboard.controls import SLIDERS
+
+    panel = SweepPanel(state)
+    page_unit = SLIDERS["outdoor_air_fraction"].unit("SI")
+    assert page_unit == "%"
+    assert f"[{page_unit}]" in panel.fraction.description
+    assert (panel.fraction.min, panel.fraction.max) == (0.0, 100.0)
+    assert panel.fraction.readout_format == ".0f"
+    assert panel.fraction.value == (10.0, 50.0)
+    helps = [w.value for w in panel.box.children if isinstance(getattr(w, "value", None), str)]
+    assert any("in percent of the supply air" in text for text in helps)
+    _tick(panel, ["Salvia Flats"])
+    panel.fraction.value = (15.0, 60.0)
+    panel.steps.value = 4
+    sweep = panel.build_sweep()
+    assert sweep.axes[0].field.endswith(".minimum_outdoor_air_fraction")
+    assert np.allclose(sweep.axes[0].values, [0.15, 0.30, 0.45, 0.60], rtol=0, atol=1e-12)
+
+
+def test_a_refused_range_is_named_in_percent(state):
+    panel = SweepPanel(state)
+    _tick(panel, ["Salvia Flats"])
+    panel.fraction.value = (30.0, 30.0)
+    with pytest.raises(Exception) as refused:
+        panel.build_sweep()
+    assert "30 % to 30 %" in str(refused.value) and "0 % to 100 %" in str(refused.value)
+    assert not panel.start()
+    assert "0 % to 100 %" in html.unescape(panel.message.value)
+    panel.message.value = ""
+    _send(panel.fraction, {"value": [0.2, 120.0]})  # above 100 %: refused, kept
+    assert panel.fraction.value == (30.0, 30.0)
+    assert "0 % to 100 %" in html.unescape(panel.message.value)

@@ -36,6 +36,7 @@ import pandas as pd
 from plantside.charts.sweep import sweep_charts
 from plantside.climate.bundled import BUNDLED_CLIMATES
 from plantside.dashboard.controls import (
+    SLIDERS,
     GuardedButton,
     GuardedCheckbox,
     GuardedDropdown,
@@ -59,6 +60,15 @@ MAX_PANEL_CASES = 60
 MIN_STEPS, MAX_STEPS = 2, 21
 #: The field the sweep varies (per air handler, or ``*`` for all).
 FIELD = "minimum_outdoor_air_fraction"
+#: The range slider's label: percent, as the page's minimum outdoor-air slider.
+FRACTION_LABEL = "Outdoor-air fraction [%]"
+#: The help line under it.
+FRACTION_HELP = (
+    "Minimum outdoor-air fraction from the first to the second value, in percent of "
+    "the supply air; both ends are run."
+)
+#: The fraction's column as the charts and the refused-case table show it (percent).
+PERCENT_COLUMN = "Minimum outdoor-air fraction[%]"
 #: Words for the sweep's standard charts (:func:`plantside.charts.sweep.sweep_charts`).
 CHART_NAMES = {
     "sweep_plant_capacity": "Cooling plant design capacity",
@@ -107,13 +117,14 @@ class SweepPanel:
         self.unit = GuardedDropdown(
             options=[("", "1")], description="Air handler", style={"description_width": "10em"}
         )
+        # in percent, as the page's own outdoor-air slider; the sweep gets fractions
         self.fraction = GuardedRangeSlider(
-            value=(0.1, 0.5),
+            value=(10.0, 50.0),
             min=0.0,
-            max=1.0,
-            step=0.05,
-            readout_format=".2f",
-            description="Outdoor-air fraction",
+            max=100.0,
+            step=5.0,
+            readout_format=".0f",
+            description=FRACTION_LABEL,
             style={"description_width": "10em"},
             continuous_update=False,
         )
@@ -157,6 +168,7 @@ class SweepPanel:
                 ),
                 self.unit,
                 self.fraction,
+                widgets.HTML(f"<div class='plantside-help'>{html.escape(FRACTION_HELP)}</div>"),
                 self.steps,
                 widgets.HTML("<b>Climates</b>"),
                 self._climate_box,
@@ -276,7 +288,9 @@ class SweepPanel:
         """
         from plantside.errors import InputRangeError
 
-        low, high = (float(v) for v in self.fraction.value)
+        low_percent, high_percent = (float(v) for v in self.fraction.value)
+        percent = SLIDERS["outdoor_air_fraction"]  # as the page's own slider converts
+        low, high = (percent.from_display(v, "SI") for v in (low_percent, high_percent))
         steps = int(self.steps.value)
         chosen = self.chosen_climates()
         if not chosen:
@@ -291,12 +305,12 @@ class SweepPanel:
                 f"Steps: {steps} is outside {MIN_STEPS} to {MAX_STEPS}",
                 f"{MIN_STEPS} to {MAX_STEPS}",
             )
-        if not (0.0 <= low < high <= 1.0):
+        if not (0.0 <= low_percent < high_percent <= 100.0):
             raise InputRangeError(
                 "outdoor-air fraction",
-                f"Outdoor-air fraction: the range {low:g} to {high:g} is empty or outside 0 to 1; "
-                "choose two different ends from 0 to 1",
-                "a range inside 0 to 1 whose ends differ",
+                f"Outdoor-air fraction: the range {low_percent:g} % to {high_percent:g} % is "
+                "empty or outside 0 % to 100 %; choose two different ends from 0 % to 100 %",
+                "a range inside 0 % to 100 % whose ends differ",
             )
         count = steps * len(chosen)
         if count > MAX_PANEL_CASES:
@@ -408,7 +422,8 @@ class SweepPanel:
         failed = table[table["status"] == CASE_FAILED]
         ran = table[table["status"] != CASE_FAILED]  # failed cases have no results
         system = self.state.inputs.unit_system
-        self.charts = sweep_charts(ran, [a.column for a in sweep.axes], system=system)
+        shown, axes = _in_percent(ran, sweep)
+        self.charts = sweep_charts(shown, axes, system=system)
         words = f"{len(table)} of {sweep.size} cases finished"
         if stopped:
             words = f"Stopped: {words}; the finished ones are shown"
@@ -475,11 +490,12 @@ def _check_range(raw) -> str:
         isinstance(raw, list | tuple)
         and len(raw) == 2
         and all(_is_number(v) for v in raw)
-        and 0.0 <= raw[0] <= raw[1] <= 1.0
+        and 0.0 <= raw[0] <= raw[1] <= 100.0
     ):
         return ""
     return (
-        "Outdoor-air fraction: expected two fractions from 0 to 1, the first not above the second"
+        "Outdoor-air fraction: expected two percentages from 0 % to 100 %, "
+        "the first not above the second"
     )
 
 
@@ -491,6 +507,16 @@ def _check_steps(raw) -> str:
 
 def _check_tick(raw) -> str:
     return "" if isinstance(raw, bool) else "Climates: expected ticked or not"
+
+
+def _in_percent(table: pd.DataFrame, sweep) -> tuple[pd.DataFrame, list[str]]:
+    """The table with the outdoor-air fraction axis in percent (as the page shows it),
+    and the axis columns for :func:`~plantside.charts.sweep.sweep_charts`."""
+    column = sweep.axes[0].column
+    shown = table.rename(columns={column: PERCENT_COLUMN})
+    shown[PERCENT_COLUMN] = 100.0 * table[column].to_numpy(float)
+    axes = [PERCENT_COLUMN if a.column == column else a.column for a in sweep.axes]
+    return shown, axes
 
 
 def _chart_name(name: str, sweep) -> str:
@@ -512,7 +538,7 @@ def _failed_html(failed: pd.DataFrame, sweep) -> str:
     rows = "".join(
         "<tr>"
         f"<td>{html.escape(str(row['climate']))}</td>"
-        f"<td>{'' if np.isnan(row[column]) else f'{row[column]:.3g}'}</td>"
+        f"<td>{'' if np.isnan(row[column]) else f'{100.0 * row[column]:.3g}'}</td>"
         f"<td>failed</td>"
         f"<td>{html.escape(str(row['error_field']))}</td>"
         f"<td>{html.escape(str(row['error_message']))}</td>"
@@ -521,6 +547,6 @@ def _failed_html(failed: pd.DataFrame, sweep) -> str:
     )
     return (
         "<table class='plantside-table'><caption>Cases the model refused</caption>"
-        "<tr><th>Climate</th><th>Outdoor-air fraction</th><th>Status</th><th>Field</th>"
+        "<tr><th>Climate</th><th>Outdoor-air fraction [%]</th><th>Status</th><th>Field</th>"
         f"<th>Reason</th></tr>{rows}</table>"
     )
