@@ -22,6 +22,7 @@ import ipywidgets as widgets
 import numpy as np
 import pandas as pd
 
+from plantside.charts.compare import SCENARIO_LABELS
 from plantside.charts.labels import condition_text
 from plantside.charts.palette import COIL, REFERENCE, STAGE, themed
 from plantside.plant.staging import PlantOption
@@ -182,6 +183,7 @@ class PlantPanel:
         inputs = self.state.result.inputs
         return (
             id(self.state.result),
+            id(self.state.pinned),
             self.state.inputs.unit_system,
             getattr(inputs, f"{kind}_option"),
         )
@@ -190,6 +192,8 @@ class PlantPanel:
         """Redraw the plants whose result, units or option changed; return their kinds."""
         state = self.state
         plants = state.plants()
+        # a pinned "A": its plants by the same function, beside B's in the figures table
+        pinned = state.plants(state.pinned) if state.pinned is not None else None
         system = state.inputs.unit_system
         changed = []
         # one set of plants per result: a change of the cooling option redraws both
@@ -216,8 +220,18 @@ class PlantPanel:
                 )
             else:
                 self.charts[kind].spec = chart.to_dict()
+            pinned_figures = None
+            if pinned is not None:
+                pinned_figures = (
+                    getattr(pinned, kind),
+                    plant_design_condition(pinned, kind),
+                )
             self.tables[kind].value = plant_tables_html(
-                plant, option.name, system, plant_design_condition(plants, kind)
+                plant,
+                option.name,
+                system,
+                plant_design_condition(plants, kind),
+                pinned=pinned_figures,
             )
             self._shown[kind] = key
             changed.append(kind)
@@ -229,14 +243,14 @@ class PlantPanel:
 _METRIC_TEXT = {"kw_per_ton": "kW/ton", "cop": "COP", "eer": "EER"}
 
 
-def plant_tables_html(plant, option_name: str, system: str, condition=None) -> str:
-    """One plant's figures, part-load hours and staging of every option, as HTML tables.
+def plant_figures(plant, system: str, condition=None) -> list[tuple[str, str]]:
+    """One plant's headline figures as (label, text) rows, in display units.
 
     ``condition`` is the governing design condition as an object
     (:func:`plantside.study.figures.plant_design_condition`), rounded once from SI as
     the header's; without it the plant's own text is converted.
     """
-    title, quantity, energy_quantity, _ = PLANT_KINDS[plant.kind]
+    _, quantity, energy_quantity, _ = PLANT_KINDS[plant.kind]
 
     def power(v):
         value, unit = _value(quantity, v, system)
@@ -245,7 +259,7 @@ def plant_tables_html(plant, option_name: str, system: str, condition=None) -> s
     bins = plant.bins
     above = int(bins.loc[bins["band"] == "above 100 %", "hours"].sum())
     energy, energy_unit = _value(energy_quantity, plant.annual_energy, system)
-    figures = [
+    return [
         ("Design load", power(plant.design_load)),
         (
             "Design condition",
@@ -261,11 +275,44 @@ def plant_tables_html(plant, option_name: str, system: str, condition=None) -> s
         ("Load energy, year", f"{_number(energy)} {energy_unit}"),
         ("Hours above design capacity", f"{above:,} h"),
     ]
-    rows = "".join(f"<tr><th scope='row'>{a}</th><td>{b}</td></tr>" for a, b in figures)
+
+
+def plant_tables_html(plant, option_name: str, system: str, condition=None, pinned=None) -> str:
+    """One plant's figures, part-load hours and staging of every option, as HTML tables.
+
+    ``condition`` is the governing design condition as an object (see
+    :func:`plant_figures`). ``pinned`` is ``(plant, condition)`` of the pinned "A" (the
+    same kind of plant, from the same functions): then the figures table has a column
+    for A beside the current B, and the part says that the curve and the other tables
+    are of B only.
+    """
+    title, quantity, _, _ = PLANT_KINDS[plant.kind]
+    bins = plant.bins
+    figures = plant_figures(plant, system, condition)
+    if pinned is None:
+        rows = "".join(f"<tr><th scope='row'>{a}</th><td>{b}</td></tr>" for a, b in figures)
+        head = ""
+        note = ""
+    else:
+        before = plant_figures(pinned[0], system, pinned[1])
+        rows = "".join(
+            f"<tr><th scope='row'>{a}</th><td class='ps-a'>{pa}</td><td>{b}</td></tr>"
+            for (a, b), (_, pa) in zip(figures, before, strict=True)
+        )
+        head = (
+            "<tr><th scope='col'>Figure</th>"
+            f"<th scope='col'>{SCENARIO_LABELS['A']}</th>"
+            f"<th scope='col'>{SCENARIO_LABELS['B']}</th></tr>"
+        )
+        note = (
+            "<p class='plantside-help ps-ab-note'>The curve above and the tables below are "
+            f"of {SCENARIO_LABELS['B']} only.</p>"
+        )
     parts = [
         f"<h3 class='ps-plant-title'>{title}</h3>",
         f"<table class='ps-table ps-plant-figures'><caption>{title}: design and year"
-        f"</caption>{rows}</table>",
+        f"</caption>{head}{rows}</table>",
+        note,
     ]
     band_rows = "".join(
         f"<tr><th scope='row'>{html.escape(str(r.band))}</th><td>{int(r.hours):,}</td>"

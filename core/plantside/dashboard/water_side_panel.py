@@ -19,6 +19,7 @@ import altair as alt
 import ipywidgets as widgets
 
 from plantside.air_handler.coil_schedule import coil_schedule
+from plantside.charts.compare import SCENARIO_LABELS
 from plantside.charts.tables import coil_schedule_html, water_side_html
 from plantside.charts.water_side import (
     water_side_chart,
@@ -112,9 +113,10 @@ class WaterSidePanel:
             self._shown.clear()
             return True
         changed = False
-        key = (self._water_key, system)
+        pinned = self.state.pinned is not None
+        key = (self._water_key, system, pinned)
         if self._shown.get("tables") != key:
-            self.tables.value = _scroll_region(
+            self.tables.value = _which_result(pinned) + _scroll_region(
                 water_side_html(water, self.state.scenario.water_side, system), "Water side"
             )
             self._shown["tables"] = key
@@ -147,6 +149,17 @@ class WaterSidePanel:
             self._shown["chart"] = chart_key
             changed = True
         return changed
+
+
+def _which_result(pinned: bool) -> str:
+    """A line saying whose water side is shown when "A" is pinned: the current B's only
+    (A's water side would be a second year of the water side, not worked out here)."""
+    if not pinned:
+        return ""
+    return (
+        "<p class='plantside-help ps-ab-note'>Water side of "
+        f"{SCENARIO_LABELS['B']} only; {SCENARIO_LABELS['A']} is not shown here.</p>"
+    )
 
 
 def _scroll_region(table_html: str, name: str) -> str:
