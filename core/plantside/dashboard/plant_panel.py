@@ -309,7 +309,7 @@ def plant_tables_html(plant, option_name: str, system: str, condition=None, pinn
             f"of {SCENARIO_LABELS['B']} only.</p>"
         )
     parts = [
-        f"<h3 class='ps-plant-title'>{title}</h3>",
+        f"<h2 class='ps-plant-title'>{title}</h2>",
         f"<table class='ps-table ps-plant-figures'><caption>{title}: design and year"
         f"</caption>{head}{rows}</table>",
         note,

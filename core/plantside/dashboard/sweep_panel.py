@@ -163,7 +163,7 @@ class SweepPanel:
         self.box = widgets.VBox(
             [
                 widgets.HTML(
-                    "<h3>Sweep: outdoor-air fraction × climate</h3>"
+                    "<h2 class='ps-part-title'>Sweep: outdoor-air fraction × climate</h2>"
                     f"<div class='plantside-help'>{html.escape(CAUTION)}</div>"
                 ),
                 self.unit,
