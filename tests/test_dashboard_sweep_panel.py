@@ -255,8 +255,14 @@ def test_the_range_is_in_percent_as_the_pages_slider_and_the_sweep_gets_fraction
     assert (panel.fraction.min, panel.fraction.max) == (0.0, 100.0)
     assert panel.fraction.readout_format == ".0f"
     assert panel.fraction.value == (10.0, 50.0)
-    helps = [w.value for w in panel.box.children if isinstance(getattr(w, "value", None), str)]
-    assert any("in percent of the supply air" in text for text in helps)
+
+    def texts(widget):
+        if isinstance(getattr(widget, "value", None), str):
+            yield widget.value
+        for child in getattr(widget, "children", ()):
+            yield from texts(child)
+
+    assert any("in percent of the supply air" in text for text in texts(panel.box))
     _tick(panel, ["Salvia Flats"])
     panel.fraction.value = (15.0, 60.0)
     panel.steps.value = 4

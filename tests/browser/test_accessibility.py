@@ -295,8 +295,8 @@ def test_every_control_works_from_the_keyboard(dashboard_server, new_page):
 def test_plant_parts_with_a_pinned_have_no_landmark_or_heading_findings(
     dashboard_server, new_page, screenshots_folder
 ):
-    """The plant and water-side parts of the plant page, with A pinned (the A and B
-    columns of the plant figures): the same rules as above, and the A column shown."""
+    """The plant, water-side and sweep parts of the plant page, with A pinned (the A and
+    B columns of the plant figures): the same rules as above, and the A column shown."""
     from test_dashboard_browser import _show_part, figures_text, move_slider, wait_for_change
 
     for width, height in ((1280, 800), (1920, 1080)):
@@ -309,11 +309,12 @@ def test_plant_parts_with_a_pinned_have_no_landmark_or_heading_findings(
         for part, check in (
             ("Plant: cooling", ".ps-plant-figures th:has-text('A (pinned)')"),
             ("Water side", ".ps-ab-note"),
+            ("Sweep", ".plantside-sweep .ps-part-title"),
         ):
             _show_part(page, part)
             page.wait_for_selector(check, timeout=WIDGET_TIMEOUT_MS)
             page.wait_for_timeout(500)
-            name = "plant" if part.startswith("Plant") else "water_side"
+            name = part.split(":")[0].lower().replace(" ", "_")
             page.screenshot(
                 path=str(screenshots_folder / f"a11y_{name}_pinned_{width}.png"), full_page=True
             )

@@ -37,6 +37,7 @@ from plantside.charts.sweep import sweep_charts
 from plantside.climate.bundled import BUNDLED_CLIMATES
 from plantside.dashboard.controls import (
     SLIDERS,
+    AccessibleName,
     GuardedButton,
     GuardedCheckbox,
     GuardedDropdown,
@@ -160,6 +161,19 @@ class SweepPanel:
         for control in (self.unit, self.fraction, self.steps):
             control.observe(lambda _: self._show_count(), names="value")
         self.chart_choice.observe(lambda _: self._show_chart(), names="value")
+        # the range's two handles are <div role="slider">: named by the label and tied to
+        # the help line as the page's own sliders are (AccessibleName, in a control box)
+        help_id = f"plantside-sweep-help-{id(self)}"
+        self._fraction_box = widgets.VBox(
+            [
+                self.fraction,
+                widgets.HTML(
+                    f"<div class='plantside-help' id='{help_id}'>{html.escape(FRACTION_HELP)}</div>"
+                ),
+                AccessibleName(label=FRACTION_LABEL),
+            ]
+        )
+        self._fraction_box.add_class("plantside-control")
         self.box = widgets.VBox(
             [
                 widgets.HTML(
@@ -167,8 +181,7 @@ class SweepPanel:
                     f"<div class='plantside-help'>{html.escape(CAUTION)}</div>"
                 ),
                 self.unit,
-                self.fraction,
-                widgets.HTML(f"<div class='plantside-help'>{html.escape(FRACTION_HELP)}</div>"),
+                self._fraction_box,
                 self.steps,
                 widgets.HTML("<b>Climates</b>"),
                 self._climate_box,
