@@ -302,6 +302,11 @@ def test_plant_parts_with_a_pinned_have_no_landmark_or_heading_findings(
     for width, height in ((1280, 800), (1920, 1080)):
         page = new_page(width, height)
         open_dashboard(page, dashboard_server, "plant.ipynb")
+        _show_part(page, "Plant: cooling")  # nothing pinned: one column of figures
+        page.wait_for_selector(".ps-plant-figures", timeout=WIDGET_TIMEOUT_MS)
+        assert page.locator(".ps-plant-figures th:has-text('A (pinned)')").count() == 0
+        page.screenshot(path=str(screenshots_folder / f"a11y_plant_{width}.png"), full_page=True)
+        _show_part(page, "Design & year")
         page.click(".plantside-pin")
         shown = figures_text(page)
         move_slider(page, "outdoor-air-fraction", presses=5)

@@ -116,7 +116,7 @@ class SweepPanel:
         self._thread: threading.Thread | None = None
         self._stop = threading.Event()
         self.unit = GuardedDropdown(
-            options=[("", "1")], description="Air handler", style={"description_width": "10em"}
+            options=[("", "1")], description="Air handler", style={"description_width": "13em"}
         )
         # in percent, as the page's own outdoor-air slider; the sweep gets fractions
         self.fraction = GuardedRangeSlider(
@@ -126,7 +126,7 @@ class SweepPanel:
             step=5.0,
             readout_format=".0f",
             description=FRACTION_LABEL,
-            style={"description_width": "10em"},
+            style={"description_width": "13em"},
             continuous_update=False,
         )
         self.steps = GuardedIntText(
@@ -134,8 +134,8 @@ class SweepPanel:
             min=MIN_STEPS,
             max=MAX_STEPS,
             description="Steps",
-            style={"description_width": "10em"},
-            layout=widgets.Layout(width="16em"),
+            style={"description_width": "13em"},
+            layout=widgets.Layout(width="19em"),
         )
         self.climates: dict[str, widgets.Checkbox] = {}
         self._own: ClimateChoice | None = None
