@@ -7,6 +7,7 @@ layer adds no calculation of its own.
 
 from __future__ import annotations
 
+import html
 import json
 import re
 from pathlib import Path
@@ -203,6 +204,17 @@ def test_water_side_tables_are_the_study_figures(clinic, system):
     assert recovery["Heat-recovery hours [h]"] == summary["heat_recovery"]["heat_recovery_hours"]
     page = water_side_html(water, spec, system)
     assert page.count("<table") == 3 and page.count("<caption>") == 3
+    # the option tables on their side (a column per option): fifteen columns of the
+    # chilled-water table ran off a 1280 px page
+    chilled = re.search(r"<table class='ps-table ps-options'>(.*?)</table>", page, re.S).group(1)
+    heads = re.findall(r"<th scope='col'>(.*?)</th>", chilled)
+    assert heads == ["Figure", *(html.escape(name) for name in cooling["Option"])]
+    figures = re.findall(r"<th scope='row'>(.*?)</th>", chilled)
+    assert figures == [html.escape(c) for c in cooling.columns if c != "Option"]
+    chillers = re.search(r"<th scope='row'>Chillers \[kWh\]</th>(.*?)</tr>", chilled).group(1)
+    assert re.findall(r"<td>(.*?)</td>", chillers) == [
+        f"{v:,.0f}" for v in cooling["Chillers [kWh]"]
+    ]
 
 
 def test_tables_escape_text():

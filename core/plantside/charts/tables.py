@@ -23,6 +23,7 @@ __all__ = [
     "coil_schedule_html",
     "coil_schedule_table",
     "html_table",
+    "options_html_table",
     "water_side_html",
     "water_side_tables",
 ]
@@ -259,9 +260,35 @@ _WATER_CAPTIONS = {
 }
 
 
+def options_html_table(frame: pd.DataFrame, caption: str | None = None) -> str:
+    """A table of plant options (an ``Option`` column, one row each) turned on its side:
+    a row per figure, a column per option, so a dozen figures fit a projector-width
+    page (1280 px) and stay readable on paper (text escaped; ``attrs["digits"]``)."""
+    digits = frame.attrs.get("digits", {})
+    options = [str(name) for name in frame["Option"]]
+    head = "<th scope='col'>Figure</th>" + "".join(
+        f"<th scope='col'>{html.escape(name)}</th>" for name in options
+    )
+    body = "".join(
+        f"<tr><th scope='row'>{html.escape(str(column))}</th>"
+        + "".join(f"<td>{_cell(v, digits.get(column, 1))}</td>" for v in frame[column])
+        + "</tr>"
+        for column in frame.columns
+        if column != "Option"
+    )
+    cap = f"<caption>{html.escape(caption)}</caption>" if caption else ""
+    return (
+        f"<table class='ps-table ps-options'>{cap}"
+        f"<thead><tr>{head}</tr></thead><tbody>{body}</tbody></table>"
+    )
+
+
 def water_side_html(water, spec, system) -> str:
-    """:func:`water_side_tables` as HTML tables ("" when the study has no water side)."""
+    """:func:`water_side_tables` as HTML tables ("" when the study has no water side); the
+    option tables with a column per option (:func:`options_html_table`)."""
     return "".join(
-        html_table(table, _WATER_CAPTIONS[key])
+        options_html_table(table, _WATER_CAPTIONS[key])
+        if "Option" in table.columns
+        else html_table(table, _WATER_CAPTIONS[key])
         for key, table in water_side_tables(water, spec, system).items()
     )
