@@ -284,3 +284,17 @@ def test_a_refused_range_is_named_in_percent(state):
     _send(panel.fraction, {"value": [0.2, 120.0]})  # above 100 %: refused, kept
     assert panel.fraction.value == (30.0, 30.0)
     assert "0 % to 100 %" in html.unescape(panel.message.value)
+
+
+def test_the_case_count_reads_in_plain_words(state):
+    # it read "5 fractions × 1 climate(s) = 5 cases"
+    panel = SweepPanel(state)
+    for name, box in panel.climates.items():
+        box.value = name == next(iter(panel.climates))
+    panel.steps.value = 5
+    assert "5 fractions × 1 climate = 5 cases" in panel.count.value
+    for box in panel.climates.values():
+        box.value = True
+    assert f"× {len(panel.climates)} climates = {5 * len(panel.climates)} cases" in (
+        panel.count.value
+    )

@@ -285,7 +285,15 @@ class SweepPanel:
 
     def _show_count(self) -> None:
         count, climates = self.case_count(), len(self.chosen_climates())
-        text = f"{int(self.steps.value)} fractions × {climates} climate(s) = {count} cases"
+        steps = int(self.steps.value)
+
+        def counted(number: int, noun: str) -> str:
+            return f"{number} {noun}{'' if number == 1 else 's'}"
+
+        text = (
+            f"{counted(steps, 'fraction')} × {counted(climates, 'climate')} = "
+            f"{counted(count, 'case')}"
+        )
         if count > MAX_PANEL_CASES:
             text += f": more than the {MAX_PANEL_CASES} a sweep from the page may run"
         self.count.value = f"<div class='plantside-help'>{html.escape(text)}</div>"
