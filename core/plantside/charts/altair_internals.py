@@ -29,6 +29,7 @@ __all__ = [
     "Expression",
     "SchemaBase",
     "Undefined",
+    "chart_widget_sources",
     "debug_mode",
     "missing_names",
     "parse_shorthand",
@@ -100,3 +101,12 @@ def missing_names() -> list[str]:
         f"SchemaBase instance .{name}" for name in INSTANCE_ATTRIBUTES if not hasattr(sample, name)
     ]
     return missing
+
+
+def chart_widget_sources() -> tuple[str, str]:
+    """The Vega-Lite version vl-convert bundles for Altair's chart widget and the widget's
+    own script: what its offline script is made from (dashboard/offline_charts.py)."""
+    from altair.jupyter.jupyter_chart import load_js_src
+    from altair.utils._importers import vl_version_for_vl_convert
+
+    return vl_version_for_vl_convert(), load_js_src()

@@ -50,12 +50,11 @@ def _versions_key() -> str:
     """A digest of everything the bundled script depends on."""
     from importlib.metadata import version
 
-    from altair.jupyter.jupyter_chart import load_js_src
-    from altair.utils._importers import vl_version_for_vl_convert
+    from plantside.charts.altair_internals import chart_widget_sources
 
     # vl-convert's version from its metadata: importing it costs 8 MB a kernel never uses
     converter = version("vl-convert-python")
-    parts = (alt.__version__, converter, vl_version_for_vl_convert(), load_js_src())
+    parts = (alt.__version__, converter, *chart_widget_sources())
     return hashlib.sha256("\0".join(parts).encode("utf-8")).hexdigest()[:20]
 
 
