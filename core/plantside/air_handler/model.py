@@ -60,13 +60,15 @@ and because each branch residual falls strictly with W_z, the balance of the
 minimum of the branches is solved by the *smallest* of the branch solutions.
 Hours without a cooling coil take the dry branch. Dry bulbs depend on W only
 weakly (through c_p in mass-basis mixing, airflow and fan rise, and through the
-return enthalpy in enthalpy economizer control), so the whole model is passed
-over two to five times (usually two or three), each pass using the previous
-humidity, until a pass changes the zone humidity by less than 5e-5 kg/kg; the
+return enthalpy in enthalpy economizer control), so the model is passed over
+two to five times (usually two, a few hours three), each pass using the previous
+humidity, until a pass changes each hour's zone humidity by less than 5e-5 kg/kg;
+an hour that has settled stops, and the third and later passes model only the hours
+still going, so an hour's solution does not depend on the hours beside it. The
 passes converge linearly with a ratio near 0.01, so the humidity is then within
 about 5e-7 kg/kg and the dry bulbs within about 1e-3 K of the exact solution. The
-last change is reported (``humidity_iteration_change``). Economizer and recovery
-decisions are taken in the first two passes and then held.
+largest last change is reported (``humidity_iteration_change``). Economizer and
+recovery decisions are taken in the first two passes and then held.
 
 Energy balance (an identity of the reported states, see
 :mod:`plantside.air_handler.results`)::
@@ -128,6 +130,84 @@ _W_FLOOR = 1e-5
 _MAX_PASSES = 5
 #: Largest change of the zone humidity in a pass at which the passes stop [kg/kg].
 _PASS_TOLERANCE = 5e-5
+#: Hours still going, as a share of all, up to which a pass models only them (above it,
+#: the whole array is passed over again: gathering and scattering would cost more).
+_SUBSET_SHARE = 0.5
+#: What a pass reads besides the humidity state (names as in :func:`air_handler_hours`).
+_PASS_INPUTS = (
+    "s",
+    "bf_setting",
+    "blow_through",
+    "central_heating",
+    "coil_model",
+    "control",
+    "dew_point_coil",
+    "eps_l",
+    "eps_s",
+    "h_o",
+    "has_fan",
+    "has_plenum",
+    "humidity_control",
+    "load_per_kelvin",
+    "m_design",
+    "m_low",
+    "m_oa_fixed",
+    "moisture",
+    "p",
+    "preheat_t",
+    "q_plenum",
+    "q_room",
+    "recovery",
+    "reheat_mode",
+    "t_adp_fixed",
+    "t_dew_target",
+    "t_hmax",
+    "t_o",
+    "t_ss",
+    "t_z",
+    "track_minimum",
+    "w_adp_fixed",
+    "w_o",
+    "w_target",
+    "w_zone_max",
+    "ws_zone",
+    "x_min_setting",
+)
+#: What a pass hands to the next one.
+_PASS_STATE = ("w_s", "w_z", "ws_cl", "frozen_mode", "frozen_recovery", "at_minimum_in_a_pass")
+#: What the results read from each hour's last pass (the first three are state).
+_PASS_RESULTS = (
+    "w_s",
+    "w_z",
+    "at_minimum_in_a_pass",
+    "w_e",
+    "t_r",
+    "cooling",
+    "m",
+    "airflow_fraction",
+    "x",
+    "f",
+    "t_o2",
+    "w_o2",
+    "h_o2",
+    "fan_power",
+    "fan_heat",
+    "t_adp",
+    "t_cl",
+    "t_need",
+    "bf",
+    "x_min",
+    "mode",
+    "w_s_by_drybulb",
+)
+#: What a pass returns (the rest of its variables are dropped with it).
+_PASS_KEPT = tuple(
+    dict.fromkeys((*_PASS_RESULTS, *_PASS_STATE, "step", "heat_branch", "cool_branch"))
+)
+#: What a pass over some of the hours writes back into the whole array's variables.
+_PASS_SCATTERED = tuple(dict.fromkeys((*_PASS_RESULTS, *_PASS_STATE, "step")))
+#: Where an hour left before pass 1 has no frozen decision yet, the one it took.
+_FROZEN_FROM = {"frozen_mode": "mode", "frozen_recovery": ("heat_branch", "cool_branch")}
 
 
 def _h(t, w):
@@ -265,7 +345,13 @@ def air_handler_hours(
     if operating_hours_only and not (force_operating or s.fan_schedule == "always"):
         if not np.all(zone_loads.occupied):
             return _fan_off_hours_filled(
-                settings, t_o, w_o, p, zone_loads, minimum_outdoor_air_fraction, columns
+                settings,
+                t_o,
+                w_o,
+                p,
+                zone_loads,
+                minimum_outdoor_air_fraction,
+                columns,
             )
 
     # --- zone, airflow limits, fan (independent of humidity) --------------------------
@@ -356,174 +442,357 @@ def air_handler_hours(
     if s.all_outdoor_air:
         x_guess = 1.0
     else:
-        x_guess = max(0.0 if x_min_setting is None else float(np.min(x_min_setting)), 0.05)
+        # each hour's own minimum (a sweep's pairs have one each), at least 5 %
+        x_guess = np.maximum(0.0 if x_min_setting is None else x_min_setting, 0.05)
     w_s = np.where(heating, w_o, np.minimum(w_o, w_wet))
     w_z = np.minimum(
         np.maximum(np.where(heating, w_o + mu_guess / x_guess, w_s + mu_guess), _W_FLOOR), ws_zone
     )
-    change = np.inf
     # Control decisions (economizer mode, recovery on/off) are taken in the first two
     # passes and then kept: near a switching point the decision would otherwise flip
     # between passes (a real controller holds it by its deadband).
-    frozen_mode = frozen_recovery = None
     track_minimum = columns is not None and MINIMUM_IN_A_PASS in columns
-    at_minimum_in_a_pass = False
-    for pass_number in range(_MAX_PASSES):
-        c_s = CP_DRY_AIR + CP_WATER_VAPOR * w_s
-        # airflow
-        if s.variable_volume:
-            m = np.minimum(np.maximum(load_per_kelvin / c_s, m_low), m_design)
-        else:
-            m = m_design * np.ones_like(c_s)
-        mc_s = m * c_s
-        # supply temperature
-        t_need = t_z - q_room / mc_s
-        t_s_cool = t_ss if reheat_mode else np.maximum(t_ss, t_need)
-        t_s = np.where(central_heating, np.minimum(t_need, t_hmax), t_s_cool)
-        t_r = t_z + q_plenum / (m * (CP_DRY_AIR + CP_WATER_VAPOR * w_z)) if has_plenum else t_z
-        # fan
-        airflow_fraction = m / m_design
-        if has_fan:
-            fan_power = s.supply_fan_power * (
-                fan_power_fraction(airflow_fraction) if s.variable_volume else 1.0
-            )
-            fan_heat = fan_power * s.fan_heat_fraction
-            rise = fan_heat / mc_s
-        else:
-            fan_power = fan_heat = rise = 0.0
-        t_cl = t_s if blow_through else t_s - rise
-        t_ma = t_s - rise  # mixed-air set point, either fan position
-        # minimum outdoor air and economizer
-        x_min = np.minimum(1.0, m_oa_fixed / m) if x_min_setting is None else x_min_setting
-        h_r = _h(t_r, w_z)
-        if s.all_outdoor_air:
-            x = np.ones(np.broadcast_shapes(np.shape(t_ma), np.shape(x_min)))
-            mode = np.where(central_heating, MODE_HEATING, MODE_ALL_OUTDOOR_AIR).astype(np.int8)
-        else:
-            x, mode = _damper_control(
-                control,
-                s.economizer_integrated,
-                x_min,
-                t_ma,
-                t_o,
-                w_o,
-                h_o,
-                t_r,
-                w_z,
-                h_r,
-                s.economizer_drybulb_limit,
-                s.economizer_enthalpy_limit,
-                central_heating,
-                frozen_mode,
-            )
-        if track_minimum:
-            # where the damper stood at the minimum in some pass, the hour's solution
-            # depends on the minimum; elsewhere every pass is the same at any lower one
-            at_minimum_in_a_pass = at_minimum_in_a_pass | (x <= x_min)
-        # energy recovery (exhaust = return air), at the minimum outdoor air only
-        if recovery:
-            if frozen_recovery is None:
-                at_minimum = x <= x_min + 1e-12
-                t_m0 = _t_from_h(h_r + x * (h_o - h_r), w_z + x * (w_o - w_z))
-                heat_branch = at_minimum & (t_m0 < t_ma) & (t_o < t_r)
-                cool_branch = at_minimum & ~(t_m0 < t_ma)
-                cool_branch &= _h(t_o + eps_s * (t_r - t_o), w_o + eps_l * (w_z - w_o)) < h_o
-            else:
-                heat_branch, cool_branch = frozen_recovery
-            heat_hours = np.flatnonzero(heat_branch) if heat_branch.ndim == 1 else None
-            if heat_hours is not None and heat_hours.size < 0.8 * heat_branch.size:
-                # one array of hours (a year, or a sweep's pairs): the modulation solved
-                # only in the hours that use it
-                f = 1.0 * cool_branch
-                f_heat = recovery_fraction_for_mixed_drybulb(
-                    *(
-                        a[heat_hours] if np.ndim(a) else a
-                        for a in (t_ma, x, t_o, w_o, t_r, w_z, t_r, w_z)
-                    ),
-                    eps_s,
-                    eps_l,
-                )
-                f[heat_hours] = np.where(np.isnan(f_heat), 1.0, np.fmin(np.fmax(f_heat, 0.0), 1.0))
-            else:
-                f_heat = recovery_fraction_for_mixed_drybulb(
-                    t_ma, x, t_o, w_o, t_r, w_z, t_r, w_z, eps_s, eps_l
-                )
-                f_heat = np.where(np.isnan(f_heat), 1.0, np.fmin(np.fmax(f_heat, 0.0), 1.0))
-                f = np.where(heat_branch, f_heat, 1.0 * cool_branch)
-            t_o2 = t_o + f * eps_s * (t_r - t_o)
-            w_o2 = w_o + f * eps_l * (w_z - w_o)
-            h_o2 = _h(t_o2, w_o2)
-            alpha = x * (1.0 - f * eps_l)
-        else:
-            f, t_o2, w_o2, h_o2, alpha = 0.0, t_o, w_o, h_o, x
-        # mixing on a mass basis, preheat, blow-through fan
-        w_m = w_z + alpha * (w_o - w_z)
-        c_m = CP_DRY_AIR + CP_WATER_VAPOR * w_m
-        h_m = h_r + x * (h_o2 - h_r)
-        t_m = (h_m - LATENT_HEAT_0C * w_m) / c_m
-        t_ph = t_m if preheat_t is None else np.maximum(t_m, preheat_t)
-        t_e = t_ph + fan_heat / (m * c_m) if blow_through else t_ph
-        cooling = t_e > t_cl + COIL_IDLE_K
-        # coil humidity line W_cl = a W_e + b on the wet branch
-        if coil_model != "apparatus_dew_point":
-            t_adp = (t_cl - bf_setting * t_e) / (1.0 - bf_setting)
-            a = bf = bf_setting
-            w_adp = _saturation_humidity_ratio(t_adp, p)
-        else:
-            t_adp, w_adp = t_adp_fixed, w_adp_fixed
-            with np.errstate(divide="ignore", invalid="ignore"):
-                a = bf = np.where(cooling, (t_cl - t_adp) / (t_e - t_adp), 1.0)
-        b = (1.0 - a) * w_adp
-        if pass_number <= 1:  # t_cl moves by the iteration tolerance only after that
-            ws_cl = _saturation_humidity_ratio(t_cl, p)
-        mu = moisture / m
-        # closed-form zone humidity: smallest of the branch solutions (module notes)
-        with np.errstate(divide="ignore", invalid="ignore"):
-            z_dry = w_o + mu / alpha  # +-inf (no steady state) or NaN (any) when alpha = 0
-            z_wet = (a * alpha * w_o + b + mu) / (1.0 - a * (1.0 - alpha))
-        z = np.where(cooling, np.minimum(np.minimum(z_dry, z_wet), ws_cl + mu), z_dry)
-        undetermined = w_z
-        if dew_point_coil:
-            # the target branch (a = 0, b = W_target) holds in every hour, heating too,
-            # where the entering air is warmer than the target dew point (colder air, a
-            # fog of mixing, is not dried by cooling it further)
-            dew_active = t_e > t_dew_target + COIL_IDLE_K
-            z = np.where(dew_active, np.minimum(z, w_target + mu), z)
-            undetermined = np.where(dew_active, np.minimum(w_z, w_target + mu), w_z)
-        elif humidity_control:
-            # the coil is driven colder until the supply holds the zone at the set point
-            # (a = 0, b = W_max - mu), in any hour the zone would be more humid
-            w_cap = np.maximum(w_zone_max - mu, _W_FLOOR)
-            z = np.minimum(z, w_cap + mu)
-            undetermined = np.minimum(w_z, w_cap + mu)
-        w_z_new = np.minimum(np.maximum(np.where(np.isnan(z), undetermined, z), _W_FLOOR), ws_zone)
-        change = float(np.max(np.abs(w_z_new - w_z)))
-        w_z = w_z_new
-        w_e = w_z + alpha * (w_o - w_z)
-        w_s = np.where(cooling, np.minimum(np.minimum(w_e, a * w_e + b), ws_cl), w_e)
-        if dew_point_coil:
-            w_s_by_drybulb = w_s
-            w_s = np.where(dew_active, np.minimum(w_s, w_target), w_s)
-        elif humidity_control:
-            w_s_by_drybulb = w_s
-            w_s = np.minimum(w_s, w_cap)
-        if pass_number == 1:
-            frozen_mode = None if s.all_outdoor_air else mode
-            frozen_recovery = (heat_branch, cool_branch) if recovery else None
-        # Linear convergence with a ratio near 0.01: after a pass that changed the humidity
-        # by less than the tolerance, the humidity is within about 1 % of it and the dry
-        # bulbs (which used the previous pass's humidity) within about 10 K per kg/kg of it.
-        if pass_number >= 1 and change < _PASS_TOLERANCE:
-            break
-
+    here = locals()
+    last = _passes(
+        {name: here.get(name) for name in _PASS_INPUTS},
+        {
+            "w_s": w_s,
+            "w_z": w_z,
+            "ws_cl": None,
+            "frozen_mode": None,
+            "frozen_recovery": None,
+            "at_minimum_in_a_pass": False,
+        },
+        n,
+    )
+    del here
+    change = float(np.max(last["step"]))
+    (
+        w_s,
+        w_z,
+        at_minimum_in_a_pass,
+        w_e,
+        t_r,
+        cooling,
+        m,
+        airflow_fraction,
+        x,
+        f,
+        t_o2,
+        w_o2,
+        h_o2,
+        fan_power,
+        fan_heat,
+        t_adp,
+        t_cl,
+        t_need,
+        bf,
+        x_min,
+        mode,
+        w_s_by_drybulb,
+    ) = (last.get(name) for name in _PASS_RESULTS)
     # hours where the leaving dew point or the zone humidity set point, not the leaving
     # dry bulb, sets the coil
     dew_point_governs = (w_s < w_s_by_drybulb) if dew_point_coil or humidity_control else False
     return hourly_results(SimpleNamespace(**locals()), columns)
 
 
+def _passes(inputs, state, n):
+    """Passes of :func:`_one_pass` until the zone humidity has settled (module notes).
+
+    Where the arrays are one row of ``n`` hours (a year, or a sweep's pairs), each hour
+    stops on its own after the first pass from its second on that changed its humidity
+    by less than the tolerance, and the later passes model only the hours still going:
+    an hour's solution is then the same whatever other hours share the call (a sweep's
+    pair equals the year's hour). Otherwise (a block of fractions by hours) every hour
+    passes until the largest change is below the tolerance, after at least two passes.
+    Returns the variables of each hour's last pass (those of :data:`_PASS_RESULTS`, and
+    ``step``, each hour's last change).
+    """
+    out = _one_pass(0, **inputs, **state)
+    per_hour = np.shape(out["step"]) == (n,)
+    for pass_number in range(1, _MAX_PASSES):
+        if per_hour:
+            if pass_number == 1:  # every hour takes two passes from the first guess
+                out = _one_pass(pass_number, **inputs, **{key: out[key] for key in _PASS_STATE})
+                continue
+            hours = np.flatnonzero(~(out["step"] < _PASS_TOLERANCE))  # NaN goes on
+            if hours.size == 0:
+                break
+            if hours.size <= _SUBSET_SHARE * n:
+                part = _one_pass(
+                    pass_number,
+                    **_subset(inputs, hours, n),
+                    **_subset({key: out[key] for key in _PASS_STATE}, hours, n),
+                )
+                _scatter(out, part, hours, n, inputs)
+                continue
+        elif pass_number >= 2 and float(np.max(out["step"])) < _PASS_TOLERANCE:
+            break
+        out = _one_pass(pass_number, **inputs, **{key: out[key] for key in _PASS_STATE})
+    return out
+
+
+def _subset(values, hours, n):
+    """``values`` (a dict) with every array of one value per hour taken at ``hours``."""
+
+    def take(value):
+        if isinstance(value, tuple):
+            return tuple(take(item) for item in value)
+        if isinstance(value, np.ndarray) and value.shape == (n,):
+            return value[hours]
+        return value
+
+    return {key: take(value) for key, value in values.items()}
+
+
+def _scatter(out, part, hours, n, inputs):
+    """Write a pass over ``hours`` (``part``) into the whole array's variables ``out``.
+
+    An array a pass made and no other name holds is written in place; an input (a
+    variable that only passes an input on, such as the recovered air without recovery)
+    keeps its values, which the part's are taken from; anything else is copied first.
+    """
+    shared = {id(value) for value in inputs.values() if isinstance(value, np.ndarray)}
+    written = set()
+
+    def put(whole, piece):
+        if np.ndim(piece) == 0:  # a constant of every pass (a scalar setting)
+            return whole
+        if id(whole) in shared:
+            return whole
+        if (
+            isinstance(whole, np.ndarray)
+            and whole.shape == (n,)
+            and whole.dtype == piece.dtype
+            and whole.base is None
+            and whole.flags.writeable
+            and id(whole) not in written
+        ):
+            merged = whole
+        else:
+            merged = np.empty(n, dtype=np.result_type(whole, piece))
+            merged[...] = whole
+        merged[hours] = piece
+        written.add(id(merged))
+        return merged
+
+    for key in _PASS_SCATTERED:
+        whole, piece = out.get(key), part.get(key)
+        if piece is None:
+            continue
+        if whole is None:  # frozen at pass 1 here, not yet in the hours that left
+            source = _FROZEN_FROM[key]
+            whole = out[source] if isinstance(source, str) else tuple(out[s] for s in source)
+        if isinstance(piece, tuple):
+            out[key] = tuple(put(w, p) for w, p in zip(whole, piece, strict=True))
+        else:
+            out[key] = put(whole, piece)
+
+
+def _one_pass(
+    pass_number,
+    *,
+    s,
+    bf_setting,
+    blow_through,
+    central_heating,
+    coil_model,
+    control,
+    dew_point_coil,
+    eps_l,
+    eps_s,
+    h_o,
+    has_fan,
+    has_plenum,
+    humidity_control,
+    load_per_kelvin,
+    m_design,
+    m_low,
+    m_oa_fixed,
+    moisture,
+    p,
+    preheat_t,
+    q_plenum,
+    q_room,
+    recovery,
+    reheat_mode,
+    t_adp_fixed,
+    t_dew_target,
+    t_hmax,
+    t_o,
+    t_ss,
+    t_z,
+    track_minimum,
+    w_adp_fixed,
+    w_o,
+    w_target,
+    w_zone_max,
+    ws_zone,
+    x_min_setting,
+    w_s,
+    w_z,
+    ws_cl,
+    frozen_mode,
+    frozen_recovery,
+    at_minimum_in_a_pass,
+):
+    """One pass of :func:`air_handler_hours` over the hours given (module notes): every
+    state from the previous pass's humidity, then the zone humidity in closed form.
+    Returns its variables by name (``step``: each hour's change of the zone humidity)."""
+    c_s = CP_DRY_AIR + CP_WATER_VAPOR * w_s
+    # airflow
+    if s.variable_volume:
+        m = np.minimum(np.maximum(load_per_kelvin / c_s, m_low), m_design)
+    else:
+        m = m_design * np.ones_like(c_s)
+    mc_s = m * c_s
+    # supply temperature
+    t_need = t_z - q_room / mc_s
+    t_s_cool = t_ss if reheat_mode else np.maximum(t_ss, t_need)
+    t_s = np.where(central_heating, np.minimum(t_need, t_hmax), t_s_cool)
+    t_r = t_z + q_plenum / (m * (CP_DRY_AIR + CP_WATER_VAPOR * w_z)) if has_plenum else t_z
+    # fan
+    airflow_fraction = m / m_design
+    if has_fan:
+        fan_power = s.supply_fan_power * (
+            fan_power_fraction(airflow_fraction) if s.variable_volume else 1.0
+        )
+        fan_heat = fan_power * s.fan_heat_fraction
+        rise = fan_heat / mc_s
+    else:
+        fan_power = fan_heat = rise = 0.0
+    t_cl = t_s if blow_through else t_s - rise
+    t_ma = t_s - rise  # mixed-air set point, either fan position
+    # minimum outdoor air and economizer
+    x_min = np.minimum(1.0, m_oa_fixed / m) if x_min_setting is None else x_min_setting
+    h_r = _h(t_r, w_z)
+    if s.all_outdoor_air:
+        x = np.ones(np.broadcast_shapes(np.shape(t_ma), np.shape(x_min)))
+        mode = np.where(central_heating, MODE_HEATING, MODE_ALL_OUTDOOR_AIR).astype(np.int8)
+    else:
+        x, mode = _damper_control(
+            control,
+            s.economizer_integrated,
+            x_min,
+            t_ma,
+            t_o,
+            w_o,
+            h_o,
+            t_r,
+            w_z,
+            h_r,
+            s.economizer_drybulb_limit,
+            s.economizer_enthalpy_limit,
+            central_heating,
+            frozen_mode,
+        )
+    if track_minimum:
+        # where the damper stood at the minimum in some pass, the hour's solution
+        # depends on the minimum; elsewhere every pass is the same at any lower one
+        at_minimum_in_a_pass = at_minimum_in_a_pass | (x <= x_min)
+    # energy recovery (exhaust = return air), at the minimum outdoor air only
+    if recovery:
+        if frozen_recovery is None:
+            at_minimum = x <= x_min + 1e-12
+            t_m0 = _t_from_h(h_r + x * (h_o - h_r), w_z + x * (w_o - w_z))
+            heat_branch = at_minimum & (t_m0 < t_ma) & (t_o < t_r)
+            cool_branch = at_minimum & ~(t_m0 < t_ma)
+            cool_branch &= _h(t_o + eps_s * (t_r - t_o), w_o + eps_l * (w_z - w_o)) < h_o
+        else:
+            heat_branch, cool_branch = frozen_recovery
+        heat_hours = np.flatnonzero(heat_branch) if heat_branch.ndim == 1 else None
+        if heat_hours is not None and heat_hours.size < 0.8 * heat_branch.size:
+            # one array of hours (a year, or a sweep's pairs): the modulation solved
+            # only in the hours that use it
+            f = 1.0 * cool_branch
+            f_heat = recovery_fraction_for_mixed_drybulb(
+                *(
+                    a[heat_hours] if np.ndim(a) else a
+                    for a in (t_ma, x, t_o, w_o, t_r, w_z, t_r, w_z)
+                ),
+                eps_s,
+                eps_l,
+            )
+            f[heat_hours] = np.where(np.isnan(f_heat), 1.0, np.fmin(np.fmax(f_heat, 0.0), 1.0))
+        else:
+            f_heat = recovery_fraction_for_mixed_drybulb(
+                t_ma, x, t_o, w_o, t_r, w_z, t_r, w_z, eps_s, eps_l
+            )
+            f_heat = np.where(np.isnan(f_heat), 1.0, np.fmin(np.fmax(f_heat, 0.0), 1.0))
+            f = np.where(heat_branch, f_heat, 1.0 * cool_branch)
+        t_o2 = t_o + f * eps_s * (t_r - t_o)
+        w_o2 = w_o + f * eps_l * (w_z - w_o)
+        h_o2 = _h(t_o2, w_o2)
+        alpha = x * (1.0 - f * eps_l)
+    else:
+        f, t_o2, w_o2, h_o2, alpha = 0.0, t_o, w_o, h_o, x
+    # mixing on a mass basis, preheat, blow-through fan
+    w_m = w_z + alpha * (w_o - w_z)
+    c_m = CP_DRY_AIR + CP_WATER_VAPOR * w_m
+    h_m = h_r + x * (h_o2 - h_r)
+    t_m = (h_m - LATENT_HEAT_0C * w_m) / c_m
+    t_ph = t_m if preheat_t is None else np.maximum(t_m, preheat_t)
+    t_e = t_ph + fan_heat / (m * c_m) if blow_through else t_ph
+    cooling = t_e > t_cl + COIL_IDLE_K
+    # coil humidity line W_cl = a W_e + b on the wet branch
+    if coil_model != "apparatus_dew_point":
+        t_adp = (t_cl - bf_setting * t_e) / (1.0 - bf_setting)
+        a = bf = bf_setting
+        w_adp = _saturation_humidity_ratio(t_adp, p)
+    else:
+        t_adp, w_adp = t_adp_fixed, w_adp_fixed
+        with np.errstate(divide="ignore", invalid="ignore"):
+            a = bf = np.where(cooling, (t_cl - t_adp) / (t_e - t_adp), 1.0)
+    b = (1.0 - a) * w_adp
+    if pass_number <= 1:  # t_cl moves by the iteration tolerance only after that
+        ws_cl = _saturation_humidity_ratio(t_cl, p)
+    mu = moisture / m
+    # closed-form zone humidity: smallest of the branch solutions (module notes)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        z_dry = w_o + mu / alpha  # +-inf (no steady state) or NaN (any) when alpha = 0
+        z_wet = (a * alpha * w_o + b + mu) / (1.0 - a * (1.0 - alpha))
+    z = np.where(cooling, np.minimum(np.minimum(z_dry, z_wet), ws_cl + mu), z_dry)
+    undetermined = w_z
+    if dew_point_coil:
+        # the target branch (a = 0, b = W_target) holds in every hour, heating too,
+        # where the entering air is warmer than the target dew point (colder air, a
+        # fog of mixing, is not dried by cooling it further)
+        dew_active = t_e > t_dew_target + COIL_IDLE_K
+        z = np.where(dew_active, np.minimum(z, w_target + mu), z)
+        undetermined = np.where(dew_active, np.minimum(w_z, w_target + mu), w_z)
+    elif humidity_control:
+        # the coil is driven colder until the supply holds the zone at the set point
+        # (a = 0, b = W_max - mu), in any hour the zone would be more humid
+        w_cap = np.maximum(w_zone_max - mu, _W_FLOOR)
+        z = np.minimum(z, w_cap + mu)
+        undetermined = np.minimum(w_z, w_cap + mu)
+    w_z_new = np.minimum(np.maximum(np.where(np.isnan(z), undetermined, z), _W_FLOOR), ws_zone)
+    step = np.abs(w_z_new - w_z)
+    w_z = w_z_new
+    w_e = w_z + alpha * (w_o - w_z)
+    w_s = np.where(cooling, np.minimum(np.minimum(w_e, a * w_e + b), ws_cl), w_e)
+    if dew_point_coil:
+        w_s_by_drybulb = w_s
+        w_s = np.where(dew_active, np.minimum(w_s, w_target), w_s)
+    elif humidity_control:
+        w_s_by_drybulb = w_s
+        w_s = np.minimum(w_s, w_cap)
+    if pass_number == 1:
+        frozen_mode = None if s.all_outdoor_air else mode
+        frozen_recovery = (heat_branch, cool_branch) if recovery else None
+    here = locals()
+    return {key: here.get(key) for key in _PASS_KEPT}
+
+
 def _fan_off_hours_filled(
-    settings, t_o, w_o, p, zone_loads, minimum_outdoor_air_fraction, columns=None
+    settings,
+    t_o,
+    w_o,
+    p,
+    zone_loads,
+    minimum_outdoor_air_fraction,
+    columns=None,
 ):
     """:func:`air_handler_hours` of the hours the fan runs, the others filled as
     :func:`plantside.air_handler.results.hourly_results` leaves them (fan-off hours do
