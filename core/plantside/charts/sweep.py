@@ -38,6 +38,7 @@ __all__ = [
     "sweep_heatmap_frame",
     "sweep_line_chart",
     "sweep_line_frame",
+    "water_side_options_frame",
 ]
 
 #: Words for the headline columns of the sweep table (before any ``[air handler]``).
@@ -62,7 +63,21 @@ HEADLINE_LABELS = {
     "heating_energy_kWh": "Heating energy",
     "caution_count": "Cautions",
     "climate": "Climate",
+    # the water side, per plant option ([sweep] water_side = true)
+    "chilled_water_plant_electricity_kWh": "Chilled-water plant electricity",
+    "chilled_water_plant_seasonal_cop": "Chilled-water plant seasonal COP",
+    "chiller_starts": "Chiller starts",
+    "heating_fuel_kWh": "Boiler fuel",
+    "hot_water_pump_electricity_kWh": "Hot-water pump electricity",
+    "boiler_seasonal_efficiency": "Boiler seasonal efficiency",
+    "boiler_starts": "Boiler starts",
+    "option": "Plant option",
 }
+#: The options heat map's value: electricity above the lowest option of the column [%].
+_ABOVE_LOWEST = "electricity_above_lowest_option_percent"
+#: Name endings of columns that keep their unit in both unit systems (electricity and fuel
+#: in kWh, as the water side's tables give them).
+_FIXED_UNITS = (("_electricity_kWh", "kWh"), ("_fuel_kWh", "kWh"))
 
 _SUFFIX_QUANTITIES = (
     ("_kWh", "energy"),
@@ -83,13 +98,22 @@ def _split(column: str) -> tuple[str, str | None]:
     return (match["name"], match["unit"]) if match else (column, None)
 
 
+def _fixed_unit(column: str) -> str | None:
+    """The unit of a column shown as it is in both unit systems (None: by its quantity)."""
+    name, _ = _split(column)
+    return next((unit for suffix, unit in _FIXED_UNITS if name.endswith(suffix)), None)
+
+
 def column_quantity(column: str) -> str | None:
     """Physical quantity of a sweep-table column from its unit suffix (None: plain number).
 
     Heating loads and energies are ``heating_power`` / ``heating_energy`` (MBH and MMBtu
-    in I-P); cooling loads ``power`` / ``energy`` (tons and ton·h).
+    in I-P); cooling loads ``power`` / ``energy`` (tons and ton·h). Electricity and fuel
+    (``*_electricity_kWh``, ``*_fuel_kWh``) stay in kWh in both: None.
     """
     name, _ = _split(column)
+    if _fixed_unit(column):
+        return None
     for suffix, quantity in _SUFFIX_QUANTITIES:
         if name.endswith(suffix):
             if "heating" in name and quantity in ("power", "energy"):
@@ -115,6 +139,9 @@ def column_label(column: str) -> str:
 
 def _title(column: str, label: str | None, system: UnitSystem) -> str:
     label = column_label(column) if label is None else label
+    fixed = _fixed_unit(column)
+    if fixed:
+        return f"{label} [{fixed}]"
     quantity = column_quantity(column)
     return f"{label} [{unit_label(quantity, system)}]" if quantity else label
 
@@ -523,4 +550,47 @@ def sweep_charts(table: pd.DataFrame, axis_columns, *, system="SI") -> dict:
         charts["sweep_plant_capacity_map"] = sweep_heatmap_chart(
             frame, subtitle=[s for s in ("One case per cell", note) if s]
         )
+    electricity = "chilled_water_plant_electricity_kWh"
+    options = water_side_options_frame(table, electricity)
+    if options is not None:
+        # each cooling option's electricity against the lowest option of its column: by
+        # climate (or by the first axis), the other axes held at their first values
+        across = "climate" if climates or not axes else axes[0]
+        held = [c for c in axes if c != across]
+        where = _first_values(options, held)
+        chosen = _slice(options, where).copy()
+        lowest = chosen.groupby(across, sort=False)[electricity].transform("min")
+        chosen[_ABOVE_LOWEST] = 100.0 * (chosen[electricity] / lowest - 1.0)
+        frame = sweep_heatmap_frame(
+            chosen, across, "option", _ABOVE_LOWEST, system=system, value_label="Extra [%]"
+        )
+        note = _fixed_note(where, system)
+        charts["sweep_chiller_options_map"] = sweep_heatmap_chart(
+            frame,
+            title="Chilled-water plant options: electricity a year",
+            subtitle=[
+                s
+                for s in (
+                    "Above the column's lowest option [%]",
+                    "Chillers, pumps and tower fans",
+                    note,
+                )
+                if s
+            ],
+        )
     return charts
+
+
+def water_side_options_frame(table: pd.DataFrame, name: str) -> pd.DataFrame | None:
+    """The water-side columns ``name[option]`` of a sweep table as rows: one per case and
+    plant option, with the option's name in ``option`` and its value in ``name`` (None
+    when the table has no such columns, a sweep without ``water_side = true``)."""
+    columns = [c for c in table.columns if _split(c)[0] == name and _split(c)[1]]
+    if not columns:
+        return None
+    keep = [c for c in table.columns if c == "climate" or _AXIS.match(c)]
+    parts = [
+        table[keep].assign(option=_split(column)[1], **{name: table[column].to_numpy(float)})
+        for column in columns
+    ]
+    return pd.concat(parts, ignore_index=True)

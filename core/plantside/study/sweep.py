@@ -8,6 +8,7 @@ scenario, or inside a scenario file (the scenario itself is then the base)::
     base = "../scenarios/quillon_clinic.toml"   # relative to this file
     climates = ["Salvia Flats", "Port Calder"]  # bundled names, or "all"
     # climate_folder = "weather"                # or every *.csv in a folder
+    # water_side = true                         # also each plant option's year
 
     [sweep.axes]
     "air_handler[2].minimum_outdoor_air_fraction" = { start = 0.1, stop = 0.5, num = 5 }
@@ -66,6 +67,7 @@ from plantside.study.sweep_cases import (
     case_id_from_values,
 )
 from plantside.study.toml_input import parse_toml_text, read_toml_text
+from plantside.study.water_side import WATER_SIDE_FIELDS
 from plantside.units import UnitSystem, from_display, unit_label
 
 __all__ = [
@@ -102,6 +104,7 @@ _SWEEP_KEYS = (
     "altitude",
     "fill_gaps",
     "axes",
+    "water_side",
 )
 _RANGE_KEYS = ("start", "stop", "num")
 _SITE_FIELDS = {
@@ -495,7 +498,24 @@ def sweep_from_dict(table: dict, base: Scenario, source: str = "<sweep>", base_d
                 )
             touched[key] = axis.field
     reader.combinations(axes)
-    sweep = Sweep(title=title, base=base, axes=axes, climates=climates, source=source)
+    water_side = table.get("water_side", False)
+    if not isinstance(water_side, bool):
+        raise reader.error("sweep.water_side", f"expected true or false, got {_quoted(water_side)}")
+    if water_side and base.water_side is None:
+        tables = ", ".join(f"[plant.{name}]" for name in WATER_SIDE_FIELDS)
+        raise reader.error(
+            "sweep.water_side",
+            f"the base scenario has no water side to sweep (none of {tables}); add its "
+            "tables to the scenario or leave water_side out",
+        )
+    sweep = Sweep(
+        title=title,
+        base=base,
+        axes=axes,
+        climates=climates,
+        source=source,
+        water_side=water_side,
+    )
     if sweep.size > MAX_CASES:
         raise reader.error(
             "sweep.axes",

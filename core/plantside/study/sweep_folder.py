@@ -144,6 +144,6 @@ def results_table(out, sweep: Sweep) -> pd.DataFrame:
     frame["case_index"] = frame["case_id"].map(index)
     # varied values come from the sweep itself (authoritative), results from the parts
     cases = pd.DataFrame([case_row(sweep, sweep.cases[i]) for i in frame["case_index"]])
-    results = frame[["case_id", *headline_columns(sweep.base), *STATUS_COLUMNS]]
+    results = frame[["case_id", *headline_columns(sweep.base, sweep.water_side), *STATUS_COLUMNS]]
     table = cases.merge(results, on="case_id", how="left") if len(cases) else template
     return typed_table(table.sort_values("case_index").reset_index(drop=True), sweep)

@@ -18,9 +18,11 @@ import pandas as pd
 
 from plantside.climate.weather import Weather
 from plantside.errors import NAME_EXCERPT_CHARS, PlantsideError, excerpt
+from plantside.study.figures import plant_option_specs
 from plantside.study.run import GENERAL_CAUTIONS, StudyResult, heating_load_columns, run_study
 from plantside.study.scenario import Scenario
 from plantside.study.sweep_cases import Sweep, SweepCase
+from plantside.study.water_side_run import run_water_side
 
 __all__ = [
     "CASE_FAILED",
@@ -33,6 +35,8 @@ __all__ = [
     "headline_columns",
     "run_batch",
     "typed_table",
+    "water_side_columns",
+    "water_side_headlines",
 ]
 
 #: Share of the design capacity above which hours are counted (a plant running near
@@ -56,8 +60,61 @@ WORKER_DIED = (
 # ---------------------------------------------------------------------------------------
 # one case, one batch (what the workers run)
 # ---------------------------------------------------------------------------------------
-def headline_columns(scenario: Scenario) -> list[str]:
-    """Result columns of the sweep table for air handlers named as in ``scenario``."""
+#: A sweep's water-side columns per cooling option (``[sweep] water_side = true``), each
+#: followed by ``[option name]``, and the water side's option column each one takes
+#: (:func:`plantside.study.water_side_run.run_water_side`): the electricity of the
+#: chillers, chilled-water and condenser pumps and tower fans [kWh], the seasonal plant
+#: COP (cooling delivered / that electricity) and the chiller starts in the year.
+WATER_SIDE_COOLING_COLUMNS = {
+    "chilled_water_plant_electricity_kWh": "plant_kWh",
+    "chilled_water_plant_seasonal_cop": "seasonal_plant_cop",
+    "chiller_starts": "machine_starts",
+}
+#: The same per heating option: boiler fuel [kWh], hot-water pump electricity [kWh],
+#: seasonal boiler efficiency (heat delivered / fuel) and boiler starts in the year.
+WATER_SIDE_HEATING_COLUMNS = {
+    "heating_fuel_kWh": "fuel_kWh",
+    "hot_water_pump_electricity_kWh": "pump_kWh",
+    "boiler_seasonal_efficiency": "seasonal_efficiency",
+    "boiler_starts": "machine_starts",
+}
+
+
+def water_side_columns(scenario: Scenario) -> list[str]:
+    """The water-side columns of a sweep table, for the plant options of ``scenario``."""
+    columns = []
+    for kind, per_option in (
+        ("cooling", WATER_SIDE_COOLING_COLUMNS),
+        ("heating", WATER_SIDE_HEATING_COLUMNS),
+    ):
+        specs = scenario.cooling_options if kind == "cooling" else scenario.heating_options
+        for spec in plant_option_specs(specs, kind):
+            columns += [f"{name}[{spec.name}]" for name in per_option]
+    return columns
+
+
+def water_side_headlines(result: StudyResult) -> dict:
+    """Each plant option's water-side year of one study, keyed as
+    :func:`water_side_columns` (NaN where an option has no year: heating options when
+    no hour needs heat)."""
+    water = run_water_side(result)
+    row = dict.fromkeys(water_side_columns(result.scenario), np.nan)
+    options = water.options if water is not None else pd.DataFrame()
+    for record in options.to_dict(orient="records"):
+        per_option = (
+            WATER_SIDE_COOLING_COLUMNS
+            if record["plant"] == "cooling"
+            else WATER_SIDE_HEATING_COLUMNS
+        )
+        for name, source in per_option.items():
+            value = record.get(source)
+            row[f"{name}[{record['option']}]"] = np.nan if value is None else float(value)
+    return row
+
+
+def headline_columns(scenario: Scenario, water_side: bool = False) -> list[str]:
+    """Result columns of the sweep table for air handlers named as in ``scenario``
+    (and its plant options' water-side columns with ``water_side``)."""
     per_unit = (
         "design_coil_total_kW",
         "design_coil_sensible_kW",
@@ -84,16 +141,19 @@ def headline_columns(scenario: Scenario) -> list[str]:
         "heating_annual_peak_kW",
         "heating_energy_kWh",
         "caution_count",
+        *(water_side_columns(scenario) if water_side else []),
     ]
 
 
-def case_headlines(result: StudyResult) -> dict:
+def case_headlines(result: StudyResult, water_side: bool = False) -> dict:
     """The headline results of one study, SI, keyed as :func:`headline_columns`.
 
     Parameters
     ----------
     result : StudyResult
         A finished :func:`plantside.study.run.run_study`.
+    water_side : bool
+        Also each plant option's water-side year (:func:`water_side_headlines`).
 
     Returns
     -------
@@ -141,6 +201,8 @@ def case_headlines(result: StudyResult) -> dict:
     row["heating_annual_peak_kW"] = heating.annual_peak
     row["heating_energy_kWh"] = heating.annual_energy
     row["caution_count"] = len(result.cautions) - len(GENERAL_CAUTIONS)
+    if water_side:
+        row |= water_side_headlines(result)
     return row
 
 
@@ -204,7 +266,12 @@ def run_batch(sweep: Sweep, cases: Sequence[SweepCase]) -> pd.DataFrame:
         except (PlantsideError, OSError) as error:  # a bad file, a refused value
             rows.append(case_row(sweep, case) | _failure(error))
             continue
-        rows.append(case_row(sweep, case) | case_headlines(result) | ran)
+        try:
+            headlines = case_headlines(result, sweep.water_side)
+        except (PlantsideError, OSError) as error:  # refused on the water side
+            rows.append(case_row(sweep, case) | _failure(error))
+            continue
+        rows.append(case_row(sweep, case) | headlines | ran)
     return typed_table(pd.DataFrame(rows), sweep)
 
 
@@ -217,7 +284,7 @@ def failed_rows(sweep: Sweep, cases: Sequence[SweepCase], field: str, message: s
 def typed_table(frame: pd.DataFrame, sweep: Sweep) -> pd.DataFrame:
     """Fixed column order and dtypes, so parts from any worker concatenate cleanly."""
     columns = ["case_index", "case_id", "climate", *[a.column for a in sweep.axes]]
-    results = headline_columns(sweep.base)
+    results = headline_columns(sweep.base, sweep.water_side)
     frame = frame.reindex(columns=[*columns, *results, *STATUS_COLUMNS])
     for axis in sweep.axes:
         frame[axis.column] = frame[axis.column].astype(float)
