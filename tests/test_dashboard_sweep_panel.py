@@ -298,3 +298,37 @@ def test_the_case_count_reads_in_plain_words(state):
     assert f"× {len(panel.climates)} climates = {5 * len(panel.climates)} cases" in (
         panel.count.value
     )
+
+
+def test_the_water_side_box_adds_each_options_year_as_the_command(state, tmp_path):
+    panel = SweepPanel(state)
+    assert panel.water_side.layout.display is None  # the clinic has water-side tables
+    assert panel.controls["sweep_water_side"] is panel.water_side
+    unit = panel.unit.value
+    _tick(panel, ["Salvia Flats", "Korva Plains"])
+    panel.fraction.value = (20.0, 40.0)
+    panel.steps.value = 2
+    panel.water_side.value = True
+    assert panel.start()
+    assert panel.join(timeout=300)
+    path = tmp_path / "sweep.toml"
+    path.write_text(
+        f'[sweep]\nbase = "{CLINIC.as_posix()}"\nclimates = ["Salvia Flats", "Korva Plains"]\n'
+        "water_side = true\n"
+        f'[sweep.axes]\n"air_handler[{unit}].minimum_outdoor_air_fraction" = '
+        "{ start = 0.2, stop = 0.4, num = 2 }\n",
+        encoding="utf-8",
+    )
+    command = run_sweep(load_sweep(path), tmp_path / "out", workers=1).table
+    assert "chiller_starts[2 x 50 %]" in command.columns
+    pd.testing.assert_frame_equal(panel.table, command, check_exact=False, rtol=1e-12)
+    assert "sweep_chiller_options_map" in panel.charts
+    names = dict(panel.chart_choice.options)
+    assert names["Chilled-water plant options by climate"] == "sweep_chiller_options_map"
+
+
+def test_no_water_side_box_without_water_side_tables():
+    panel = SweepPanel(DashboardState(load_scenario(OFFICE), view="plant"))
+    assert panel.water_side.layout.display == "none"
+    panel.water_side.value = True  # hidden: it cannot change what runs
+    assert panel.build_sweep().water_side is False

@@ -551,7 +551,7 @@ def sweep_charts(table: pd.DataFrame, axis_columns, *, system="SI") -> dict:
             frame, subtitle=[s for s in ("One case per cell", note) if s]
         )
     electricity = "chilled_water_plant_electricity_kWh"
-    options = water_side_options_frame(table, electricity)
+    options = water_side_options_frame(table, electricity, axes)
     if options is not None:
         # each cooling option's electricity against the lowest option of its column: by
         # climate (or by the first axis), the other axes held at their first values
@@ -581,14 +581,17 @@ def sweep_charts(table: pd.DataFrame, axis_columns, *, system="SI") -> dict:
     return charts
 
 
-def water_side_options_frame(table: pd.DataFrame, name: str) -> pd.DataFrame | None:
+def water_side_options_frame(
+    table: pd.DataFrame, name: str, axis_columns=()
+) -> pd.DataFrame | None:
     """The water-side columns ``name[option]`` of a sweep table as rows: one per case and
-    plant option, with the option's name in ``option`` and its value in ``name`` (None
-    when the table has no such columns, a sweep without ``water_side = true``)."""
+    plant option, with the option's name in ``option`` and its value in ``name``, beside
+    the climate and the axis columns (``axis_columns``, and any ``section.field`` column).
+    None when the table has no such columns (a sweep without ``water_side = true``)."""
     columns = [c for c in table.columns if _split(c)[0] == name and _split(c)[1]]
     if not columns:
         return None
-    keep = [c for c in table.columns if c == "climate" or _AXIS.match(c)]
+    keep = [c for c in table.columns if c == "climate" or c in axis_columns or _AXIS.match(c)]
     parts = [
         table[keep].assign(option=_split(column)[1], **{name: table[column].to_numpy(float)})
         for column in columns

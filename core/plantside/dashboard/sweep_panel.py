@@ -74,7 +74,10 @@ PERCENT_COLUMN = "Minimum outdoor-air fraction[%]"
 CHART_NAMES = {
     "sweep_plant_capacity": "Cooling plant design capacity",
     "sweep_plant_capacity_map": "Cooling plant design capacity, map",
+    "sweep_chiller_options_map": "Chilled-water plant options by climate",
 }
+#: The water-side box's words (shown when the scenario has water-side tables).
+WATER_SIDE_LABEL = "Also each chiller and boiler option's year (about a quarter slower)"
 CAUTION = (
     "A sweep compares cases of the same model; it does not size equipment. Check the "
     "chosen case in full (its cautions, humidity and part-load hours) and follow local "
@@ -137,6 +140,12 @@ class SweepPanel:
             style={"description_width": "13em"},
             layout=widgets.Layout(width="19em"),
         )
+        self.water_side = GuardedCheckbox(
+            value=False,
+            description=WATER_SIDE_LABEL,
+            indent=False,
+            layout=widgets.Layout(width="auto"),
+        )
         self.climates: dict[str, widgets.Checkbox] = {}
         self._own: ClimateChoice | None = None
         self._climate_box = widgets.VBox([])
@@ -147,13 +156,16 @@ class SweepPanel:
         self.progress = widgets.IntProgress(value=0, min=0, max=1, description="")
         self.progress_text = widgets.HTML("")
         self.message = widgets.HTML("")
-        self.chart_choice = GuardedDropdown(options=[], description="Chart")
+        self.chart_choice = GuardedDropdown(  # wide enough for the longest chart name
+            options=[], description="Chart", layout=widgets.Layout(width="30em")
+        )
         self.chart_box = widgets.VBox([])
         self.failed = widgets.HTML("")
         _guard(self.unit, lambda raw: _check_index(raw, self.unit), self._refused)
         _guard(self.chart_choice, lambda raw: _check_index(raw, self.chart_choice), self._refused)
         _guard(self.fraction, _check_range, self._refused)
         _guard(self.steps, _check_steps, self._refused)
+        _guard(self.water_side, _check_tick, self._refused)
         for button in (self.run_button, self.stop_button):
             button.refused = self._refused
         self.run_button.on_click(lambda _: self.start())
@@ -186,6 +198,7 @@ class SweepPanel:
                 widgets.HTML("<b>Climates</b>"),
                 self._climate_box,
                 self._note,
+                self.water_side,
                 self.count,
                 widgets.HBox([self.run_button, self.stop_button]),
                 widgets.HBox([self.progress, self.progress_text]),
@@ -236,6 +249,8 @@ class SweepPanel:
                     box.observe(lambda _: self._show_count(), names="value")
             self.climates, self._own = boxes, own
             self._climate_box.children = tuple(boxes.values())
+        # the water side only where the scenario has one (its tables give the options)
+        self.water_side.layout.display = None if scenario.water_side is not None else "none"
         uploaded = own is None and str(state.inputs.climate).startswith("upload: ")
         self._note.value = (
             "<div class='plantside-help'>An uploaded weather file is not swept here; put it "
@@ -257,6 +272,7 @@ class SweepPanel:
             "sweep_run": self.run_button,
             "sweep_stop": self.stop_button,
             "sweep_chart": self.chart_choice,
+            "sweep_water_side": self.water_side,
         }
         found.update({f"sweep_climate_{name}": box for name, box in self.climates.items()})
         return found
@@ -346,6 +362,7 @@ class SweepPanel:
         bundled = [name for name in chosen if name in BUNDLED_CLIMATES]
         table = {
             "title": f"Outdoor-air sweep of {base.title}",
+            "water_side": bool(self.water_side.value) and base.water_side is not None,
             "axes": {
                 f"air_handler[{self.unit.value}].{FIELD}": {
                     "start": low,
