@@ -18,9 +18,11 @@ import pytest
 from plantside.air_handler.coil_schedule import coil_schedule
 from plantside.charts.export import chart_bytes
 from plantside.charts.tables import (
+    STARTS_ROW,
     coil_schedule_html,
     coil_schedule_table,
     html_table,
+    staging_note,
     water_side_html,
     water_side_tables,
 )
@@ -193,6 +195,7 @@ def test_water_side_tables_are_the_study_figures(clinic, system):
         assert line["Pump [kW]"] == row["design_pump_kW"]
         assert line["Tower [nominal tons]"] == row["tower_tons"]
         assert line["Free-cooling hours [h]"] == row["free_cooling_hours"]
+        assert line[STARTS_ROW] == row["machine_starts"]
     heating = tables["heating"]
     for _, line in heating.iterrows():
         row = rows[("heating", line["Option"])]
@@ -200,10 +203,15 @@ def test_water_side_tables_are_the_study_figures(clinic, system):
         assert line["Seasonal boiler efficiency [%]"] == pytest.approx(
             100 * row["seasonal_efficiency"], rel=1e-12
         )
+        assert line[STARTS_ROW] == row["machine_starts"]
     recovery = tables["heat_recovery"].iloc[0]
     assert recovery["Heat-recovery hours [h]"] == summary["heat_recovery"]["heat_recovery_hours"]
     page = water_side_html(water, spec, system)
     assert page.count("<table") == 3 and page.count("<caption>") == 3
+    # the staging the starts follow, from the scenario's own fractions
+    assert html.escape(staging_note(spec)) in page
+    chiller = f"{100 * spec.chiller_staging_fraction:.0f} % of the running capacity"
+    assert chiller in staging_note(spec)
     # the option tables on their side (a column per option): fifteen columns of the
     # chilled-water table ran off a 1280 px page
     chilled = re.search(r"<table class='ps-table ps-options'>(.*?)</table>", page, re.S).group(1)

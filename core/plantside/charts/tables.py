@@ -113,6 +113,10 @@ def _loop(name, rows, delta_t, system) -> dict:
     }
 
 
+#: The option tables' row of machine starts in the year.
+STARTS_ROW = "Starts a year"
+
+
 def water_side_tables(water, spec, system) -> dict[str, pd.DataFrame]:
     """The water side's key figures per plant option, in display units.
 
@@ -172,6 +176,7 @@ def water_side_tables(water, spec, system) -> dict[str, pd.DataFrame]:
                 "Hours a chiller more for flow [h]": cooling["hours_extra_for_flow"].to_numpy(
                     dtype=float
                 ),
+                STARTS_ROW: cooling["machine_starts"].to_numpy(dtype=float),
             }
         )
         digits = {column: 1 for column in table.columns}
@@ -196,10 +201,11 @@ def water_side_tables(water, spec, system) -> dict[str, pd.DataFrame]:
                 "Pumps [kWh]": heating["pump_kWh"].to_numpy(dtype=float),
                 "Seasonal boiler efficiency [%]": 100.0
                 * heating["seasonal_efficiency"].to_numpy(dtype=float),
+                STARTS_ROW: heating["machine_starts"].to_numpy(dtype=float),
             }
         )
         digits = {column: 1 for column in table.columns}
-        digits.update({"Fuel [kWh]": 0, "Pumps [kWh]": 0})
+        digits.update({"Fuel [kWh]": 0, "Pumps [kWh]": 0, STARTS_ROW: 0})
         table.attrs["digits"] = digits
         tables["heating"] = table
     recovery = water.heat_recovery
@@ -285,10 +291,27 @@ def options_html_table(frame: pd.DataFrame, caption: str | None = None) -> str:
 
 def water_side_html(water, spec, system) -> str:
     """:func:`water_side_tables` as HTML tables ("" when the study has no water side); the
-    option tables with a column per option (:func:`options_html_table`)."""
-    return "".join(
+    option tables with a column per option (:func:`options_html_table`), and a line on
+    the staging their starts follow."""
+    tables = water_side_tables(water, spec, system)
+    page = "".join(
         options_html_table(table, _WATER_CAPTIONS[key])
         if "Option" in table.columns
         else html_table(table, _WATER_CAPTIONS[key])
-        for key, table in water_side_tables(water, spec, system).items()
+        for key, table in tables.items()
+    )
+    if "cooling" in tables or "heating" in tables:
+        page += f"<p class='plantside-help'>{html.escape(staging_note(spec))}</p>"
+    return page
+
+
+def staging_note(spec) -> str:
+    """How the water side stages its machines (its starts differ from the plant's load-only
+    staging when a machine starts before the running ones are full, or for the flow)."""
+    return (
+        "Starts on the water side: the next chiller starts above "
+        f"{100 * spec.chiller_staging_fraction:.0f} % of the running capacity, or when the "
+        "chilled-water flow needs it; the next boiler above "
+        f"{100 * spec.boiler_staging_fraction:.0f} %. The Plant part stages on the load "
+        "alone (the next machine when the running ones are full), so its starts can differ."
     )
