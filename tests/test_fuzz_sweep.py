@@ -98,7 +98,8 @@ def mutated_sweeps(draw):
         elif kind == "base":
             sweep["base"] = draw(st.one_of(st.sampled_from(BASES), values))
         elif kind == "key":
-            sweep[draw(st.sampled_from(["titel", "axis", "cases", "workers", "x"]))] = draw(values)
+            key = draw(st.sampled_from(["titel", "axis", "cases", "workers", "x", "water_side"]))
+            sweep[key] = draw(st.one_of(st.booleans(), values))
         else:
             paths = _leaf_paths(document)
             if not paths:
