@@ -12,6 +12,7 @@ where the first batch leaves its claim.
 """
 
 import os
+import signal
 import sys
 import time
 from pathlib import Path
@@ -35,7 +36,13 @@ def gated_run_batch(sweep, cases):
 
 
 def main() -> None:
-    """Run ``plantside`` with the arguments after ``-c``, the workers gated."""
+    """Run ``plantside`` with the arguments after ``-c``, the workers gated.
+
+    Ctrl-C is given its usual meaning first: a test suite started as a background job
+    (``command &`` in a shell without job control) runs with SIGINT ignored, Python then
+    leaves it ignored in this child, and the test's interrupt would never arrive.
+    """
+    signal.signal(signal.SIGINT, signal.default_int_handler)
     sweep_run.run_batch = gated_run_batch
     from plantside.cli.main import main as plantside_main
 
