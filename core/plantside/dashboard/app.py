@@ -162,6 +162,8 @@ class Dashboard:
         self.widths: dict[str, int] = dict.fromkeys(CHARTS, WIDTH)
         self.panel_width = PanelWidth(names=list(CHARTS))
         self.panel_width.observe(self._on_panel_width, names="report")
+        # per chart, the (offered, drawn) widths [px] of the report that last narrowed it
+        self._narrowed_at: dict[str, tuple[float, float]] = {}
         self.timings: dict[str, float] = {"model": 0.0, "charts": 0.0}
         self._chart_keys: dict[str, tuple] = {}
         self.chart_specs: dict[str, object] = {}
@@ -447,10 +449,22 @@ class Dashboard:
         self.timings["charts"] = time.perf_counter() - start
 
     def _on_panel_width(self, change):
-        """The page measured its chart panels: redraw the charts that do not fit theirs."""
+        """The page measured its chart panels: redraw the charts that do not fit theirs.
+
+        A panel as wide as its chart (a layout that sizes it by its content) would report
+        the same shortfall after every narrowing, and the charts would shrink without end,
+        one redraw per report: a chart is not narrowed again when its panel shrank by just
+        as much as the chart did since the last narrowing (the panel followed the chart).
+        """
         resized = False
         for name, (offered, drawn) in change["new"].items():
             width = fitted_plot_width(self.widths[name], offered, drawn)
+            if width is not None and width < self.widths[name]:
+                before = self._narrowed_at.get(name)
+                if before is not None and offered < before[0]:
+                    if abs((before[0] - offered) - (before[1] - drawn)) < 1.0:
+                        continue  # the panel followed the chart: narrowing cannot fit it
+                self._narrowed_at[name] = (offered, drawn)
             if width is not None:
                 self.widths[name] = width
                 resized = True
