@@ -131,6 +131,7 @@ class SweepPanel:
             description=FRACTION_LABEL,
             style={"description_width": "13em"},
             continuous_update=False,
+            layout=widgets.Layout(width="100%", max_width="46em"),  # its readout in reach
         )
         self.steps = GuardedIntText(
             value=5,
