@@ -26,6 +26,7 @@ from pathlib import Path
 
 import pandas as pd
 import pytest
+from dask_local import local_cluster
 from plantside.climate.bundled import BUNDLED_CLIMATES
 from plantside.study.sweep import load_sweep
 from plantside.study.sweep_dask import WORKER_MODULE
@@ -73,7 +74,7 @@ def _busy_share(tasks, seconds: float) -> float:
 
 def measure(cases: int, folder: Path, report=print) -> dict:
     """Run the three set-ups on the same sweep; report and return cases/s and the tables."""
-    from dask.distributed import Client, LocalCluster, get_task_stream
+    from dask.distributed import Client, get_task_stream
 
     sweep = benchmark_sweep(folder, cases)
     report(
@@ -90,14 +91,7 @@ def measure(cases: int, folder: Path, report=print) -> dict:
     )
     started = time.perf_counter()
     with (
-        LocalCluster(
-            host="127.0.0.1",
-            n_workers=2,
-            threads_per_worker=1,
-            processes=True,
-            dashboard_address=None,
-            preload=[WORKER_MODULE],  # as `dask worker --preload` (README)
-        ) as cluster,
+        local_cluster(2, preload=[WORKER_MODULE]) as cluster,  # as `dask worker --preload`
         Client(cluster) as client,
     ):
         start_up = time.perf_counter() - started

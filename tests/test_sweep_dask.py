@@ -10,6 +10,7 @@ from pathlib import Path
 
 import pandas as pd
 import pytest
+from dask_local import local_cluster
 from plantside.errors import InputRangeError
 from plantside.study.sweep import load_sweep
 from plantside.study.sweep_dask import WORKER_MODULE
@@ -23,22 +24,10 @@ CLINIC = ROOT / "example_data" / "scenarios" / "quillon_clinic.toml"
 CLIMATES = ["Salvia Flats", "Korva Plains", "Port Calder"]
 
 
-def _local_cluster(n_workers: int, **options):
-    """Single-threaded worker processes on 127.0.0.1, no dashboard."""
-    return distributed.LocalCluster(
-        host="127.0.0.1",
-        n_workers=n_workers,
-        threads_per_worker=1,
-        processes=True,
-        dashboard_address=None,
-        **options,
-    )
-
-
 @pytest.fixture(scope="module")
 def cluster():
     """Two workers started as the README starts them (the model preloaded)."""
-    with _local_cluster(2, preload=[WORKER_MODULE]) as local:
+    with local_cluster(2, preload=[WORKER_MODULE]) as local:
         yield local
 
 
@@ -146,7 +135,7 @@ def test_a_batch_whose_worker_dies_is_resubmitted_once_then_recorded_failed(
     out = tmp_path / "out"
     with (
         dask.config.set(settings),
-        _local_cluster(2) as local,
+        local_cluster(2) as local,
         distributed.Client(local) as client,
     ):
         monkeypatch.setattr(sweep_run, "run_batch", dying)
@@ -190,7 +179,7 @@ def test_tasks_dropped_with_the_only_copy_of_the_sweep_are_resubmitted(
     )
     with (
         dask.config.set({"distributed.scheduler.allowed-failures": 0}),
-        _local_cluster(1) as local,
+        local_cluster(1) as local,
         distributed.Client(local) as client,
     ):
         monkeypatch.setattr(sweep_run, "run_batch", dying)
@@ -199,3 +188,16 @@ def test_tasks_dropped_with_the_only_copy_of_the_sweep_are_resubmitted(
     assert (run.computed, run.failed, len(table)) == (12, 1, 12)
     assert table.loc[doomed.case_id, "status"] == "failed"
     assert (table.drop(doomed.case_id)["status"] == "ok").all()
+
+
+def test_a_local_cluster_leaves_this_process_environment_as_it_was():
+    """Dask's nanny sets its pre-spawn variables (MALLOC_TRIM_THRESHOLD_ among them) in the
+    process that starts it; the tests' cluster puts the environment back, or every
+    process the test run starts later runs the core several times slower
+    (tests/dask_local.py)."""
+    import os
+
+    before = dict(os.environ)
+    with local_cluster(1) as local, distributed.Client(local) as client:
+        assert client.submit(sum, [1, 2]).result() == 3
+    assert dict(os.environ) == before
