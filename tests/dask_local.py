@@ -32,6 +32,9 @@ def local_cluster(n_workers: int, **options):
             threads_per_worker=1,
             processes=True,
             dashboard_address=None,
+            # the scheduler's health and metrics server, on a free loopback port (not on
+            # 8787, which the module's other cluster may hold: a warning each time)
+            scheduler_kwargs={"dashboard_address": "127.0.0.1:0"},
             **options,
         ) as cluster:
             yield cluster
