@@ -21,6 +21,22 @@ def test_environment_that_sets_the_allocator_is_left_alone():
         assert heap.keep_freed_memory(environ) is False, environ
 
 
+def test_a_launchers_own_setting_gives_way_and_a_persons_does_not():
+    # Dask's nanny sets its pre-spawn values in each worker (distributed.yaml,
+    # distributed.nanny.pre-spawn-environ: MALLOC_TRIM_THRESHOLD_ 65536, OMP_NUM_THREADS 1)
+    dask_settings = {"MALLOC_TRIM_THRESHOLD_": 65536, "OMP_NUM_THREADS": 1}
+    worker = {"MALLOC_TRIM_THRESHOLD_": "65536", "OMP_NUM_THREADS": "1", "HOME": "/root"}
+    assert heap.without_settings_of(worker, dask_settings) == {
+        "OMP_NUM_THREADS": "1",  # not the allocator's: kept
+        "HOME": "/root",
+    }
+    own = {"MALLOC_TRIM_THRESHOLD_": "131072"}  # set by whoever started the worker
+    assert heap.without_settings_of(own, dask_settings) == own
+    assert heap.keep_freed_memory(heap.without_settings_of(own, dask_settings)) is False
+    opted_out = {**worker, "PLANTSIDE_MALLOC_DEFAULTS": "1"}
+    assert heap.keep_freed_memory(heap.without_settings_of(opted_out, dask_settings)) is False
+
+
 def test_thresholds():
     # 32 MiB is glibc's own ceiling of the dynamic mapping threshold on 64-bit systems
     # (DEFAULT_MMAP_THRESHOLD_MAX, mallopt(3)); the trim threshold is twice it.

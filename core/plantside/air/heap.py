@@ -29,7 +29,13 @@ import ctypes
 import os
 import sys
 
-__all__ = ["MMAP_THRESHOLD_BYTES", "TRIM_THRESHOLD_BYTES", "keep_freed_memory"]
+__all__ = [
+    "ALLOCATOR_VARIABLES",
+    "MMAP_THRESHOLD_BYTES",
+    "TRIM_THRESHOLD_BYTES",
+    "keep_freed_memory",
+    "without_settings_of",
+]
 
 #: mallopt(3) parameter numbers of glibc's <malloc.h>.
 _M_TRIM_THRESHOLD = -1
@@ -39,12 +45,14 @@ TRIM_THRESHOLD_BYTES = 64 * 2**20
 #: Allocations at or above this size are mapped on their own [bytes].
 MMAP_THRESHOLD_BYTES = 32 * 2**20
 _OPT_OUT = "PLANTSIDE_MALLOC_DEFAULTS"
+#: The environment variables of glibc's allocator this module gives way to.
+ALLOCATOR_VARIABLES = ("MALLOC_TRIM_THRESHOLD_", "MALLOC_MMAP_THRESHOLD_")
 
 
 def _allocator_set_by_environment(environ) -> bool:
     if environ.get(_OPT_OUT, "") not in ("", "0"):
         return True
-    if "MALLOC_TRIM_THRESHOLD_" in environ or "MALLOC_MMAP_THRESHOLD_" in environ:
+    if any(name in environ for name in ALLOCATOR_VARIABLES):
         return True
     return "glibc.malloc" in environ.get("GLIBC_TUNABLES", "")
 
@@ -78,3 +86,28 @@ def keep_freed_memory(environ=None) -> bool:
     trimmed = mallopt(_M_TRIM_THRESHOLD, TRIM_THRESHOLD_BYTES)
     mapped = mallopt(_M_MMAP_THRESHOLD, MMAP_THRESHOLD_BYTES)
     return bool(trimmed and mapped)
+
+
+def without_settings_of(environ, settings) -> dict:
+    """``environ`` without the allocator variables whose value is the one ``settings`` set.
+
+    A Dask nanny sets ``MALLOC_TRIM_THRESHOLD_=65536`` in every worker it starts (its
+    ``distributed.nanny.pre-spawn-environ``, unless the environment already sets it): a
+    setting of the scheduler's configuration, not of the person who started the worker.
+    With it, a sweep case ran 12 % slower (2-core machine, 60 cases in a fresh process,
+    five runs each: 8.77-9.13 cases/s against 9.69-10.47). Passing the result to
+    :func:`keep_freed_memory` applies this module's settings over Dask's, and still
+    leaves a value someone set themselves alone.
+
+    Parameters
+    ----------
+    environ : mapping
+        The process's environment.
+    settings : mapping
+        Variables and the values a launcher sets (e.g. Dask's pre-spawn environment).
+    """
+    return {
+        name: value
+        for name, value in environ.items()
+        if not (name in ALLOCATOR_VARIABLES and name in settings and value == str(settings[name]))
+    }
